@@ -1,0 +1,12 @@
+import { defineProject } from 'vitest/config';
+import vue from '@vitejs/plugin-vue';
+
+export default defineProject({
+  plugins: [vue()],
+  test: {
+    name: 'console',
+    include: ['src/**/*.spec.ts'],
+    environment: 'happy-dom',
+    setupFiles: ['../tests/setup/no-console-noise.ts'],
+  },
+});
