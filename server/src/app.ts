@@ -1,0 +1,74 @@
+/**
+ * Builds the Express app. Tests import createApp and drive it over real HTTP (supertest);
+ * index.ts opens the database through it, listens and shuts down cleanly.
+ */
+import express from 'express';
+import pino from 'pino';
+import { pinoHttp } from 'pino-http';
+import type { Config } from './config.ts';
+import type { AppContext } from './context.ts';
+import { openDatabase } from './db/index.ts';
+import { errorHandler, notFoundHandler } from './http/problem.ts';
+import { createApiRouter } from './routes/api/index.ts';
+import { createSiteRouter } from './routes/site.ts';
+import { createV1Router } from './routes/v1/index.ts';
+
+export interface NadirlineApp {
+  app: express.Express;
+  context: AppContext;
+  /** Flush usage, stop the fake SMTP server, close the database. Idempotent. */
+  close(): Promise<void>;
+}
+
+export async function createApp(config: Config): Promise<NadirlineApp> {
+  const logger = pino({ level: config.isTest ? 'silent' : config.LOG_LEVEL });
+  const sequelize = await openDatabase(config);
+  const closers: Array<() => Promise<void> | void> = [];
+  const context: AppContext = {
+    config,
+    sequelize,
+    logger,
+    onClose: (fn) => closers.push(fn),
+    services: {},
+  };
+
+  const app = express();
+  app.disable('x-powered-by');
+  app.set('trust proxy', 'loopback');
+  app.use(
+    pinoHttp({
+      logger,
+      // Keep logs to the request line and outcome; never log keys or cookies.
+      serializers: {
+        req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url.replace(/([?&]key=)[^&]+/, '$1[hidden]') }),
+        res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
+      },
+    }),
+  );
+
+  app.get('/healthz', (_req, res) => {
+    res.json({ ok: true });
+  });
+  app.use('/v1', await createV1Router(context));
+  app.use('/api', await createApiRouter(context));
+  app.use(await createSiteRouter(context));
+
+  app.use(notFoundHandler);
+  app.use(errorHandler({ exposeInternals: !config.isProduction, logger }));
+
+  let closed: Promise<void> | undefined;
+  const close = () => {
+    closed ??= (async () => {
+      for (const fn of closers.reverse()) {
+        try {
+          await fn();
+        } catch (err) {
+          logger.error({ err }, 'error while closing');
+        }
+      }
+      await sequelize.close();
+    })();
+    return closed;
+  };
+  return { app, context, close };
+}

@@ -1,0 +1,124 @@
+/**
+ * Problem details (RFC 9457). Every error the server answers is application/problem+json with
+ * `type`, `title`, `status`, `detail`, and a stable `code` extension member clients may rely on
+ * (the widget maps codes to messages). Validation problems add `errors: [{ where, message }]`.
+ */
+import type { ErrorRequestHandler, RequestHandler, Response } from 'express';
+import type { Logger } from 'pino';
+
+export interface ProblemFieldError {
+  /** Where the problem is: a JSON pointer, a query parameter name, or "line 3, column 12". */
+  where: string;
+  message: string;
+  line?: number;
+  column?: number;
+  field?: string;
+}
+
+/** Status and title per code, in one table. */
+export const PROBLEM_TYPES = {
+  'bad-request': { status: 400, title: 'Bad request' },
+  'validation-failed': { status: 400, title: 'Request parameters are not valid' },
+  'unauthenticated': { status: 401, title: 'Authentication required' },
+  'invalid-key': { status: 401, title: 'API key not recognised' },
+  'key-expired': { status: 401, title: 'API key expired' },
+  'key-revoked': { status: 401, title: 'API key revoked' },
+  'key-rotated': { status: 401, title: 'API key replaced and its grace period is over' },
+  'forbidden': { status: 403, title: 'Not allowed' },
+  'origin-not-allowed': { status: 403, title: 'Origin not allowed for this key' },
+  'scope-missing': { status: 403, title: 'Key lacks the required scope' },
+  'browser-key-read-only': { status: 403, title: 'Browser keys are read-only' },
+  'csrf-failed': { status: 403, title: 'Missing or wrong CSRF token' },
+  'email-not-verified': { status: 403, title: 'E-mail address not verified' },
+  'not-found': { status: 404, title: 'Not found' },
+  'method-not-allowed': { status: 405, title: 'Method not allowed' },
+  'conflict': { status: 409, title: 'Conflict' },
+  'payload-too-large': { status: 413, title: 'Payload too large' },
+  'unsupported-media-type': { status: 415, title: 'Unsupported media type' },
+  'unprocessable-element-set': { status: 422, title: 'Element set could not be used' },
+  'unprocessable': { status: 422, title: 'Request could not be processed' },
+  'no-element-set': { status: 422, title: 'Satellite has no element set yet' },
+  'decayed': { status: 422, title: 'Object has decayed according to its element set' },
+  'propagation-failed': { status: 422, title: 'Position could not be computed' },
+  'rate-limited': { status: 429, title: 'Too many requests' },
+  'quota-exceeded': { status: 429, title: 'Monthly quota reached' },
+  'too-many-attempts': { status: 429, title: 'Too many attempts' },
+  'internal': { status: 500, title: 'Internal server error' },
+  'unavailable': { status: 503, title: 'Service unavailable' },
+} as const;
+export type ProblemCode = keyof typeof PROBLEM_TYPES;
+
+/** Documentation base for problem `type` URIs (served by the app at /docs/problems). */
+export const PROBLEM_TYPE_BASE = '/docs/problems#';
+
+export class HttpError extends Error {
+  readonly code: ProblemCode;
+  readonly status: number;
+  readonly detail: string;
+  readonly extras: Record<string, unknown>;
+  readonly headers: Record<string, string>;
+  constructor(code: ProblemCode, detail: string, extras: Record<string, unknown> = {}, headers: Record<string, string> = {}) {
+    super(detail);
+    this.name = 'HttpError';
+    this.code = code;
+    this.status = PROBLEM_TYPES[code].status;
+    this.detail = detail;
+    this.extras = extras;
+    this.headers = headers;
+  }
+}
+
+export function sendProblem(
+  res: Response,
+  code: ProblemCode,
+  detail: string,
+  extras: Record<string, unknown> = {},
+  instance?: string,
+): void {
+  const t = PROBLEM_TYPES[code];
+  res
+    .status(t.status)
+    .type('application/problem+json')
+    .json({ type: `${PROBLEM_TYPE_BASE}${code}`, title: t.title, status: t.status, detail, code, ...(instance ? { instance } : {}), ...extras });
+}
+
+export const notFoundHandler: RequestHandler = (req, res) => {
+  sendProblem(res, 'not-found', `Nothing is served at ${req.method} ${req.path}.`, {}, req.originalUrl);
+};
+
+/** The one error handler: everything becomes problem+json; internals only in development. */
+export function errorHandler(opts: { exposeInternals: boolean; logger: Logger }): ErrorRequestHandler {
+  return (err: unknown, req, res, _next) => {
+    if (res.headersSent) {
+      res.end();
+      return;
+    }
+    if (err instanceof HttpError) {
+      for (const [k, v] of Object.entries(err.headers)) res.setHeader(k, v);
+      sendProblem(res, err.code, err.detail, err.extras, req.originalUrl);
+      return;
+    }
+    const e = err as { type?: string; status?: number; statusCode?: number; message?: string; code?: string; field?: string };
+    // Errors raised by body parsers and multer carry a status or a known type.
+    if (e?.type === 'entity.parse.failed') {
+      sendProblem(res, 'bad-request', `The request body is not valid JSON: ${e.message ?? ''}`.trim(), {}, req.originalUrl);
+      return;
+    }
+    if (e?.type === 'entity.too.large' || e?.code === 'LIMIT_FILE_SIZE') {
+      sendProblem(res, 'payload-too-large', e.message ?? 'The request body is too large.', {}, req.originalUrl);
+      return;
+    }
+    if (e?.code?.startsWith?.('LIMIT_')) {
+      sendProblem(res, 'bad-request', `Upload refused: ${e.message ?? e.code}${e.field ? ` (field ${e.field})` : ''}.`, {}, req.originalUrl);
+      return;
+    }
+    const status = e?.status ?? e?.statusCode;
+    if (typeof status === 'number' && status >= 400 && status < 500) {
+      sendProblem(res, 'bad-request', e.message ?? 'Bad request.', {}, req.originalUrl);
+      return;
+    }
+    opts.logger.error({ err, url: req.originalUrl }, 'unhandled error');
+    const detail = opts.exposeInternals && err instanceof Error ? `${err.message}\n${err.stack ?? ''}` : 'Something went wrong on our side. It has been logged.';
+    sendProblem(res, 'internal', detail, {}, req.originalUrl);
+  };
+}
