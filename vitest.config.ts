@@ -12,6 +12,7 @@ export default defineConfig({
       'widget/vitest.config.ts',
       'console/vitest.config.ts',
       'tests/vitest.config.ts',
+      'tests/vitest.e2e.config.ts',
     ],
   },
 });
