@@ -1,0 +1,44 @@
+/**
+ * Public API of the Nadirline orbit engine's computation: propagation, ground tracks, derived
+ * elements, the Sun and the Earth, observers and passes. Element-set parsing lives in ../elements.
+ */
+export * from './constants.ts';
+export {
+  julianDateFromMs,
+  msFromJulianDate,
+  gmstRad,
+  wrapLonDeg,
+  wrap360Deg,
+  eciToEcef,
+  cartesianToGeodetic,
+  geodeticToEcef,
+  sunVector,
+  isSunlit,
+} from './frames.ts';
+export type { Vec3, Geodetic, SunVector } from './frames.ts';
+export { propagateAt, satrecEpochMs } from './propagate.ts';
+export type { OrbitState, PropagationResult, PropagationErrorCode, PropagationFailure } from './propagate.ts';
+export { sampleTrack, splitAtAntimeridian, trackToGeoJSON, DEFAULT_MAX_TRACK_SAMPLES } from './track.ts';
+export type { TrackWindow, TrackErrorCode, TrackGeoJsonOptions } from './track.ts';
+export {
+  deriveElements,
+  stalenessOf,
+  nodalPrecessionDegPerDay,
+  semiMajorAxisKmFromMeanMotion,
+} from './elements-derived.ts';
+export type { DerivedElements, Staleness } from './elements-derived.ts';
+export {
+  subsolarPoint,
+  antipode,
+  smallCircleRing,
+  capPolygon,
+  terminator,
+  twilightBands,
+  footprintRadius,
+  footprintCircle,
+} from './sun-earth.ts';
+export type { TwilightBands, FootprintRadius } from './sun-earth.ts';
+export { lookAngles, lookAnglesFromEcef, observerSite, validateObserver } from './observer.ts';
+export type { Observer, LookAngles, ObserverErrorCode, ObserverSite } from './observer.ts';
+export { findPasses, MAX_PASS_SEARCH_DAYS } from './passes.ts';
+export type { Pass, PassList, PassOptions, PassErrorCode } from './passes.ts';
