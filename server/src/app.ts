@@ -12,6 +12,10 @@ import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
 import { createV1Router } from './routes/v1/index.ts';
+import { getEmbedService } from './services/embeds.ts';
+import { getKeyService } from './services/keys.ts';
+import { getQuotaService } from './services/quota.ts';
+import { getUsageRecorder } from './services/usage.ts';
 
 export interface NadirlineApp {
   app: express.Express;
@@ -31,6 +35,11 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     onClose: (fn) => closers.push(fn),
     services: {},
   };
+  // Keys, usage, quota, satellites and embeds (the console's /api routes call them too).
+  getKeyService(context);
+  getUsageRecorder(context);
+  getQuotaService(context);
+  getEmbedService(context);
 
   const app = express();
   app.disable('x-powered-by');

@@ -1,0 +1,217 @@
+/**
+ * Embeds: saved widget configurations. An embed is also a read credential: `?embed=<id>` on a
+ * /v1 GET is resolved to the embed's browser key (origins, rate limit, quota, usage of that key)
+ * and limits reads to the embed's satellites.
+ *
+ * Exported API (ctx.services.embeds is an EmbedService):
+ *   listEmbeds(orgId) -> Promise<Embed[]>
+ *   getEmbed(orgId, id) -> Promise<Embed>                        (404 not-found)
+ *   createEmbed(orgId, { name, satelliteIds, options?, apiKeyId }) -> Promise<Embed>   (400 validation-failed)
+ *   updateEmbed(orgId, id, { name?, satelliteIds?, options?, apiKeyId? }) -> Promise<Embed>
+ *   deleteEmbed(orgId, id) -> Promise<void>
+ *   serializeEmbed(embed) -> { id, name, satelliteIds, options, apiKeyId, updatedAt }
+ *   publicEmbed(embed) -> { id, name, satellites, options }      (the GET /v1/embeds/{id} answer)
+ *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; 404 / key problems)
+ *   embedOptionsSchema, embedInputSchema (zod)
+ */
+import { customAlphabet } from 'nanoid';
+import { z } from 'zod';
+import type { AppContext } from '../context.ts';
+import { HttpError } from '../http/problem.ts';
+import { ApiKey, Embed, Satellite } from '../models/index.ts';
+import { assertKeyWorks, getKeyService, type KeyRecord, type KeyService } from './keys.ts';
+
+/** Embed ids: 12 characters, letters and digits only (safe in URLs and attributes). */
+export const newEmbedId = customAlphabet('23456789abcdefghijkmnpqrstuvwxyz', 12);
+export const EMBED_CACHE_TTL_MS = 30_000;
+export const MAX_EMBED_SATELLITES = 50;
+
+export const embedOptionsSchema = z
+  .looseObject({
+    projection: z.enum(['equal-earth', 'globe']).optional(),
+    orbitsBehind: z.number().min(0).max(10).optional(),
+    orbitsAhead: z.number().min(0).max(10).optional(),
+    observer: z.string().max(100).optional(),
+    layers: z.array(z.string().max(40)).max(20).optional(),
+    theme: z.enum(['light', 'dark', 'auto']).optional(),
+    timeZone: z.string().max(60).optional(),
+    locale: z.string().max(35).optional(),
+    width: z.string().max(40).optional(),
+    height: z.string().max(40).optional(),
+  })
+  .refine((o) => JSON.stringify(o).length <= 8_000, { message: 'options are too large (8 000 characters of JSON at most)' });
+
+export const embedInputSchema = z.object({
+  name: z.string().trim().min(1).max(200),
+  satelliteIds: z.array(z.string().min(1).max(40)).min(1).max(MAX_EMBED_SATELLITES),
+  options: embedOptionsSchema.default({}),
+  apiKeyId: z.string().min(1).max(40),
+});
+export const embedUpdateSchema = z.object({
+  name: embedInputSchema.shape.name.optional(),
+  satelliteIds: embedInputSchema.shape.satelliteIds.optional(),
+  options: embedOptionsSchema.optional(),
+  apiKeyId: embedInputSchema.shape.apiKeyId.optional(),
+});
+
+export interface EmbedRecord {
+  id: string;
+  organizationId: string;
+  name: string;
+  satelliteIds: string[];
+  options: Record<string, unknown>;
+  apiKeyId: string | null;
+  updatedAt: Date;
+}
+
+function invalid(error: z.ZodError): HttpError {
+  return new HttpError('validation-failed', `The embed is not valid: ${error.issues.map((i) => `${i.path.join('.') || '(body)'}: ${i.message}`).join('; ')}`, {
+    errors: error.issues.map((i) => ({ where: i.path.join('.') || '(body)', field: String(i.path[0] ?? ''), message: i.message })),
+  });
+}
+
+function toRecord(e: Embed): EmbedRecord {
+  return {
+    id: e.id,
+    organizationId: e.organizationId,
+    name: e.name,
+    satelliteIds: [...e.satelliteIds],
+    options: { ...e.options },
+    apiKeyId: e.apiKeyId,
+    updatedAt: new Date(e.updatedAt),
+  };
+}
+
+export function serializeEmbed(e: Embed | EmbedRecord) {
+  return {
+    id: e.id,
+    name: e.name,
+    satelliteIds: [...e.satelliteIds],
+    options: { ...e.options },
+    apiKeyId: e.apiKeyId,
+    updatedAt: new Date(e.updatedAt).toISOString(),
+  };
+}
+
+export function publicEmbed(e: Embed | EmbedRecord) {
+  return { id: e.id, name: e.name, satellites: [...e.satelliteIds], options: { ...e.options } };
+}
+
+export class EmbedService {
+  private readonly cache = new Map<string, { record: EmbedRecord | null; at: number }>();
+
+  constructor(
+    _ctx: AppContext,
+    private readonly keys: KeyService,
+  ) {}
+
+  listEmbeds(orgId: string): Promise<Embed[]> {
+    return Embed.findAll({ where: { organizationId: orgId }, order: [['updatedAt', 'DESC']] });
+  }
+
+  async getEmbed(orgId: string, id: string): Promise<Embed> {
+    const e = await Embed.findOne({ where: { id, organizationId: orgId } });
+    if (!e) throw new HttpError('not-found', `Embed ${id} does not exist in this organization.`);
+    return e;
+  }
+
+  async createEmbed(orgId: string, input: unknown): Promise<Embed> {
+    const parsed = embedInputSchema.safeParse(input);
+    if (!parsed.success) throw invalid(parsed.error);
+    const v = parsed.data;
+    await this.checkRefs(orgId, v.satelliteIds, v.apiKeyId);
+    const e = await Embed.create({
+      id: newEmbedId(),
+      organizationId: orgId,
+      name: v.name,
+      satelliteIds: [...new Set(v.satelliteIds)],
+      options: v.options,
+      apiKeyId: v.apiKeyId,
+    });
+    this.cache.delete(e.id);
+    return e;
+  }
+
+  async updateEmbed(orgId: string, id: string, input: unknown): Promise<Embed> {
+    const parsed = embedUpdateSchema.safeParse(input);
+    if (!parsed.success) throw invalid(parsed.error);
+    const v = parsed.data;
+    const e = await this.getEmbed(orgId, id);
+    await this.checkRefs(orgId, v.satelliteIds, v.apiKeyId);
+    await e.update({
+      ...(v.name !== undefined ? { name: v.name } : {}),
+      ...(v.satelliteIds !== undefined ? { satelliteIds: [...new Set(v.satelliteIds)] } : {}),
+      ...(v.options !== undefined ? { options: v.options } : {}),
+      ...(v.apiKeyId !== undefined ? { apiKeyId: v.apiKeyId } : {}),
+    });
+    this.cache.delete(id);
+    return e;
+  }
+
+  async deleteEmbed(orgId: string, id: string): Promise<void> {
+    const e = await this.getEmbed(orgId, id);
+    await e.destroy();
+    this.cache.delete(id);
+  }
+
+  /** The embed (cached), or null. */
+  async findEmbed(id: string): Promise<EmbedRecord | null> {
+    if (!/^[0-9a-z_-]{1,40}$/i.test(id)) return null;
+    const hit = this.cache.get(id);
+    if (hit && Date.now() - hit.at < EMBED_CACHE_TTL_MS) return hit.record;
+    const row = await Embed.findByPk(id);
+    const record = row ? toRecord(row) : null;
+    if (this.cache.size > 10_000) this.cache.clear();
+    this.cache.set(id, { record, at: Date.now() });
+    return record;
+  }
+
+  /** Resolve `?embed=<id>` to the embed and its working browser key; throws the matching problem. */
+  async resolveForRead(id: string, now: Date = new Date()): Promise<{ embed: EmbedRecord; key: KeyRecord }> {
+    const embed = await this.findEmbed(id);
+    if (!embed) throw new HttpError('invalid-key', `No embed ${id} exists; it may have been deleted.`);
+    if (!embed.apiKeyId) throw new HttpError('invalid-key', `Embed ${id} has no key attached; choose a browser key for it in the console.`);
+    const key = await this.keys.findById(embed.apiKeyId);
+    if (!key) throw new HttpError('invalid-key', `The key of embed ${id} no longer exists; choose another browser key in the console.`);
+    assertKeyWorks(key, now);
+    return { embed, key };
+  }
+
+  invalidate(id: string): void {
+    this.cache.delete(id);
+  }
+
+  private async checkRefs(orgId: string, satelliteIds: string[] | undefined, apiKeyId: string | undefined): Promise<void> {
+    if (satelliteIds) {
+      const found = await Satellite.findAll({ where: { id: satelliteIds, organizationId: orgId }, attributes: ['id'] });
+      const have = new Set(found.map((s) => s.id));
+      const missing = satelliteIds.filter((s) => !have.has(s));
+      if (missing.length > 0) {
+        throw new HttpError('validation-failed', `Unknown satellites for this organization: ${missing.join(', ')}.`, {
+          errors: [{ where: 'satelliteIds', field: 'satelliteIds', message: `unknown: ${missing.join(', ')}` }],
+        });
+      }
+    }
+    if (apiKeyId) {
+      const key = await ApiKey.findOne({ where: { id: apiKeyId, organizationId: orgId } });
+      if (!key || key.kind !== 'browser') {
+        throw new HttpError('validation-failed', 'An embed reads with one of this organization\u2019s browser keys; apiKeyId names none.', {
+          errors: [{ where: 'apiKeyId', field: 'apiKeyId', message: 'must be a browser key of this organization' }],
+        });
+      }
+    }
+  }
+}
+
+declare module '../context.ts' {
+  interface AppServices {
+    /** Set by getEmbedService (app.ts calls it at start-up). */
+    embeds?: EmbedService;
+  }
+}
+
+/** The app's EmbedService, created on first use. */
+export function getEmbedService(ctx: AppContext): EmbedService {
+  ctx.services.embeds ??= new EmbedService(ctx, getKeyService(ctx));
+  return ctx.services.embeds;
+}

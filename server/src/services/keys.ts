@@ -1,0 +1,481 @@
+/**
+ * API keys: browser keys (`nlb_…`, origin-locked, read-only) and server keys (`nls_…`, secret,
+ * may carry `element-sets:write`). Only the SHA-256 of the text is stored, with its last four
+ * characters; the full text is returned once by createKey / rotateKey.
+ *
+ * Exported API (ctx.services.keys is a KeyService):
+ *   createKey({ organizationId, kind, name, origins?, scopes?, rateLimitPerMin?, expiresAt?, createdByUserId? })
+ *       -> Promise<{ key: ApiKey, secret: string }>          (400 validation-failed on bad input)
+ *   rotateKey(id, graceHours = 24) -> Promise<{ key, secret, previous }>   (0 = old key stops at once)
+ *   revokeKey(id) -> Promise<ApiKey>                           (immediate)
+ *   updateKey(id, { name?, origins?, scopes?, rateLimitPerMin?, expiresAt? }) -> Promise<ApiKey>
+ *   keyState(key, now?) -> 'active' | 'grace' | 'expired' | 'revoked'
+ *   serializeKey(key, now?) -> KeyJson (the console's key object; lastUsedAt includes unflushed use)
+ *   authenticate(text, now?) -> Promise<KeyRecord>             (throws HttpError invalid-key / key-*)
+ *   findById(id) -> Promise<KeyRecord | null>                  (cached)
+ *   originAllowed(record, origin) / normalizeOrigin(text)      (module functions)
+ *
+ * Records are cached in-process by hash and by id (KEY_CACHE_TTL_MS); rotate, revoke and update
+ * drop the cached entries at once. lastUsedAt is kept in memory and written in one batch every
+ * flush interval and on close: no database write on the request path.
+ */
+import crypto from 'node:crypto';
+import { nanoid } from 'nanoid';
+import { z } from 'zod';
+import type { AppContext } from '../context.ts';
+import { HttpError } from '../http/problem.ts';
+import { ApiKey, KEY_KINDS, KEY_SCOPES, Organization, type KeyKind, type KeyScope } from '../models/index.ts';
+import { planOf } from './quota.ts';
+
+export const KEY_PREFIX: Record<KeyKind, string> = { browser: 'nlb_', server: 'nls_' };
+/** Length of the random part of a key text (nanoid alphabet, ~190 bits). */
+export const KEY_RANDOM_LENGTH = 32;
+export const KEY_CACHE_TTL_MS = 30_000;
+export const MAX_ORIGINS = 50;
+export const DEFAULT_GRACE_HOURS = 24;
+export const MAX_GRACE_HOURS = 24 * 30;
+
+export type KeyState = 'active' | 'grace' | 'expired' | 'revoked';
+
+/** Plain, immutable copy of an ApiKey row, as cached for the request path. */
+export interface KeyRecord {
+  id: string;
+  organizationId: string;
+  kind: KeyKind;
+  name: string;
+  hash: string;
+  lastFour: string;
+  origins: string[];
+  scopes: KeyScope[];
+  rateLimitPerMin: number;
+  expiresAt: Date | null;
+  revokedAt: Date | null;
+  replacedById: string | null;
+  graceUntil: Date | null;
+  lastUsedAt: Date | null;
+  createdByUserId: string | null;
+  createdAt: Date;
+}
+
+export interface KeyJson {
+  id: string;
+  kind: KeyKind;
+  name: string;
+  lastFour: string;
+  origins: string[];
+  scopes: KeyScope[];
+  rateLimitPerMin: number;
+  expiresAt: string | null;
+  revokedAt: string | null;
+  replacedById: string | null;
+  graceUntil: string | null;
+  lastUsedAt: string | null;
+  createdAt: string;
+  state: KeyState;
+}
+
+export function hashKeyText(text: string): string {
+  return crypto.createHash('sha256').update(text, 'utf8').digest('hex');
+}
+
+export function kindOfKeyText(text: string): KeyKind | null {
+  if (text.startsWith(KEY_PREFIX.browser)) return 'browser';
+  if (text.startsWith(KEY_PREFIX.server)) return 'server';
+  return null;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Origins: exact (`https://app.example.org`, `http://localhost:8080`) or wildcard subdomain
+// (`https://*.example.org`, which matches any subdomain at any depth but not the apex itself).
+
+const ORIGIN_RE = /^(https?):\/\/(\*\.)?([a-z0-9-]+(?:\.[a-z0-9-]+)*|\[[0-9a-f:.]+\])(?::(\d{1,5}))?$/;
+
+/** Lower-cases and checks an allowed-origin entry; returns null when it is not an origin. */
+export function normalizeOrigin(text: string): string | null {
+  const t = text.trim().toLowerCase().replace(/\/$/, '');
+  const m = ORIGIN_RE.exec(t);
+  if (!m) return null;
+  const [, scheme, wildcard, host, port] = m;
+  if (port !== undefined && (Number(port) < 1 || Number(port) > 65535)) return null;
+  if (wildcard && (host ?? '').split('.').length < 2) return null; // no `https://*.org`
+  const defaultPort = scheme === 'https' ? '443' : '80';
+  return `${scheme}://${wildcard ?? ''}${host}${port && port !== defaultPort ? `:${port}` : ''}`;
+}
+
+/** Does `origin` (from the request's Origin header) match one of the key's origins? */
+export function originAllowed(allowed: readonly string[], origin: string): boolean {
+  const o = normalizeOrigin(origin);
+  if (!o || o.includes('*')) return false;
+  for (const entry of allowed) {
+    if (entry === o) return true;
+    const star = entry.indexOf('://*.');
+    if (star >= 0) {
+      const scheme = entry.slice(0, star);
+      const suffix = entry.slice(star + 4); // ".example.org[:port]"
+      if (o.startsWith(`${scheme}://`) && o.endsWith(suffix) && o.length > scheme.length + 3 + suffix.length) return true;
+    }
+  }
+  return false;
+}
+
+// ---------------------------------------------------------------------------------------------
+// Input validation (the console route and the seed share it).
+
+const originList = z
+  .array(z.string().max(300))
+  .max(MAX_ORIGINS)
+  .transform((list, ctx) => {
+    const out: string[] = [];
+    list.forEach((entry, i) => {
+      const n = normalizeOrigin(entry);
+      if (!n) {
+        ctx.addIssue({
+          code: 'custom',
+          path: [i],
+          message: `"${entry}" is not an origin: use scheme://host[:port], e.g. https://www.example.org or https://*.example.org`,
+        });
+      } else if (!out.includes(n)) out.push(n);
+    });
+    return out;
+  });
+
+export const keyInputSchema = z.object({
+  kind: z.enum(KEY_KINDS),
+  name: z.string().trim().min(1).max(200),
+  origins: originList.optional(),
+  scopes: z.array(z.enum(KEY_SCOPES)).max(KEY_SCOPES.length).optional(),
+  rateLimitPerMin: z.number().int().min(1).max(100_000).optional(),
+  expiresAt: z.coerce.date().nullable().optional(),
+});
+export const keyUpdateSchema = keyInputSchema.omit({ kind: true }).partial();
+
+export interface CreateKeyInput {
+  organizationId: string;
+  kind: KeyKind;
+  name: string;
+  origins?: string[] | undefined;
+  scopes?: KeyScope[] | undefined;
+  rateLimitPerMin?: number | undefined;
+  expiresAt?: Date | string | null | undefined;
+  createdByUserId?: string | null | undefined;
+}
+export type UpdateKeyInput = Partial<Pick<CreateKeyInput, 'name' | 'origins' | 'scopes' | 'rateLimitPerMin' | 'expiresAt'>>;
+
+function validationError(error: z.ZodError, what: string): HttpError {
+  return new HttpError('validation-failed', `The ${what} is not valid: ${error.issues.map((i) => `${i.path.join('.') || '(body)'}: ${i.message}`).join('; ')}`, {
+    errors: error.issues.map((i) => ({ where: i.path.join('.') || '(body)', field: String(i.path[0] ?? ''), message: i.message })),
+  });
+}
+
+/** Scope rules: every key reads; only server keys may write element sets. */
+function checkScopes(kind: KeyKind, scopes: KeyScope[]): KeyScope[] {
+  const set = new Set<KeyScope>(['read', ...scopes]);
+  if (kind === 'browser' && set.has('element-sets:write')) {
+    throw new HttpError('validation-failed', 'Browser keys are read-only: the element-sets:write scope needs a server key.', {
+      errors: [{ where: 'scopes', field: 'scopes', message: 'browser keys cannot carry element-sets:write' }],
+    });
+  }
+  return KEY_SCOPES.filter((s) => set.has(s));
+}
+
+function checkBrowserOrigins(kind: KeyKind, origins: string[]): void {
+  if (kind === 'browser' && origins.length === 0) {
+    throw new HttpError('validation-failed', 'A browser key needs at least one allowed origin (e.g. https://www.example.org).', {
+      errors: [{ where: 'origins', field: 'origins', message: 'at least one origin is required for a browser key' }],
+    });
+  }
+}
+
+export function toRecord(k: ApiKey): KeyRecord {
+  return {
+    id: k.id,
+    organizationId: k.organizationId,
+    kind: k.kind,
+    name: k.name,
+    hash: k.hash,
+    lastFour: k.lastFour,
+    origins: [...(k.origins ?? [])],
+    scopes: [...(k.scopes ?? [])],
+    rateLimitPerMin: k.rateLimitPerMin,
+    expiresAt: k.expiresAt ? new Date(k.expiresAt) : null,
+    revokedAt: k.revokedAt ? new Date(k.revokedAt) : null,
+    replacedById: k.replacedById,
+    graceUntil: k.graceUntil ? new Date(k.graceUntil) : null,
+    lastUsedAt: k.lastUsedAt ? new Date(k.lastUsedAt) : null,
+    createdByUserId: k.createdByUserId,
+    createdAt: new Date(k.createdAt),
+  };
+}
+
+type KeyLike = Pick<KeyRecord, 'revokedAt' | 'expiresAt' | 'replacedById' | 'graceUntil'>;
+
+/** State of a key at `now`. A rotated key past its grace period counts as expired. */
+export function keyState(key: KeyLike, now: Date = new Date()): KeyState {
+  const t = now.getTime();
+  if (key.revokedAt) return 'revoked';
+  if (key.replacedById) {
+    if (key.graceUntil && new Date(key.graceUntil).getTime() > t) {
+      return key.expiresAt && new Date(key.expiresAt).getTime() <= t ? 'expired' : 'grace';
+    }
+    return 'expired';
+  }
+  if (key.expiresAt && new Date(key.expiresAt).getTime() <= t) return 'expired';
+  return 'active';
+}
+
+/** Throws the problem a key in a non-working state answers with; returns when it works. */
+export function assertKeyWorks(key: KeyRecord, now: Date = new Date()): void {
+  const t = now.getTime();
+  if (key.revokedAt) {
+    throw new HttpError('key-revoked', `This key (…${key.lastFour}) was revoked on ${key.revokedAt.toISOString()}.`);
+  }
+  if (key.replacedById && (!key.graceUntil || key.graceUntil.getTime() <= t)) {
+    const when = key.graceUntil ?? key.revokedAt ?? key.createdAt;
+    throw new HttpError(
+      'key-rotated',
+      `This key (…${key.lastFour}) was replaced by a new key; its grace period ended and it stopped working on ${when.toISOString()}. Use the new key.`,
+      { stoppedAt: when.toISOString() },
+    );
+  }
+  if (key.expiresAt && key.expiresAt.getTime() <= t) {
+    throw new HttpError('key-expired', `This key (…${key.lastFour}) expired on ${key.expiresAt.toISOString()}.`, {
+      expiredAt: key.expiresAt.toISOString(),
+    });
+  }
+}
+
+const iso = (d: Date | null): string | null => (d ? new Date(d).toISOString() : null);
+
+interface CacheEntry {
+  record: KeyRecord | null;
+  at: number;
+}
+
+export class KeyService {
+  private readonly byHash = new Map<string, CacheEntry>();
+  private readonly byId = new Map<string, CacheEntry>();
+  /** lastUsedAt not yet written, by key id. */
+  private readonly pendingUse = new Map<string, Date>();
+  private timer: NodeJS.Timeout | undefined;
+
+  constructor(private readonly ctx: AppContext) {
+    this.timer = setInterval(() => void this.flushLastUsed(), ctx.config.USAGE_FLUSH_MS);
+    this.timer.unref();
+    ctx.onClose(async () => {
+      clearInterval(this.timer);
+      this.timer = undefined;
+      await this.flushLastUsed();
+    });
+  }
+
+  async createKey(input: CreateKeyInput): Promise<{ key: ApiKey; secret: string }> {
+    const parsed = keyInputSchema.safeParse({
+      kind: input.kind,
+      name: input.name,
+      origins: input.origins,
+      scopes: input.scopes,
+      rateLimitPerMin: input.rateLimitPerMin,
+      expiresAt: input.expiresAt,
+    });
+    if (!parsed.success) throw validationError(parsed.error, 'key');
+    const v = parsed.data;
+    const origins = v.origins ?? [];
+    checkBrowserOrigins(v.kind, origins);
+    const scopes = checkScopes(v.kind, v.scopes ?? ['read']);
+    let rate = v.rateLimitPerMin;
+    if (rate === undefined) {
+      const org = await Organization.findByPk(input.organizationId);
+      if (!org) throw new HttpError('not-found', `Organization ${input.organizationId} does not exist.`);
+      rate = planOf(org.plan).defaultRateLimitPerMin;
+    }
+    const secret = `${KEY_PREFIX[v.kind]}${nanoid(KEY_RANDOM_LENGTH)}`;
+    const key = await ApiKey.create({
+      id: `key_${nanoid(16)}`,
+      organizationId: input.organizationId,
+      kind: v.kind,
+      name: v.name,
+      hash: hashKeyText(secret),
+      lastFour: secret.slice(-4),
+      origins,
+      scopes,
+      rateLimitPerMin: rate,
+      expiresAt: v.expiresAt ?? null,
+      revokedAt: null,
+      replacedById: null,
+      graceUntil: null,
+      lastUsedAt: null,
+      createdByUserId: input.createdByUserId ?? null,
+    });
+    this.invalidate(key);
+    return { key, secret };
+  }
+
+  /** New secret with the same settings; the old key works until graceUntil (0 h = at once). */
+  async rotateKey(id: string, graceHours: number = DEFAULT_GRACE_HOURS, createdByUserId: string | null = null): Promise<{ key: ApiKey; secret: string; previous: ApiKey }> {
+    if (!Number.isFinite(graceHours) || graceHours < 0 || graceHours > MAX_GRACE_HOURS) {
+      throw new HttpError('validation-failed', `graceHours must be between 0 and ${MAX_GRACE_HOURS}.`, {
+        errors: [{ where: 'graceHours', field: 'graceHours', message: `between 0 and ${MAX_GRACE_HOURS}` }],
+      });
+    }
+    const old = await ApiKey.findByPk(id);
+    if (!old) throw new HttpError('not-found', `Key ${id} does not exist.`);
+    const state = keyState(old);
+    if (state === 'revoked') throw new HttpError('conflict', 'A revoked key cannot be rotated; create a new key instead.');
+    if (old.replacedById) throw new HttpError('conflict', `This key was already rotated; rotate its replacement (${old.replacedById}) instead.`);
+    if (state === 'expired') throw new HttpError('conflict', 'An expired key cannot be rotated; create a new key instead.');
+    const secret = `${KEY_PREFIX[old.kind]}${nanoid(KEY_RANDOM_LENGTH)}`;
+    const now = Date.now();
+    const key = await this.ctx.sequelize.transaction(async (transaction) => {
+      const created = await ApiKey.create(
+        {
+          id: `key_${nanoid(16)}`,
+          organizationId: old.organizationId,
+          kind: old.kind,
+          name: old.name,
+          hash: hashKeyText(secret),
+          lastFour: secret.slice(-4),
+          origins: [...old.origins],
+          scopes: [...old.scopes],
+          rateLimitPerMin: old.rateLimitPerMin,
+          expiresAt: old.expiresAt,
+          revokedAt: null,
+          replacedById: null,
+          graceUntil: null,
+          lastUsedAt: null,
+          createdByUserId: createdByUserId ?? old.createdByUserId,
+        },
+        { transaction },
+      );
+      await old.update({ replacedById: created.id, graceUntil: new Date(now + graceHours * 3_600_000) }, { transaction });
+      return created;
+    });
+    this.invalidate(old);
+    this.invalidate(key);
+    return { key, secret, previous: old };
+  }
+
+  async revokeKey(id: string): Promise<ApiKey> {
+    const key = await ApiKey.findByPk(id);
+    if (!key) throw new HttpError('not-found', `Key ${id} does not exist.`);
+    if (!key.revokedAt) await key.update({ revokedAt: new Date() });
+    this.invalidate(key);
+    return key;
+  }
+
+  async updateKey(id: string, input: UpdateKeyInput): Promise<ApiKey> {
+    const parsed = keyUpdateSchema.safeParse(input);
+    if (!parsed.success) throw validationError(parsed.error, 'key');
+    const key = await ApiKey.findByPk(id);
+    if (!key) throw new HttpError('not-found', `Key ${id} does not exist.`);
+    const v = parsed.data;
+    const patch: Partial<Pick<ApiKey, 'name' | 'origins' | 'scopes' | 'rateLimitPerMin' | 'expiresAt'>> = {};
+    if (v.name !== undefined) patch.name = v.name;
+    if (v.origins !== undefined) {
+      checkBrowserOrigins(key.kind, v.origins);
+      patch.origins = v.origins;
+    }
+    if (v.scopes !== undefined) patch.scopes = checkScopes(key.kind, v.scopes);
+    if (v.rateLimitPerMin !== undefined) patch.rateLimitPerMin = v.rateLimitPerMin;
+    if (v.expiresAt !== undefined) patch.expiresAt = v.expiresAt;
+    await key.update(patch);
+    this.invalidate(key);
+    return key;
+  }
+
+  /** Resolve a key text for a request (cached). Throws invalid-key / key-revoked / key-rotated / key-expired. */
+  async authenticate(text: string, now: Date = new Date()): Promise<KeyRecord> {
+    const kind = kindOfKeyText(text);
+    if (!kind || text.length > 100) {
+      throw new HttpError('invalid-key', 'The key is not a Nadirline key: keys start with nlb_ (browser) or nls_ (server).');
+    }
+    const hash = hashKeyText(text);
+    const record = await this.lookup(hash);
+    if (!record) throw new HttpError('invalid-key', `No key ending in …${text.slice(-4)} exists. Check that it was copied whole.`);
+    assertKeyWorks(record, now);
+    return record;
+  }
+
+  /** Record use of a key; written to lastUsedAt at the next flush. */
+  touch(keyId: string, at: Date = new Date()): void {
+    this.pendingUse.set(keyId, at);
+  }
+
+  async findById(id: string): Promise<KeyRecord | null> {
+    const hit = this.byId.get(id);
+    if (hit && Date.now() - hit.at < KEY_CACHE_TTL_MS) return hit.record;
+    const row = await ApiKey.findByPk(id);
+    const record = row ? toRecord(row) : null;
+    this.byId.set(id, { record, at: Date.now() });
+    if (record) this.byHash.set(record.hash, { record, at: Date.now() });
+    return record;
+  }
+
+  /** Drop cached entries of a key (after any change made outside this service). */
+  invalidate(key: { id: string; hash: string }): void {
+    this.byHash.delete(key.hash);
+    this.byId.delete(key.id);
+  }
+
+  serializeKey(key: ApiKey | KeyRecord, now: Date = new Date()): KeyJson {
+    return serializeKey(key, now, this.pendingUse.get(key.id));
+  }
+
+  async flushLastUsed(): Promise<void> {
+    if (this.pendingUse.size === 0) return;
+    const batch = [...this.pendingUse];
+    this.pendingUse.clear();
+    try {
+      for (const [id, at] of batch) {
+        await ApiKey.update({ lastUsedAt: at }, { where: { id }, silent: true });
+      }
+    } catch (err) {
+      for (const [id, at] of batch) if (!this.pendingUse.has(id)) this.pendingUse.set(id, at);
+      this.ctx.logger.error({ err }, 'could not write key lastUsedAt');
+    }
+  }
+
+  private async lookup(hash: string): Promise<KeyRecord | null> {
+    const hit = this.byHash.get(hash);
+    const ttl = hit?.record ? KEY_CACHE_TTL_MS : 5_000;
+    if (hit && Date.now() - hit.at < ttl) return hit.record;
+    const row = await ApiKey.findOne({ where: { hash } });
+    const record = row ? toRecord(row) : null;
+    if (this.byHash.size > 10_000) this.byHash.clear();
+    this.byHash.set(hash, { record, at: Date.now() });
+    if (record) this.byId.set(record.id, { record, at: Date.now() });
+    return record;
+  }
+}
+
+export function serializeKey(key: ApiKey | KeyRecord, now: Date = new Date(), pendingLastUsed?: Date): KeyJson {
+  const lastUsed = pendingLastUsed ?? (key.lastUsedAt ? new Date(key.lastUsedAt) : null);
+  return {
+    id: key.id,
+    kind: key.kind,
+    name: key.name,
+    lastFour: key.lastFour,
+    origins: [...key.origins],
+    scopes: [...key.scopes],
+    rateLimitPerMin: key.rateLimitPerMin,
+    expiresAt: iso(key.expiresAt),
+    revokedAt: iso(key.revokedAt),
+    replacedById: key.replacedById,
+    graceUntil: iso(key.graceUntil),
+    lastUsedAt: iso(lastUsed),
+    createdAt: new Date(key.createdAt).toISOString(),
+    state: keyState(key, now),
+  };
+}
+
+declare module '../context.ts' {
+  interface AppServices {
+    /** Set by getKeyService (app.ts calls it at start-up). */
+    keys?: KeyService;
+  }
+}
+
+/** The app's KeyService, created on first use. */
+export function getKeyService(ctx: AppContext): KeyService {
+  ctx.services.keys ??= new KeyService(ctx);
+  return ctx.services.keys;
+}

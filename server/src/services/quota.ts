@@ -1,0 +1,164 @@
+/**
+ * Plans and the monthly request quota.
+ *
+ * Exported API:
+ *   PLAN_CATALOG: [{ id, name, monthlyRequests, defaultRateLimitPerMin, priceMonthly }]
+ *   planOf(planId) -> PlanInfo                 (unknown ids fall back to Starter)
+ *   class QuotaService (ctx.services.quota):
+ *     usedThisMonth(orgId, now?) -> Promise<number>   (DB month total, cached, + this process's counts not in it)
+ *     check(orgId, now?) -> Promise<QuotaStatus>      (throws HttpError quota-exceeded when spent)
+ *     status(orgId, now?) -> Promise<QuotaStatus>     ({ plan, limit, usedThisMonth, resetsAt } for the console)
+ *     invalidatePlan(orgId)                           (call after a plan change)
+ *   monthStart(now) / nextMonthStart(now) -> Date (UTC)
+ *
+ * The month total comes from UsageDaily once per QUOTA_CACHE_TTL_MS per organization; what this
+ * process counted and had not flushed at that read is added from the usage recorder.
+ */
+import { Op } from 'sequelize';
+import type { AppContext } from '../context.ts';
+import { HttpError } from '../http/problem.ts';
+import { Organization, UsageDaily, type Plan } from '../models/index.ts';
+import { getUsageRecorder, type UsageRecorder } from './usage.ts';
+
+export interface PlanInfo {
+  id: Plan;
+  name: string;
+  /** Requests to /v1 per calendar month (UTC), all keys of the organization together. */
+  monthlyRequests: number;
+  /** Rate limit given to new keys when none is asked for, requests per minute per key. */
+  defaultRateLimitPerMin: number;
+  /** Price per month in euro (0 = free). */
+  priceMonthly: number;
+}
+
+/** Nadirline's plans (figures are Nadirline's own). */
+export const PLAN_CATALOG: readonly PlanInfo[] = [
+  { id: 'starter', name: 'Starter', monthlyRequests: 100_000, defaultRateLimitPerMin: 120, priceMonthly: 0 },
+  { id: 'mission', name: 'Mission', monthlyRequests: 2_000_000, defaultRateLimitPerMin: 600, priceMonthly: 39 },
+  { id: 'constellation', name: 'Constellation', monthlyRequests: 20_000_000, defaultRateLimitPerMin: 3_000, priceMonthly: 240 },
+];
+
+export function planOf(plan: string | null | undefined): PlanInfo {
+  return PLAN_CATALOG.find((p) => p.id === plan) ?? (PLAN_CATALOG[0] as PlanInfo);
+}
+
+export const QUOTA_CACHE_TTL_MS = 60_000;
+
+export function monthStart(now: Date): Date {
+  return new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth(), 1));
+}
+export function nextMonthStart(now: Date): Date {
+  return new Date(Date.UTC(now.getUTCFullYear(), now.getUTCMonth() + 1, 1));
+}
+/** YYYY-MM of a date, UTC. */
+export function monthKey(now: Date): string {
+  return now.toISOString().slice(0, 7);
+}
+
+export interface QuotaStatus {
+  plan: Plan;
+  limit: number;
+  usedThisMonth: number;
+  resetsAt: string;
+}
+
+interface MonthCache {
+  month: string;
+  dbTotal: number;
+  /** What this process had flushed for this org/month when dbTotal was read. */
+  flushedAtRead: number;
+  at: number;
+}
+
+export class QuotaService {
+  private readonly months = new Map<string, MonthCache>();
+  private readonly plans = new Map<string, { plan: Plan; at: number }>();
+  private readonly pendingReads = new Map<string, Promise<MonthCache>>();
+
+  constructor(
+    private readonly ctx: AppContext,
+    private readonly usage: UsageRecorder,
+  ) {}
+
+  async planFor(orgId: string): Promise<Plan> {
+    const hit = this.plans.get(orgId);
+    if (hit && Date.now() - hit.at < QUOTA_CACHE_TTL_MS) return hit.plan;
+    const org = await Organization.findByPk(orgId, { attributes: ['id', 'plan'] });
+    const plan = planOf(org?.plan).id;
+    this.plans.set(orgId, { plan, at: Date.now() });
+    return plan;
+  }
+
+  invalidatePlan(orgId: string): void {
+    this.plans.delete(orgId);
+    this.months.delete(orgId);
+  }
+
+  async usedThisMonth(orgId: string, now: Date = new Date()): Promise<number> {
+    const month = monthKey(now);
+    let c = this.months.get(orgId);
+    if (!c || c.month !== month || Date.now() - c.at >= QUOTA_CACHE_TTL_MS) {
+      c = await this.readMonth(orgId, now);
+    }
+    return c.dbTotal + this.usage.processCount(orgId, month) - c.flushedAtRead;
+  }
+
+  async status(orgId: string, now: Date = new Date()): Promise<QuotaStatus> {
+    const plan = planOf(await this.planFor(orgId));
+    return {
+      plan: plan.id,
+      limit: plan.monthlyRequests,
+      usedThisMonth: await this.usedThisMonth(orgId, now),
+      resetsAt: nextMonthStart(now).toISOString(),
+    };
+  }
+
+  /** Throws quota-exceeded when the organization has used its month; returns the status otherwise. */
+  async check(orgId: string, now: Date = new Date()): Promise<QuotaStatus> {
+    const s = await this.status(orgId, now);
+    if (s.usedThisMonth >= s.limit) {
+      const retryAfter = Math.max(1, Math.ceil((Date.parse(s.resetsAt) - now.getTime()) / 1000));
+      throw new HttpError(
+        'quota-exceeded',
+        `This organization has used all ${s.limit.toLocaleString('en')} requests of its ${planOf(s.plan).name} plan for this month. The quota resets on ${s.resetsAt}; a larger plan raises it at once.`,
+        { limit: s.limit, used: s.usedThisMonth, resetsAt: s.resetsAt, plan: s.plan },
+        { 'Retry-After': String(retryAfter) },
+      );
+    }
+    return s;
+  }
+
+  private readMonth(orgId: string, now: Date): Promise<MonthCache> {
+    const month = monthKey(now);
+    const key = `${orgId}\u0000${month}`;
+    let p = this.pendingReads.get(key);
+    if (!p) {
+      const from = monthStart(now).toISOString().slice(0, 10);
+      const to = new Date(nextMonthStart(now).getTime() - 1).toISOString().slice(0, 10);
+      p = (async () => {
+        const total = (await UsageDaily.sum('count', { where: { organizationId: orgId, day: { [Op.between]: [from, to] } } })) ?? 0;
+        // used = DB total at the read + everything this process counted - what it had flushed
+        // by then. A flush finishing during the read may be counted once too few or too many
+        // until the next read (QUOTA_CACHE_TTL_MS): good enough for a monthly quota.
+        const c: MonthCache = { month, dbTotal: Number(total), flushedAtRead: this.usage.flushedCount(orgId, month), at: Date.now() };
+        this.months.set(orgId, c);
+        return c;
+      })().finally(() => this.pendingReads.delete(key));
+      this.pendingReads.set(key, p);
+    }
+    return p;
+  }
+}
+
+declare module '../context.ts' {
+  interface AppServices {
+    /** Set by getQuotaService (app.ts calls it at start-up). */
+    quota?: QuotaService;
+  }
+}
+
+/** The app's QuotaService, created on first use. */
+export function getQuotaService(ctx: AppContext): QuotaService {
+  ctx.services.quota ??= new QuotaService(ctx, getUsageRecorder(ctx));
+  return ctx.services.quota;
+}
