@@ -94,6 +94,11 @@ export function propagateEci(
   }
   if (pv === null || satrec.error !== 0) {
     const known = SGP4_ERRORS[satrec.error];
+    // Long after re-entry SGP4 often trips over its eccentricity checks first; the drag factor
+    // (satellite.js's community decay check) tells the real story.
+    if (checkForDecay(satrec) && known?.code !== 'decayed') {
+      return fail('decayed', `the object has decayed (drag brought the orbit down; SGP4 error ${satrec.error}: ${known?.text ?? 'unknown'})`);
+    }
     if (known) return fail(known.code, `SGP4 error ${satrec.error}: ${known.text}`);
     return fail('non-finite', `SGP4 gave no position (error ${String(satrec.error)})`);
   }
