@@ -1,0 +1,182 @@
+/**
+ * The widget's only way out: GET requests to the Nadirline /v1 API with a browser key in `?key=`
+ * (a plain GET with no custom header needs no CORS preflight). Every failure becomes an
+ * `ApiProblem` value; nothing is thrown at the caller.
+ */
+import type { Sample } from './track.ts';
+
+/** Problem codes the widget knows words for; anything else is kept as received. */
+export type ProblemCode =
+  | 'invalid-key'
+  | 'origin-not-allowed'
+  | 'quota-exceeded'
+  | 'rate-limited'
+  | 'not-found'
+  | 'stale-element-set'
+  | 'decayed'
+  | 'network'
+  | 'bad-answer'
+  | 'no-satellites'
+  | (string & {});
+
+export interface ApiProblem {
+  ok: false;
+  code: ProblemCode;
+  status: number;
+  title: string;
+  detail: string;
+  /** Seconds to wait before asking again, from Retry-After, when the server sent one. */
+  retryAfterS?: number;
+}
+export type ApiResult<T> = { ok: true; value: T } | ApiProblem;
+
+export type FetchLike = (input: string, init?: { signal?: AbortSignal; headers?: Record<string, string> }) => Promise<Response>;
+
+/** Map an HTTP status to a problem code when the answer carries none (one table, no precedence traps). */
+const STATUS_CODES: Record<number, ProblemCode> = {
+  401: 'invalid-key',
+  403: 'origin-not-allowed',
+  404: 'not-found',
+  410: 'decayed',
+  429: 'rate-limited',
+};
+
+function parseRetryAfter(value: string | null, nowMs: number): number | undefined {
+  if (!value) return undefined;
+  const s = Number(value);
+  if (Number.isFinite(s)) return Math.max(0, s);
+  const at = Date.parse(value);
+  return Number.isNaN(at) ? undefined : Math.max(0, Math.round((at - nowMs) / 1000));
+}
+
+/** Turn a non-2xx answer into an ApiProblem, reading problem+json when present. */
+export async function problemFrom(res: Response, nowMs = Date.now()): Promise<ApiProblem> {
+  let body: Record<string, unknown> = {};
+  try {
+    const parsed: unknown = await res.json();
+    if (parsed && typeof parsed === 'object') body = parsed as Record<string, unknown>;
+  } catch {
+    // not JSON: keep the status alone
+  }
+  const str = (k: string) => (typeof body[k] === 'string' ? (body[k] as string) : '');
+  const code = str('code') || STATUS_CODES[res.status] || (res.status >= 500 ? 'server' : `http-${res.status}`);
+  const retryAfterS = parseRetryAfter(res.headers.get('retry-after'), nowMs);
+  return {
+    ok: false,
+    code,
+    status: res.status,
+    title: str('title') || res.statusText,
+    detail: str('detail'),
+    ...(retryAfterS === undefined ? {} : { retryAfterS }),
+  };
+}
+
+export interface SatelliteInfo {
+  id: string;
+  name: string;
+}
+export interface ElementsInfo {
+  epoch: string;
+  periodMin: number;
+  semiMajorAxisKm: number;
+  inclinationDeg: number;
+  ageDays: number;
+  stale: boolean;
+}
+export interface PassEvent {
+  t: string;
+  azimuth: number;
+}
+export interface Pass {
+  rise: PassEvent;
+  culmination: PassEvent & { elevation: number; rangeKm: number };
+  set: PassEvent;
+  visible: boolean;
+}
+export interface EmbedConfig {
+  id: string;
+  satellites: string[];
+  options: Partial<{
+    projection: string;
+    orbitsBehind: number;
+    orbitsAhead: number;
+    observer: string | { lat: number; lon: number; altM?: number } | null;
+    layers: string | string[];
+    theme: string;
+    timeZone: string;
+    locale: string;
+  }>;
+  apiKey?: string;
+}
+
+const iso = (ms: number) => new Date(ms).toISOString().replace('.000Z', 'Z');
+
+export class NadirApi {
+  constructor(
+    private readonly base: string,
+    private readonly key: string,
+    private readonly fetchImpl: FetchLike = (u, i) => fetch(u, i),
+  ) {}
+
+  /** Absolute URL of a /v1 path with its query, the browser key last. */
+  url(path: string, query: Record<string, string | number | undefined> = {}): string {
+    const u = new URL(path.replace(/^\//, ''), this.base.endsWith('/') ? this.base : `${this.base}/`);
+    for (const [k, v] of Object.entries(query)) if (v !== undefined) u.searchParams.set(k, String(v));
+    if (this.key) u.searchParams.set('key', this.key);
+    return u.toString();
+  }
+
+  async get<T>(path: string, query: Record<string, string | number | undefined> = {}, signal?: AbortSignal): Promise<ApiResult<T>> {
+    let res: Response;
+    try {
+      res = await this.fetchImpl(this.url(path, query), { signal, headers: { accept: 'application/json' } });
+    } catch (e) {
+      const aborted = (e as { name?: string } | null)?.name === 'AbortError';
+      return { ok: false, code: aborted ? 'aborted' : 'network', status: 0, title: aborted ? 'Aborted' : 'Network error', detail: '' };
+    }
+    if (!res.ok) return problemFrom(res);
+    try {
+      return { ok: true, value: (await res.json()) as T };
+    } catch {
+      return { ok: false, code: 'bad-answer', status: res.status, title: 'Unreadable answer', detail: '' };
+    }
+  }
+
+  satellite(id: string, signal?: AbortSignal) {
+    return this.get<Partial<SatelliteInfo>>(`v1/satellites/${encodeURIComponent(id)}`, {}, signal);
+  }
+  elements(id: string, signal?: AbortSignal) {
+    return this.get<ElementsInfo>(`v1/satellites/${encodeURIComponent(id)}/elements`, {}, signal);
+  }
+  async track(id: string, startMs: number, endMs: number, stepS: number, signal?: AbortSignal): Promise<ApiResult<Sample[]>> {
+    const r = await this.get<{ points?: { t: string; lat: number; lon: number; altKm: number; sunlit: boolean }[] }>(
+      `v1/satellites/${encodeURIComponent(id)}/track`,
+      { start: iso(startMs), end: iso(endMs), step: stepS },
+      signal,
+    );
+    if (!r.ok) return r;
+    if (!Array.isArray(r.value.points)) return { ok: false, code: 'bad-answer', status: 200, title: 'Unreadable answer', detail: '' };
+    return {
+      ok: true,
+      value: r.value.points.map((p) => ({ t: Date.parse(p.t), lat: p.lat, lon: p.lon, altKm: p.altKm, sunlit: p.sunlit })),
+    };
+  }
+  passes(id: string, obs: { lat: number; lon: number; altM: number }, startMs: number, days: number, signal?: AbortSignal) {
+    return this.get<{ passes: Pass[] }>(
+      `v1/satellites/${encodeURIComponent(id)}/passes`,
+      { lat: round2(obs.lat), lon: round2(obs.lon), altM: Math.round(obs.altM), start: iso(startMs), days, minElevation: 10 },
+      signal,
+    );
+  }
+  embed(id: string, signal?: AbortSignal) {
+    return this.get<EmbedConfig>(`v1/embeds/${encodeURIComponent(id)}`, {}, signal);
+  }
+}
+
+/**
+ * Observer coordinates rounded to 0.01 degree (about a kilometre): pass times move by well under a
+ * second, readers nearby share cached answers, and the exact place of the reader never leaves the page.
+ */
+function round2(x: number): number {
+  return Math.round(x * 100) / 100;
+}

@@ -1,0 +1,69 @@
+/**
+ * Files the widget loads beside its script: the world map (world-atlas countries-110m, which
+ * holds both the land and the named countries) and Work Sans. The build copies them to
+ * `assets/` with a content hash in the name (see vite.config.ts) and defines __NADIR_ASSETS__.
+ */
+import { feature } from 'topojson-client';
+import type { Topology, GeometryCollection } from 'topojson-specification';
+import type { Feature, FeatureCollection, Geometry, MultiPolygon, Polygon } from 'geojson';
+
+declare const __NADIR_ASSETS__: { world: string; fonts: Record<string, string> };
+
+/**
+ * URL of this script, read once while it runs: `document.currentScript` for the classic script,
+ * `import.meta.url` for the module.
+ */
+export const scriptUrl: string =
+  (typeof document !== 'undefined' && (document.currentScript as HTMLScriptElement | null)?.src) || import.meta.url ||
+  (typeof location === "undefined" ? "" : location.href);
+
+export function assetUrl(name: string, base = scriptUrl): string {
+  return new URL(name, base).toString();
+}
+
+/** The family name the widget registers; unique, so the host page's own fonts are never changed. */
+export const FONT_FAMILY = 'Nadirline Work Sans';
+
+/**
+ * Register Work Sans once for the whole document. A @font-face inside a shadow root is ignored by
+ * Chromium, so the face lives in one guarded <style> in the document head and the shadow root
+ * inherits the family.
+ */
+export function registerFont(doc: Document = document, base = scriptUrl): void {
+  if (doc.getElementById('nadir-track-font')) return;
+  const style = doc.createElement('style');
+  style.id = 'nadir-track-font';
+  style.textContent = Object.entries(__NADIR_ASSETS__.fonts)
+    .map(
+      ([weight, file]) =>
+        `@font-face{font-family:"${FONT_FAMILY}";font-style:normal;font-weight:${weight};font-display:swap;src:url("${assetUrl(file, base)}") format("woff2")}`,
+    )
+    .join('\n');
+  doc.head.append(style);
+}
+
+export interface World {
+  land: Feature<Polygon | MultiPolygon> | FeatureCollection<Polygon | MultiPolygon>;
+  countries: Feature<Geometry, { name?: string }>[];
+}
+
+let worldPromise: Promise<World | null> | undefined;
+
+/** Load the world map once per page; null (never a throw) when it cannot be had. */
+export function loadWorld(base = scriptUrl, fetchImpl: typeof fetch = (u) => fetch(u)): Promise<World | null> {
+  worldPromise ??= fetchImpl(assetUrl(__NADIR_ASSETS__.world, base))
+    .then((r) => (r.ok ? (r.json() as Promise<Topology>) : null))
+    .then((topo) => {
+      if (!topo) return null;
+      const land = feature(topo, topo.objects.land as GeometryCollection) as World['land'];
+      const countries = (feature(topo, topo.objects.countries as GeometryCollection) as FeatureCollection<Geometry, { name?: string }>).features;
+      return { land, countries };
+    })
+    .catch(() => null);
+  const p = worldPromise;
+  // a failed load may be retried by a later call
+  void p.then((w) => {
+    if (!w && worldPromise === p) worldPromise = undefined;
+  });
+  return p;
+}

@@ -1,0 +1,108 @@
+/** Words and times for people: compass directions, latitudes, pass rows, ages. */
+import type { Pass } from './api.ts';
+
+const COMPASS = ['north', 'north-east', 'east', 'south-east', 'south', 'south-west', 'west', 'north-west'] as const;
+
+/** Azimuth in degrees (0 north, 90 east) as one of eight compass words. */
+export function compassWord(azimuthDeg: number): string {
+  const i = Math.round((((azimuthDeg % 360) + 360) % 360) / 45) % 8;
+  return COMPASS[i]!;
+}
+
+/** "51.6 degrees south" style latitude, and the same for longitude. */
+export function latWords(lat: number): string {
+  const a = Math.abs(lat).toFixed(1);
+  return a === '0.0' ? 'the equator' : `${a} degrees ${lat >= 0 ? 'north' : 'south'}`;
+}
+export function lonWords(lon: number): string {
+  const a = Math.abs(lon).toFixed(1);
+  return a === '0.0' || a === '180.0' ? `${a} degrees` : `${a} degrees ${lon >= 0 ? 'east' : 'west'}`;
+}
+
+/** Short coordinates for the panel: 51.6° S, 20.3° W. */
+export function latLonShort(lat: number, lon: number): string {
+  return `${Math.abs(lat).toFixed(1)}° ${lat >= 0 ? 'N' : 'S'}, ${Math.abs(lon).toFixed(1)}° ${lon >= 0 ? 'E' : 'W'}`;
+}
+
+export interface ClockOptions {
+  timeZone?: string | undefined;
+  locale?: string | undefined;
+}
+
+/** A time-of-day formatter in the reader's (or the configured) zone and locale; falls back safely. */
+export function clock(opts: ClockOptions, withDay = false): Intl.DateTimeFormat {
+  const o: Intl.DateTimeFormatOptions = { hour: '2-digit', minute: '2-digit', ...(withDay ? { weekday: 'short' } : {}) };
+  try {
+    return new Intl.DateTimeFormat(opts.locale || undefined, { ...o, timeZone: opts.timeZone || undefined });
+  } catch {
+    return new Intl.DateTimeFormat(undefined, o); // unknown zone or locale: the reader's own
+  }
+}
+
+/** Calendar day key (YYYY-MM-DD) of a time in a zone, to tell "today" from other days. */
+function dayKey(ms: number, timeZone: string | undefined): string {
+  try {
+    return new Intl.DateTimeFormat('en-CA', { timeZone: timeZone || undefined, year: 'numeric', month: '2-digit', day: '2-digit' }).format(ms);
+  } catch {
+    return new Intl.DateTimeFormat('en-CA', { year: 'numeric', month: '2-digit', day: '2-digit' }).format(ms);
+  }
+}
+
+export interface PassRow {
+  key: string;
+  /** Day label when the pass is not today in the zone, e.g. "Tue"; empty for today. */
+  day: string;
+  rise: string;
+  riseDir: string;
+  highest: string;
+  highestDir: string;
+  elevation: string;
+  set: string;
+  setDir: string;
+  visible: boolean;
+  /** One sentence for screen readers and the live region. */
+  sentence: string;
+}
+
+/** Format one pass for the list, in the given zone and locale. */
+export function passRow(p: Pass, nowMs: number, opts: ClockOptions): PassRow {
+  const fmt = clock(opts);
+  const dayFmt = (() => {
+    try {
+      return new Intl.DateTimeFormat(opts.locale || undefined, { weekday: 'short', timeZone: opts.timeZone || undefined });
+    } catch {
+      return new Intl.DateTimeFormat(undefined, { weekday: 'short' });
+    }
+  })();
+  const rise = Date.parse(p.rise.t);
+  const top = Date.parse(p.culmination.t);
+  const set = Date.parse(p.set.t);
+  const day = dayKey(rise, opts.timeZone) === dayKey(nowMs, opts.timeZone) ? '' : dayFmt.format(rise);
+  const row = {
+    key: p.rise.t,
+    day,
+    rise: fmt.format(rise),
+    riseDir: compassWord(p.rise.azimuth),
+    highest: fmt.format(top),
+    highestDir: compassWord(p.culmination.azimuth),
+    elevation: `${Math.round(p.culmination.elevation)}°`,
+    set: fmt.format(set),
+    setDir: compassWord(p.set.azimuth),
+    visible: p.visible,
+  };
+  const sentence =
+    `${day ? `${day} ` : ''}rises at ${row.rise} in the ${row.riseDir}, highest at ${row.highest}, ` +
+    `${Math.round(p.culmination.elevation)} degrees up in the ${row.highestDir}, sets at ${row.set} in the ${row.setDir}` +
+    (p.visible ? ', visible to the eye' : ', not visible to the eye');
+  return { ...row, sentence };
+}
+
+/** "3.2 days" / "5 hours" for element-set ages. */
+export function ageWords(ageDays: number): string {
+  if (ageDays < 1) {
+    const h = Math.max(1, Math.round(ageDays * 24));
+    return `${h} hour${h === 1 ? '' : 's'}`;
+  }
+  const d = ageDays < 10 ? ageDays.toFixed(1) : String(Math.round(ageDays));
+  return `${d} days`;
+}

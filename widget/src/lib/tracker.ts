@@ -1,0 +1,356 @@
+/**
+ * The widget's data side, without any DOM: it settles the configuration (from attributes or a
+ * saved embed), fetches satellite metadata, track windows and passes from /v1, keeps them while
+ * the network is down, retries with backoff, and stops all network activity while paused.
+ * Vue reactivity carries the state to the components; sample arrays are kept raw for speed.
+ */
+import { markRaw, reactive } from 'vue';
+import { NadirApi, type ApiProblem, type ElementsInfo, type EmbedConfig, type FetchLike, type Pass } from './api.ts';
+import { settle, type Observer, type RawOptions, type Settings } from './config.ts';
+import { noticeFor, type Notice } from './messages.ts';
+import { mergeSamples, planWindows, type Sample, type WindowPlan } from './track.ts';
+
+export interface SatState {
+  id: string;
+  name: string;
+  /** 1-based colour slot (--nadir-series-N). */
+  slot: number;
+  elements: ElementsInfo | null;
+  /** Merged, time-sorted samples of all windows held (raw, not reactive inside). */
+  samples: Sample[];
+  plan: WindowPlan | null;
+  passes: Pass[] | null;
+  /** A problem that concerns only this satellite (not found, stale, decayed). */
+  notice: Notice | null;
+  /** Gone for good (not found, decayed): no more requests for it. */
+  dead: boolean;
+}
+
+export interface TrackerState {
+  phase: 'config' | 'loading' | 'ready';
+  settings: Settings;
+  sats: SatState[];
+  /** A problem that stops the whole map (bad key, origin, quota, no satellites). */
+  fatal: Notice | null;
+  /** A passing problem (network, rate limit): data is kept and marked out of date. */
+  transient: Notice | null;
+  /** When the last full round of requests succeeded (Unix ms). */
+  lastOkMs: number | null;
+  observer: Observer | null;
+  /** The saved embed, once loaded (raw). */
+  embed: EmbedConfig | null;
+}
+
+export type TrackerEvent =
+  | { type: 'load'; detail: LoadDetail }
+  | { type: 'error'; detail: ErrorDetail };
+
+export interface LoadDetail {
+  satellites: { id: string; name: string; epoch: string | null; ageDays: number | null; stale: boolean }[];
+  embed: string | null;
+}
+export interface ErrorDetail {
+  code: string;
+  status: number;
+  /** Words the element shows. */
+  message: string;
+  heading: string;
+  /** Satellite id when the problem concerns one. */
+  satellite: string | null;
+  fatal: boolean;
+  /** Milliseconds until the next try, when the widget retries by itself. */
+  retryMs: number | null;
+}
+
+export interface TrackerOptions {
+  apiBase: string;
+  apiKey: string;
+  embedId?: string | undefined;
+  attrs: RawOptions;
+  fetch?: FetchLike;
+  now?: () => number;
+  origin?: string;
+  /** Formats the time of the last good data for messages. */
+  formatTime?: (ms: number) => string;
+  onEvent?: (e: TrackerEvent) => void;
+}
+
+const REFRESH_MS = 30_000;
+const PASS_ALIGN_MS = 6 * 3600_000;
+const PASS_DAYS = 2;
+const FALLBACK_PERIOD_MIN = 95;
+const FATAL = new Set(['invalid-key', 'origin-not-allowed', 'quota-exceeded']);
+const GONE = new Set(['not-found', 'decayed']);
+
+export class Tracker {
+  readonly state: TrackerState;
+  private api: NadirApi;
+  private readonly now: () => number;
+  private timer: ReturnType<typeof setTimeout> | undefined;
+  private abort: AbortController | undefined;
+  private running = false;
+  private generation = 0;
+  private attempt = 0;
+  private loadedOnce = false;
+  private embed: EmbedConfig | null = null;
+  private lastErrorKey = '';
+  private readonly windows = new Map<string, Map<number, Sample[]>>();
+  private readonly passKey = new Map<string, string>();
+
+  constructor(private readonly opts: TrackerOptions) {
+    this.now = opts.now ?? Date.now;
+    this.api = new NadirApi(opts.apiBase, opts.apiKey, opts.fetch);
+    const settings = settle(opts.attrs);
+    this.state = reactive({
+      phase: opts.embedId ? 'config' : 'loading',
+      settings,
+      sats: [],
+      fatal: null,
+      transient: null,
+      lastOkMs: null,
+      observer: settings.observer === 'auto' ? null : settings.observer,
+      embed: null,
+    }) as TrackerState;
+    if (!opts.embedId) this.useSettings(settings);
+  }
+
+  get isRunning(): boolean {
+    return this.running;
+  }
+
+  /** Start or continue: fetch what is missing now, then keep it fresh. */
+  resume(): void {
+    if (this.running) return;
+    this.running = true;
+    void this.cycle();
+  }
+
+  /** Stop every timer and request until resume(). Data already held stays. */
+  pause(): void {
+    this.running = false;
+    this.generation++;
+    clearTimeout(this.timer);
+    this.timer = undefined;
+    this.abort?.abort();
+    this.abort = undefined;
+  }
+
+  dispose(): void {
+    this.pause();
+  }
+
+  /** Set (or clear) the observer, e.g. after the reader agreed to share a location. */
+  setObserver(obs: Observer | null): void {
+    this.state.observer = obs;
+    this.passKey.clear();
+    for (const s of this.state.sats) s.passes = null;
+    if (this.running) {
+      this.pause();
+      this.resume();
+    }
+  }
+
+  private useSettings(settings: Settings): void {
+    this.state.settings = settings;
+    if (settings.observer !== 'auto' && settings.observer) this.state.observer = settings.observer;
+    this.state.sats = settings.satellites.map((id, i) => ({
+      id,
+      name: id,
+      slot: (i % 6) + 1,
+      elements: null,
+      samples: markRaw([]),
+      plan: null,
+      passes: null,
+      notice: null,
+      dead: false,
+    }));
+    if (settings.satellites.length === 0) this.setFatal(noticeFor({ code: 'no-satellites', status: 0 }));
+  }
+
+  private async cycle(): Promise<void> {
+    const gen = ++this.generation;
+    clearTimeout(this.timer);
+    this.abort?.abort();
+    const abort = new AbortController();
+    this.abort = abort;
+    let next: number | undefined;
+    try {
+      next = await this.round(abort.signal);
+    } catch (e) {
+      // a bug of ours must still show words, never a blank box
+      next = this.transientProblem({ ok: false, code: 'widget', status: 0, title: String(e), detail: '' });
+    }
+    if (!this.running || gen !== this.generation) return;
+    if (next !== undefined) this.timer = setTimeout(() => void this.cycle(), next);
+  }
+
+  /** One round of requests. Returns when to run the next one (undefined: not by itself). */
+  private async round(signal: AbortSignal): Promise<number | undefined> {
+    if (this.state.fatal && !this.state.fatal.retryMs) return undefined;
+    if (this.state.phase === 'config') {
+      const r = await this.api.embed(this.opts.embedId!, signal);
+      if (signal.aborted) return undefined;
+      if (!r.ok) return this.problem(r, null) ?? undefined;
+      this.embed = r.value;
+      this.state.embed = markRaw(r.value);
+      if (r.value.apiKey && !this.opts.apiKey) this.api = new NadirApi(this.opts.apiBase, r.value.apiKey, this.opts.fetch);
+      this.useSettings(settle(this.opts.attrs, r.value));
+      this.state.phase = 'loading';
+      if (this.state.fatal) return undefined;
+    }
+    this.state.fatal = null;
+
+    // metadata of satellites not yet known
+    for (const sat of this.state.sats) {
+      if (sat.dead || sat.elements) continue;
+      const [meta, el] = await Promise.all([this.api.satellite(sat.id, signal), this.api.elements(sat.id, signal)]);
+      if (signal.aborted) return undefined;
+      if (meta.ok && typeof meta.value.name === 'string' && meta.value.name) sat.name = meta.value.name;
+      const bad = !meta.ok ? meta : !el.ok ? el : null;
+      if (bad) {
+        const stop = this.problem(bad, sat);
+        if (stop !== null) return stop;
+        continue;
+      }
+      if (!el.ok) continue;
+      sat.elements = el.value;
+      sat.notice = el.value.stale
+        ? noticeFor({ code: 'stale-element-set', status: 200 }, { satellite: sat.name, ageDays: el.value.ageDays })
+        : null;
+    }
+
+    // track windows
+    const now = this.now();
+    for (const sat of this.state.sats) {
+      if (sat.dead || !sat.elements) continue;
+      const s = this.state.settings;
+      const plan = planWindows(now, sat.elements.periodMin || FALLBACK_PERIOD_MIN, s.orbitsBehind, s.orbitsAhead);
+      let held = this.windows.get(sat.id);
+      if (!held || (sat.plan && sat.plan.spanMs !== plan.spanMs)) {
+        held = new Map();
+        this.windows.set(sat.id, held);
+      }
+      for (const start of plan.starts) {
+        if (held.has(start)) continue;
+        const r = await this.api.track(sat.id, start, start + plan.spanMs, plan.stepS, signal);
+        if (signal.aborted) return undefined;
+        if (!r.ok) {
+          const stop = this.problem(r, sat);
+          if (stop !== null) return stop;
+          break;
+        }
+        held.set(start, r.value);
+      }
+      for (const start of [...held.keys()]) if (!plan.starts.includes(start)) held.delete(start);
+      sat.plan = plan;
+      sat.samples = markRaw(mergeSamples([...held.values()]));
+    }
+
+    // passes over the observer
+    const obs = this.state.observer;
+    if (obs && this.state.settings.layers.has('passes')) {
+      const start = Math.floor(now / PASS_ALIGN_MS) * PASS_ALIGN_MS;
+      const key = `${obs.lat},${obs.lon},${obs.altM},${start}`;
+      for (const sat of this.state.sats) {
+        if (sat.dead || !sat.elements || this.passKey.get(sat.id) === key) continue;
+        const r = await this.api.passes(sat.id, obs, start, PASS_DAYS, signal);
+        if (signal.aborted) return undefined;
+        if (!r.ok) {
+          const stop = this.problem(r, sat);
+          if (stop !== null) return stop;
+          continue;
+        }
+        sat.passes = Array.isArray(r.value.passes) ? r.value.passes : [];
+        this.passKey.set(sat.id, key);
+      }
+    }
+
+    this.attempt = 0;
+    this.state.transient = null;
+    this.lastErrorKey = '';
+    this.state.lastOkMs = now;
+    this.state.phase = 'ready';
+    if (!this.loadedOnce) {
+      this.loadedOnce = true;
+      this.emit({
+        type: 'load',
+        detail: {
+          satellites: this.state.sats.map((s) => ({
+            id: s.id,
+            name: s.name,
+            epoch: s.elements?.epoch ?? null,
+            ageDays: s.elements?.ageDays ?? null,
+            stale: s.elements?.stale ?? false,
+          })),
+          embed: this.embed?.id ?? this.opts.embedId ?? null,
+        },
+      });
+    }
+    const liveSats = this.state.sats.filter((s) => !s.dead);
+    if (this.state.sats.length > 0 && liveSats.length === 0) return undefined;
+    return REFRESH_MS;
+  }
+
+  /**
+   * Handle a failed request. Returns null to carry on with other work, otherwise the delay
+   * before the next round (or undefined to stop asking).
+   */
+  private problem(p: ApiProblem, sat: SatState | null): number | undefined | null {
+    if (p.code === 'aborted') return undefined;
+    if (FATAL.has(p.code)) {
+      const n = noticeFor(p, { origin: this.opts.origin });
+      this.setFatal(n);
+      return n.retryMs;
+    }
+    if (sat && GONE.has(p.code)) {
+      sat.dead = true;
+      sat.notice = noticeFor(p, { satellite: sat.name, ageDays: sat.elements?.ageDays });
+      this.report(sat.notice, p, sat.id);
+      return null;
+    }
+    if (sat && p.code === 'stale-element-set') {
+      sat.notice = noticeFor(p, { satellite: sat.name, ageDays: sat.elements?.ageDays });
+      this.report(sat.notice, p, sat.id);
+      return null;
+    }
+    if (!sat && GONE.has(p.code)) {
+      // the embed itself is missing
+      this.setFatal({ ...noticeFor(p), heading: 'Map not found', text: 'This saved map no longer exists. The site owner can choose another embed in the Nadirline console.' }, p);
+      return undefined;
+    }
+    return this.transientProblem(p, sat?.id ?? null);
+  }
+
+  private transientProblem(p: ApiProblem, satId: string | null = null): number {
+    this.attempt++;
+    const fmt = this.opts.formatTime;
+    const n = noticeFor(p, {
+      attempt: this.attempt,
+      dataTime: this.state.lastOkMs !== null && fmt ? fmt(this.state.lastOkMs) : undefined,
+    });
+    this.state.transient = n;
+    this.report(n, p, satId);
+    return n.retryMs ?? REFRESH_MS;
+  }
+
+  private setFatal(n: Notice, p?: Pick<ApiProblem, 'code' | 'status'>): void {
+    this.state.fatal = n;
+    this.state.phase = this.state.phase === 'config' ? 'config' : 'ready';
+    this.report(n, p ?? { code: n.code, status: 0 }, null);
+  }
+
+  /** One nadir-error per distinct problem, not one per retry. */
+  private report(n: Notice, p: Pick<ApiProblem, 'code' | 'status'>, satId: string | null): void {
+    const key = `${n.code}|${satId ?? ''}`;
+    if (key === this.lastErrorKey) return;
+    this.lastErrorKey = key;
+    this.emit({
+      type: 'error',
+      detail: { code: n.code, status: p.status, message: n.text, heading: n.heading, satellite: satId, fatal: n.fatal, retryMs: n.retryMs ?? null },
+    });
+  }
+
+  private emit(e: TrackerEvent): void {
+    this.opts.onEvent?.(e);
+  }
+}

@@ -1,0 +1,63 @@
+import { createHash } from 'node:crypto';
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
+import { defineConfig, type Plugin } from 'vite';
+import vue from '@vitejs/plugin-vue';
+
+const require = createRequire(import.meta.url);
+
+/** Files served beside the script, with a content hash in their names so they can be cached for a year. */
+const ASSETS = [
+  { key: 'world', src: 'world-atlas/countries-110m.json', name: 'countries-110m', ext: 'json' },
+  { key: '400', src: '@fontsource/work-sans/files/work-sans-latin-400-normal.woff2', name: 'work-sans-latin-400', ext: 'woff2' },
+  { key: '600', src: '@fontsource/work-sans/files/work-sans-latin-600-normal.woff2', name: 'work-sans-latin-600', ext: 'woff2' },
+] as const;
+
+function hashedAssets(): { files: { fileName: string; source: Buffer }[]; define: { world: string; fonts: Record<string, string> } } {
+  const files = ASSETS.map((a) => {
+    const source = readFileSync(require.resolve(a.src));
+    const hash = createHash('sha256').update(source).digest('hex').slice(0, 10);
+    return { key: a.key, fileName: `assets/${a.name}.${hash}.${a.ext}`, source };
+  });
+  const world = files.find((f) => f.key === 'world')!.fileName;
+  const fonts = Object.fromEntries(files.filter((f) => f.key !== 'world').map((f) => [f.key, f.fileName]));
+  return { files, define: { world, fonts } };
+}
+
+/** Emits the map and font files and tells the code their names through __NADIR_ASSETS__. */
+function nadirAssets(): Plugin {
+  const { files, define } = hashedAssets();
+  return {
+    name: 'nadir-assets',
+    config: () => ({ define: { __NADIR_ASSETS__: JSON.stringify(define) } }),
+    generateBundle() {
+      for (const f of files) this.emitFile({ type: 'asset', fileName: f.fileName, source: f.source });
+    },
+  };
+}
+
+export default defineConfig({
+  plugins: [vue({ features: { customElement: /\.ce\.vue$/ } }), nadirAssets()],
+  // stack.md: library mode keeps process.env in the classic script unless it is defined
+  define: {
+    'process.env.NODE_ENV': JSON.stringify('production'),
+    __VUE_OPTIONS_API__: 'false',
+    __VUE_PROD_DEVTOOLS__: 'false',
+    __VUE_PROD_HYDRATION_MISMATCH_DETAILS__: 'false',
+  },
+  build: {
+    target: 'es2020',
+    outDir: 'dist',
+    emptyOutDir: true,
+    copyPublicDir: false,
+    reportCompressedSize: true,
+    // the ES module is a finished script for pages, not a library to bundle again: minify it fully
+    rolldownOptions: { output: { minify: true, comments: { annotation: false, legal: false, jsdoc: false } } },
+    lib: {
+      entry: 'src/auto.ts',
+      name: 'NadirTrack',
+      formats: ['es', 'iife'],
+      fileName: (format) => (format === 'es' ? 'nadir-track.js' : `nadir-track.${format}.js`),
+    },
+  },
+});
