@@ -60,6 +60,7 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   });
   app.use('/v1', await createV1Router(context));
   app.use('/api', await createApiRouter(context));
+  if (!config.isProduction) app.use('/dev', await (await import('./routes/dev.ts')).createDevRouter(context));
   app.use(await createSiteRouter(context));
 
   app.use(notFoundHandler);

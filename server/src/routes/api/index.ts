@@ -1,8 +1,38 @@
-/** The console's own API, /api, behind a session cookie. */
-import { Router } from 'express';
+/**
+ * The console's own API, /api, behind a session cookie (contract: docs/console-api.md).
+ * Order: security headers, no-store, session, CSRF check (non-GET), JSON body, then each route
+ * as requireRole(action) + handlers. Route lists live beside their handlers (account.ts, orgs.ts, ...).
+ */
+import express, { Router } from 'express';
 import type { AppContext } from '../../context.ts';
+import { csrfProtection } from '../../http/csrf.ts';
+import { requireRole } from '../../http/roles.ts';
+import { securityHeaders } from '../../http/security.ts';
+import { createSessionMiddleware } from '../../http/session.ts';
+import { getMailService } from '../../services/mail.ts';
+import { accountRoutes } from './account.ts';
+import { orgRoutes } from './orgs.ts';
+import type { ApiRoute } from './routes.ts';
 
-export async function createApiRouter(_ctx: AppContext): Promise<Router> {
+/** Every /api route with its action, in mounting order. */
+export function buildApiRoutes(ctx: AppContext): ApiRoute[] {
+  return [...accountRoutes(ctx).list, ...orgRoutes(ctx).list];
+}
+
+export async function createApiRouter(ctx: AppContext): Promise<Router> {
+  // Start the mail service (and the fake SMTP server when SMTP_URL is unset) with the app.
+  await getMailService(ctx);
   const router = Router();
+  router.use(securityHeaders(ctx.config, 'api'));
+  router.use((_req, res, next) => {
+    res.set('Cache-Control', 'no-store');
+    next();
+  });
+  router.use(createSessionMiddleware(ctx));
+  router.use(csrfProtection);
+  router.use(express.json({ limit: '2mb' }));
+  for (const route of buildApiRoutes(ctx)) {
+    router[route.method](route.path, requireRole(route.action), ...route.handlers);
+  }
   return router;
 }

@@ -1,0 +1,92 @@
+/**
+ * Server-side sessions for /api: express-session with connect-session-sequelize on the `Sessions`
+ * table (created by migration 0001; the store is never synced). Cookie `nadir.sid`: httpOnly,
+ * SameSite=Lax, Secure in production, rolling 14 days.
+ *
+ *   createSessionMiddleware(ctx)      the middleware (one store per app; stopped on close)
+ *   currentUser(req, res)             the signed-in User or null (cached per request)
+ *   signIn(req, userId) / signOut(req, res)
+ *   destroyUserSessions(userId, exceptSid?)  sign a user out everywhere (after a password reset)
+ */
+import type { Request, RequestHandler, Response } from 'express';
+import session from 'express-session';
+import connectSessionSequelize from 'connect-session-sequelize';
+import { Op } from 'sequelize';
+import type { AppContext } from '../context.ts';
+import { User } from '../models/index.ts';
+
+declare module 'express-session' {
+  interface SessionData {
+    userId?: string;
+    csrfToken?: string;
+  }
+}
+
+export const SESSION_COOKIE = 'nadir.sid';
+export const SESSION_MAX_AGE_MS = 14 * 24 * 3600 * 1000;
+
+/** Model name the store registers on the Sequelize instance. */
+export const SESSION_MODEL = 'Session';
+
+export function createSessionMiddleware(ctx: AppContext): RequestHandler {
+  const SequelizeStore = connectSessionSequelize(session.Store);
+  const store = new SequelizeStore({
+    db: ctx.sequelize,
+    tableName: 'Sessions',
+    modelKey: SESSION_MODEL,
+    checkExpirationInterval: 15 * 60 * 1000,
+    expiration: SESSION_MAX_AGE_MS,
+  });
+  ctx.onClose(() => store.stopExpiringSessions());
+  return session({
+    name: SESSION_COOKIE,
+    secret: ctx.config.sessionSecret,
+    store,
+    resave: false,
+    saveUninitialized: false,
+    rolling: true,
+    cookie: {
+      httpOnly: true,
+      sameSite: 'lax',
+      secure: ctx.config.isProduction,
+      maxAge: SESSION_MAX_AGE_MS,
+      path: '/',
+    },
+  });
+}
+
+/** The signed-in user, or null. A session whose user is gone counts as signed out. */
+export async function currentUser(req: Request, res: Response): Promise<User | null> {
+  if (res.locals['user'] !== undefined) return res.locals['user'] as User | null;
+  const userId = req.session?.userId;
+  const user = userId ? await User.findByPk(userId) : null;
+  res.locals['user'] = user;
+  return user;
+}
+
+function promisified(fn: (cb: (err?: unknown) => void) => void): Promise<void> {
+  return new Promise((resolve, reject) => fn((err) => (err ? reject(err instanceof Error ? err : new Error(String(err))) : resolve())));
+}
+
+/** New session id on sign-in (no fixation), bound to the user. The caller sets a fresh CSRF token. */
+export async function signIn(req: Request, res: Response, user: User): Promise<void> {
+  await promisified((cb) => req.session.regenerate(cb));
+  req.session.userId = user.id;
+  res.locals['user'] = user;
+}
+
+export async function signOut(req: Request, res: Response): Promise<void> {
+  if (req.session) await promisified((cb) => req.session.destroy(cb));
+  res.locals['user'] = null;
+  res.clearCookie(SESSION_COOKIE, { path: '/', httpOnly: true, sameSite: 'lax', secure: req.secure });
+}
+
+/** Removes every stored session of a user (except one), e.g. after a password reset. */
+export async function destroyUserSessions(ctx: AppContext, userId: string, exceptSid?: string): Promise<number> {
+  const model = ctx.sequelize.models[SESSION_MODEL];
+  if (!model) return 0;
+  // The session data is JSON text; match the serialized field (LIKE is portable SQL).
+  const where: Record<string | symbol, unknown> = { data: { [Op.like]: `%"userId":"${userId.replace(/[%_"\\]/g, '')}"%` } };
+  if (exceptSid) where['sid'] = { [Op.ne]: exceptSid };
+  return model.destroy({ where });
+}

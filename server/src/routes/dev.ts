@@ -1,0 +1,71 @@
+/**
+ * Development-only routes (absent in production): the mailbox of the built-in fake SMTP server.
+ *   GET /dev/mailbox       an HTML page listing every kept message, newest first
+ *   GET /dev/mailbox.json  { messages: [{ id, to, from, subject, text, html, links, receivedAt }] } oldest first
+ *   DELETE /dev/mailbox    empties the mailbox (204), handy between manual tries
+ * app.ts mounts it at /dev only when NODE_ENV is not production.
+ */
+import { Router } from 'express';
+import type { AppContext } from '../context.ts';
+import { HttpError } from '../http/problem.ts';
+import { securityHeaders } from '../http/security.ts';
+import { getMailService, type KeptMessage } from '../services/mail.ts';
+
+function esc(s: string): string {
+  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c);
+}
+
+function page(messages: KeptMessage[]): string {
+  const items = [...messages]
+    .reverse()
+    .map(
+      (m) => `<article>
+  <h2>${esc(m.subject || '(no subject)')}</h2>
+  <p class="meta">To ${esc(m.to)} · from ${esc(m.from)} · <time datetime="${esc(m.receivedAt)}">${esc(m.receivedAt)}</time> · #${m.id}</p>
+  ${m.links.length ? `<ul class="links">${m.links.map((l) => `<li><a href="${esc(l)}">${esc(l)}</a></li>`).join('')}</ul>` : ''}
+  <pre>${esc(m.text || m.html)}</pre>
+</article>`,
+    )
+    .join('\n');
+  return `<!doctype html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>Development mailbox · Nadirline</title>
+<style>
+  body { font-family: "Work Sans", system-ui, sans-serif; margin: 2rem auto; max-width: 52rem; padding: 0 1rem; color: #22252a; background: #fbfaf6; }
+  article { border-top: 1px solid #d8d4c8; padding: 1rem 0; }
+  h2 { font-size: 1.1rem; margin: 0 0 .25rem; }
+  .meta { color: #5b5f66; font-size: .9rem; margin: 0 0 .5rem; }
+  pre { white-space: pre-wrap; background: #f1efe7; padding: .75rem; border-radius: 4px; font-size: .9rem; }
+  .links a { word-break: break-all; }
+</style>
+</head>
+<body>
+<h1>Development mailbox</h1>
+<p>Every e-mail this Nadirline server sent since it started (${messages.length}). Nothing left this machine. Newest first. JSON: <a href="/dev/mailbox.json">/dev/mailbox.json</a>.</p>
+${items || '<p>No messages yet.</p>'}
+</body>
+</html>`;
+}
+
+export async function createDevRouter(ctx: AppContext): Promise<Router> {
+  const router = Router();
+  const mail = await getMailService(ctx);
+  const mailbox = () => {
+    if (!mail.mailbox) throw new HttpError('not-found', 'The development mailbox exists only when SMTP_URL is unset.');
+    return mail.mailbox;
+  };
+  router.get('/mailbox.json', (_req, res) => {
+    res.set('Cache-Control', 'no-store').json({ messages: mailbox().messages });
+  });
+  router.get('/mailbox', securityHeaders(ctx.config, 'console'), (_req, res) => {
+    res.set('Cache-Control', 'no-store').type('html').send(page(mailbox().messages));
+  });
+  router.delete('/mailbox', (_req, res) => {
+    mailbox().messages.splice(0);
+    res.status(204).end();
+  });
+  return router;
+}
