@@ -2,7 +2,7 @@ import { defineProject } from 'vitest/config';
 import vue from '@vitejs/plugin-vue';
 
 export default defineProject({
-  plugins: [vue()],
+  plugins: [vue({ template: { compilerOptions: { isCustomElement: (tag) => tag === 'nadir-track' } } })],
   test: {
     name: 'console',
     include: ['src/**/*.spec.ts'],

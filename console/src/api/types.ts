@@ -1,0 +1,258 @@
+/**
+ * Shapes of the console API (`/api`), as written in docs/console-api.md. The server validates
+ * the same shapes; when it publishes its schemas from a shared package these types should be
+ * derived from them instead of restated.
+ */
+
+export type Role = 'owner' | 'admin' | 'editor' | 'viewer';
+export type PlanId = 'starter' | 'mission' | 'constellation' | (string & {});
+
+export interface User {
+  id: string;
+  email: string;
+  name: string;
+  emailVerified: boolean;
+  createdAt: string;
+}
+
+export interface OrganizationRef {
+  id: string;
+  name: string;
+  plan: PlanId;
+}
+
+export interface Organization extends OrganizationRef {
+  createdAt: string;
+}
+
+export interface Membership {
+  organization: OrganizationRef;
+  role: Role;
+}
+
+export interface SessionInfo {
+  user: User | null;
+  memberships: Membership[];
+  csrfToken: string;
+}
+
+export interface Member {
+  userId: string;
+  name: string;
+  email: string;
+  role: Role;
+  joinedAt: string;
+}
+
+export interface Invitation {
+  id: string;
+  email: string;
+  role: Role;
+  expiresAt: string;
+  invitedBy: string | { name: string; email?: string } | null;
+}
+
+export interface InvitationPreview {
+  organization: { name: string };
+  email: string;
+  role: Role;
+  expiresAt: string;
+}
+
+export type Staleness = 'fresh' | 'aging' | 'stale';
+export type ElementSetSource = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json' | 'kepler';
+
+export interface ElementSetSummary {
+  id: string;
+  source: ElementSetSource | (string & {});
+  epoch: string;
+  ageDays: number;
+  staleness: Staleness;
+  uploadedBy: string | { name: string; email?: string } | null;
+  createdAt: string;
+  catalogNumber: string;
+  name: string;
+}
+
+/** The `/v1/satellites/{id}/elements` object. */
+export interface Derived {
+  epoch: string;
+  semiMajorAxisKm: number;
+  eccentricity: number;
+  inclinationDeg: number;
+  raanDeg: number;
+  argPerigeeDeg: number;
+  meanAnomalyDeg: number;
+  meanMotionRevPerDay: number;
+  periodMin: number;
+  apogeeAltKm: number;
+  perigeeAltKm: number;
+  nodalPrecessionDegPerDay: number;
+  westwardShiftPerRevDeg: number;
+  latitudeLimitDeg: number;
+  ageDays: number;
+  stale: boolean;
+}
+
+export interface Satellite {
+  id: string;
+  name: string;
+  catalogNumber: string | null;
+  description: string | null;
+}
+
+export interface SatelliteListItem extends Satellite {
+  current: ElementSetSummary | null;
+  derived: Derived | null;
+}
+
+export interface UploadReportEntry {
+  index: number;
+  line: number;
+  ok: boolean;
+  elementSetId?: string;
+  code?: string;
+  field?: string;
+  message?: string;
+  column?: number;
+  file?: string;
+}
+
+export interface UploadReport {
+  report: UploadReportEntry[];
+  accepted: number;
+  rejected: number;
+}
+
+/** Keplerian elements typed by hand (angles in degrees, epoch ISO 8601 UTC). */
+export interface KeplerInput {
+  name?: string;
+  catalogNumber?: string;
+  epoch: string;
+  meanMotionRevPerDay: number;
+  eccentricity: number;
+  inclinationDeg: number;
+  raanDeg: number;
+  argPerigeeDeg: number;
+  meanAnomalyDeg: number;
+  bstar?: number;
+}
+
+export type ExportFormat = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json';
+
+export type KeyKind = 'browser' | 'server';
+export type KeyState = 'active' | 'grace' | 'expired' | 'revoked';
+export type KeyScope = 'read' | 'write' | (string & {});
+
+export interface ApiKey {
+  id: string;
+  kind: KeyKind;
+  name: string;
+  lastFour: string;
+  origins: string[];
+  scopes: KeyScope[];
+  rateLimitPerMin: number | null;
+  expiresAt: string | null;
+  revokedAt: string | null;
+  replacedById: string | null;
+  graceUntil: string | null;
+  lastUsedAt: string | null;
+  createdAt: string;
+  state: KeyState;
+}
+
+export interface KeyCreateInput {
+  kind: KeyKind;
+  name: string;
+  origins?: string[];
+  scopes?: KeyScope[];
+  rateLimitPerMin?: number | null;
+  expiresAt?: string | null;
+}
+
+export type KeyUpdateInput = Partial<Omit<KeyCreateInput, 'kind'>>;
+
+export type Projection = 'equal-earth' | 'globe';
+export type Layer = 'footprint' | 'terminator' | 'passes' | 'graticule' | 'labels';
+export type WidgetTheme = 'light' | 'dark' | 'auto';
+
+/** Saved widget options; names follow the `<nadir-track>` attributes in camelCase. */
+export interface EmbedOptions {
+  projection: Projection;
+  layers: Layer[];
+  /** "lat,lon[,altM]", "auto" or "" for none. */
+  observer: string;
+  theme: WidgetTheme;
+  orbitsBehind: number;
+  orbitsAhead: number;
+  timeZone?: string;
+  locale?: string;
+  /** Size the snippets use, in CSS pixels (width may be "100%"). */
+  width: string;
+  height: number;
+}
+
+export interface Embed {
+  id: string;
+  name: string;
+  satelliteIds: string[];
+  options: EmbedOptions;
+  apiKeyId: string | null;
+  updatedAt: string;
+}
+
+export interface EmbedInput {
+  name: string;
+  satelliteIds: string[];
+  options: EmbedOptions;
+  apiKeyId: string | null;
+}
+
+export interface UsageReport {
+  days: { day: string; count: number }[];
+  byKey: { apiKeyId: string | null; name: string; count: number }[];
+  byRoute: { endpoint: string; count: number }[];
+  rows: { day: string; apiKeyId: string | null; endpoint: string; count: number }[];
+  quota: { plan: PlanId; limit: number; usedThisMonth: number; resetsAt: string };
+}
+
+export interface ActivityEvent {
+  id: string;
+  action: string;
+  actor: { name: string; email: string } | { keyName: string } | null;
+  targetType: string;
+  targetId: string | null;
+  detail: unknown;
+  createdAt: string;
+}
+
+export interface Plan {
+  id: PlanId;
+  name: string;
+  monthlyRequests: number;
+  priceMonthly: number;
+}
+
+export interface Billing {
+  plan: PlanId;
+  plans: Plan[];
+  subscription: { status: string; currentPeriodEnd?: string | null; plan?: PlanId } | null;
+}
+
+/** One field-level problem (problem+json `errors[]`). */
+export interface FieldProblem {
+  where: string;
+  message: string;
+  field?: string;
+  line?: number;
+  column?: number;
+}
+
+export interface ProblemBody {
+  type?: string;
+  title?: string;
+  status?: number;
+  detail?: string;
+  code?: string;
+  errors?: FieldProblem[];
+}

@@ -1,0 +1,67 @@
+/** Dates, ages and numbers as the console shows them. Times are shown in UTC and local. */
+
+const dtf = new Intl.DateTimeFormat('en-GB', {
+  year: 'numeric',
+  month: 'short',
+  day: '2-digit',
+  hour: '2-digit',
+  minute: '2-digit',
+  timeZone: 'UTC',
+  hourCycle: 'h23',
+});
+const dayFmt = new Intl.DateTimeFormat('en-GB', { year: 'numeric', month: 'short', day: '2-digit', timeZone: 'UTC' });
+
+/** "04 Mar 2031, 14:05 UTC"; "—" when absent. */
+export function formatUtc(iso: string | null | undefined): string {
+  if (!iso) return '—';
+  const d = new Date(iso);
+  return Number.isNaN(d.getTime()) ? iso : `${dtf.format(d)} UTC`;
+}
+
+export function formatDay(iso: string | null | undefined): string {
+  if (!iso) return '—';
+  const d = new Date(iso.length === 10 ? `${iso}T00:00:00Z` : iso);
+  return Number.isNaN(d.getTime()) ? iso : dayFmt.format(d);
+}
+
+/** "5 min ago", "in 3 h", "2 days ago": the nearest unit, rounded down. */
+export function formatRelative(iso: string | null | undefined, nowMs = Date.now()): string {
+  if (!iso) return 'never';
+  const t = Date.parse(iso);
+  if (Number.isNaN(t)) return iso;
+  const s = Math.round((t - nowMs) / 1000);
+  const a = Math.abs(s);
+  const [n, unit] =
+    a < 60 ? [a, 's'] : a < 3600 ? [Math.floor(a / 60), 'min'] : a < 86400 ? [Math.floor(a / 3600), 'h'] : [Math.floor(a / 86400), Math.floor(a / 86400) === 1 ? 'day' : 'days'];
+  if (a < 45) return 'just now';
+  return s < 0 ? `${n} ${unit} ago` : `in ${n} ${unit}`;
+}
+
+/** Element-set age in days: "0.4 days", "12 days". */
+export function formatAgeDays(days: number | null | undefined): string {
+  if (days === null || days === undefined || !Number.isFinite(days)) return '—';
+  if (days < 1) return `${(Math.round(days * 24 * 10) / 10).toFixed(1)} h`;
+  if (days < 10) return `${days.toFixed(1)} days`;
+  return `${Math.round(days)} days`;
+}
+
+const nf = new Intl.NumberFormat('en-GB');
+export function formatCount(n: number | null | undefined): string {
+  return n === null || n === undefined || !Number.isFinite(n) ? '—' : nf.format(n);
+}
+
+export function formatNumber(n: number | null | undefined, digits: number): string {
+  if (n === null || n === undefined || !Number.isFinite(n)) return '—';
+  return n.toLocaleString('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: digits });
+}
+
+/** YYYY-MM-DD (UTC) of a date. */
+export function isoDay(d: Date): string {
+  return d.toISOString().slice(0, 10);
+}
+
+export function addDays(day: string, n: number): string {
+  const d = new Date(`${day}T00:00:00Z`);
+  d.setUTCDate(d.getUTCDate() + n);
+  return isoDay(d);
+}
