@@ -1,5 +1,5 @@
 import { Body, GeoVector, RotateVector, Rotation_EQJ_EQD, SiderealTime } from 'astronomy-engine';
-import { eciToGeodetic, gstime, jday, shadowFraction, sunPos } from 'satellite.js';
+import { eciToGeodetic, jday, shadowFraction, sunPos } from 'satellite.js';
 import { describe, expect, it } from 'vitest';
 import { DEG_PER_RAD } from './constants.ts';
 import { cartesianToGeodetic, geodeticToEcef, gmstRad, isSunlit, julianDateFromMs, sunVector, wrap360Deg, wrapLonDeg } from './frames.ts';

@@ -42,3 +42,8 @@ export { lookAngles, lookAnglesFromEcef, observerSite, validateObserver } from '
 export type { Observer, LookAngles, ObserverErrorCode, ObserverSite } from './observer.ts';
 export { findPasses, MAX_PASS_SEARCH_DAYS } from './passes.ts';
 export type { Pass, PassList, PassOptions, PassErrorCode } from './passes.ts';
+/**
+ * Reference pass scanner (one look a second): slow on purpose, for tests and `npm run bench` to
+ * check `findPasses` against. Not for serving requests.
+ */
+export { findPassesBruteForce } from './passes-bruteforce.ts';
