@@ -24,7 +24,8 @@ export interface SourceLine {
 
 /** Split text into lines (LF, CRLF or CR), trailing blanks removed, numbered from `firstLine`. */
 export function splitLines(text: string, firstLine = 1): SourceLine[] {
-  return text.split(/\r\n|\r|\n/).map((t, i) => ({ text: t.replace(/[ \t]+$/, ''), line: firstLine + i }));
+  const body = text.startsWith('\uFEFF') ? text.slice(1) : text;
+  return body.split(/\r\n|\r|\n/).map((t, i) => ({ text: t.replace(/[ \t]+$/, ''), line: firstLine + i }));
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -121,8 +122,8 @@ const L2_BLANKS: [number, string][] = [
   [52, 'the mean anomaly and the mean motion'],
 ];
 
-const PLAIN_DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)$/;
-const UNSIGNED_DECIMAL = /^(?:\d+\.?\d*|\.\d+)$/;
+const PLAIN_DECIMAL = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)$/;
+const UNSIGNED_DECIMAL = /^(?:\d+(?:\.\d*)?|\.\d+)$/;
 
 type Failure = ElementSetError;
 
@@ -132,9 +133,11 @@ function col(s: string, range: readonly [number, number]): string {
 
 /** Does this line look like TLE line `n` (used to group lines of many-entry files)? */
 export function looksLikeTleLine(text: string, n: 1 | 2): boolean {
-  const t = text.trimStart();
-  return t.startsWith(`${n} `) && t.length >= 60;
+  return (n === 1 ? LINE1_START : LINE2_START).test(text.trimStart());
 }
+/** The line number, a blank and a catalog number (digits, or an Alpha-5 letter and digits). */
+const LINE1_START = /^1 [0-9A-Z ]{4}[0-9]/;
+const LINE2_START = /^2 [0-9A-Z ]{4}[0-9]/;
 
 interface LineCtx {
   src: SourceLine;

@@ -181,7 +181,7 @@ export function firstControlChar(s: string): number {
 }
 
 /** Strict decimal number text: optional sign, digits with an optional point, optional exponent. */
-export const DECIMAL = /^[+-]?(?:\d+\.?\d*|\.\d+)(?:[eE][+-]?\d{1,4})?$/;
+export const DECIMAL = /^[+-]?(?:\d+(?:\.\d*)?|\.\d+)(?:[eE][+-]?\d{1,4})?$/;
 
 /** International designator: TLE form "98067A" <-> CCSDS OBJECT_ID "1998-067A". */
 export const TLE_DESIGNATOR = /^(\d{2})(\d{3})([A-Z]{1,3})$/;
