@@ -258,7 +258,8 @@ export function parseTleLines(lines: SourceLine[]): ParseResult {
   else if (body.length === 2) {
     const [a, b] = body as [SourceLine, SourceLine];
     if (looksLikeTleLine(b.text, 1)) [nameLine, l1] = [a, b];
-    else if (!looksLikeTleLine(a.text, 1) && !looksLikeTleLine(a.text, 2) && looksLikeTleLine(b.text, 2)) {
+    else if (!looksLikeTleLine(a.text, 1) && !looksLikeTleLine(a.text, 2) && looksLikeTleLine(b.text, 2) && a.text.trim().length < 60) {
+      // A short line before line 2 is a name line; a line of TLE length is a damaged line 1.
       [nameLine, l2] = [a, b];
     } else [l1, l2] = [a, b];
   } else {
