@@ -53,7 +53,8 @@ export async function startTestApp(env: Record<string, string> = {}): Promise<Te
       if (!message) throw new Error(`no message to ${to}`);
       const link = message.links[0];
       if (!link) throw new Error(`message to ${to} has no link`);
-      const token = link.split('/').at(-1) ?? '';
+      const url = new URL(link);
+      const token = url.searchParams.get('token') ?? url.pathname.split('/').at(-1) ?? '';
       return { message, link, token };
     },
     async close() {

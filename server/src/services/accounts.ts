@@ -150,12 +150,12 @@ export async function signUp(ctx: AppContext, input: SignUpInput): Promise<{ use
       { id: nanoid(), email, name: input.name, passwordHash, emailVerifiedAt: verified ? new Date() : null },
       { transaction },
     );
-    const organization = input.organizationName ? await createOrganization(ctx, user, input.organizationName, transaction) : null;
+    const organization = input.organizationName?.trim() ? await createOrganization(ctx, user, input.organizationName, transaction) : null;
     if (invitation) await acceptInvitationForUser(ctx, invitation, user, transaction);
     const token = verified ? null : await issueEmailToken(user.id, 'verify-email', VERIFY_TOKEN_TTL_MS, transaction);
     return { user, organization, token };
   });
-  if (result.token) await sendSafely(ctx, verificationMail(email, input.name, link(ctx, `/verify-email/${result.token}`)));
+  if (result.token) await sendSafely(ctx, verificationMail(email, input.name, link(ctx, `/verify-email?token=${result.token}`)));
   return { user: result.user, organization: result.organization, verified };
 }
 
@@ -178,7 +178,7 @@ export async function resendVerification(ctx: AppContext, email: string): Promis
   // Older unused links stop working: only the newest message counts.
   await EmailToken.update({ usedAt: new Date() }, { where: { userId: user.id, purpose: 'verify-email', usedAt: null } });
   const token = await issueEmailToken(user.id, 'verify-email', VERIFY_TOKEN_TTL_MS);
-  await sendSafely(ctx, verificationMail(user.email, user.name, link(ctx, `/verify-email/${token}`)));
+  await sendSafely(ctx, verificationMail(user.email, user.name, link(ctx, `/verify-email?token=${token}`)));
 }
 
 /** A hash of a random password, compared against when the account does not exist (same timing). */
@@ -199,7 +199,7 @@ export async function requestPasswordReset(ctx: AppContext, email: string): Prom
   const user = await User.findOne({ where: { email: normalizeEmail(email) } });
   if (!user) return;
   const token = await issueEmailToken(user.id, 'reset-password', RESET_TOKEN_TTL_MS);
-  await sendSafely(ctx, resetPasswordMail(user.email, user.name, link(ctx, `/reset-password/${token}`)));
+  await sendSafely(ctx, resetPasswordMail(user.email, user.name, link(ctx, `/reset-password?token=${token}`)));
 }
 
 export async function resetPassword(ctx: AppContext, token: string, password: string): Promise<User> {

@@ -32,7 +32,8 @@ const SignupBody = z.object({
   email: fields.email,
   name: fields.name,
   password: fields.password,
-  organizationName: fields.name.optional(),
+  /** Empty or absent: no organization yet (e.g. signing up from an invitation). */
+  organizationName: z.string().trim().max(200).optional(),
   invitationToken: fields.token.optional(),
 });
 const TokenBody = z.object({ token: fields.token });

@@ -11,12 +11,16 @@ import { securityHeaders } from '../../http/security.ts';
 import { createSessionMiddleware } from '../../http/session.ts';
 import { getMailService } from '../../services/mail.ts';
 import { accountRoutes } from './account.ts';
+import { embedRoutes } from './embeds.ts';
+import { keyRoutes } from './keys.ts';
 import { orgRoutes } from './orgs.ts';
 import type { ApiRoute } from './routes.ts';
+import { satelliteRoutes } from './satellites.ts';
+import { usageRoutes } from './usage.ts';
 
 /** Every /api route with its action, in mounting order. */
 export function buildApiRoutes(ctx: AppContext): ApiRoute[] {
-  return [...accountRoutes(ctx).list, ...orgRoutes(ctx).list];
+  return [accountRoutes, orgRoutes, keyRoutes, satelliteRoutes, embedRoutes, usageRoutes].flatMap((routes) => routes(ctx).list);
 }
 
 export async function createApiRouter(ctx: AppContext): Promise<Router> {

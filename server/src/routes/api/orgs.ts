@@ -18,6 +18,7 @@ import {
   serializeOrganization,
   transferOwnership,
 } from '../../services/orgs.ts';
+import { param } from './params.ts';
 import { ApiRoutes } from './routes.ts';
 
 const NameBody = z.object({ name: fields.name });
@@ -26,9 +27,6 @@ const roleField = z.enum(ASSIGNABLE_ROLES, { message: 'Choose admin, editor or v
 const InviteBody = z.object({ email: fields.email, role: roleField });
 const RoleBody = z.object({ role: roleField });
 
-function param(value: string | string[] | undefined): string {
-  return Array.isArray(value) ? (value[0] ?? '') : (value ?? '');
-}
 
 export function orgRoutes(ctx: AppContext): ApiRoutes {
   const r = new ApiRoutes();
@@ -72,27 +70,27 @@ export function orgRoutes(ctx: AppContext): ApiRoutes {
   });
 
   r.delete('/orgs/:org/invitations/:id', 'members.manage', async (req, res) => {
-    await revokeInvitation(ctx, orgAuth(res), param(req.params['id']));
+    await revokeInvitation(ctx, orgAuth(res), param(req, 'id'));
     res.status(204).end();
   });
 
   r.get('/invitations/:token', 'invitation.read', async (req, res) => {
-    res.json(await describeInvitation(param(req.params['token'])));
+    res.json(await describeInvitation(param(req, 'token')));
   });
 
   r.post('/invitations/:token/accept', 'invitation.accept', async (req, res) => {
-    const membership = await acceptInvitation(ctx, userAuth(res), param(req.params['token']));
+    const membership = await acceptInvitation(ctx, userAuth(res), param(req, 'token'));
     res.json({ membership });
   });
 
   r.patch('/orgs/:org/members/:userId', 'members.manage', async (req, res) => {
     const { role } = parseBody(RoleBody, req);
-    const member = await changeMemberRole(ctx, orgAuth(res), param(req.params['userId']), role);
+    const member = await changeMemberRole(ctx, orgAuth(res), param(req, 'userId'), role);
     res.json({ member });
   });
 
   r.delete('/orgs/:org/members/:userId', 'members.manage', async (req, res) => {
-    await removeMember(ctx, orgAuth(res), param(req.params['userId']));
+    await removeMember(ctx, orgAuth(res), param(req, 'userId'));
     res.status(204).end();
   });
 
