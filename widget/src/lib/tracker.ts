@@ -275,7 +275,7 @@ export class Tracker {
       this.emit({
         type: 'load',
         detail: {
-          satellites: this.state.sats.map((s) => ({
+          satellites: this.state.sats.filter((s) => !s.dead).map((s) => ({
             id: s.id,
             name: s.name,
             epoch: s.elements?.epoch ?? null,
@@ -299,7 +299,7 @@ export class Tracker {
     if (p.code === 'aborted') return undefined;
     if (FATAL.has(p.code)) {
       const n = noticeFor(p, { origin: this.opts.origin });
-      this.setFatal(n);
+      this.setFatal(n, p);
       return n.retryMs;
     }
     if (sat && GONE.has(p.code)) {
