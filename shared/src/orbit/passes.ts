@@ -125,10 +125,15 @@ export class SkyView {
     return sunElevationDeg(this.site, this.sunAtTime(t), gmstRad(t));
   }
 
+  /** Whether the satellite sees the Sun's centre at t. */
+  sunlitAt(t: number): boolean {
+    return isSunlit(this.state(t).p, this.sunAtTime(t));
+  }
+
   /** The pass-visibility condition at one instant: observer in (at least civil) darkness, satellite sunlit. */
   visibleAt(t: number): boolean {
     if (this.observerSunElevationDeg(t) >= CIVIL_TWILIGHT_DEG) return false;
-    return isSunlit(this.state(t).p, this.sunAtTime(t));
+    return this.sunlitAt(t);
   }
 }
 
@@ -351,11 +356,36 @@ function searchPasses(view: SkyView, startMs: number, endMs: number, sunlitCheck
   return { passes, alwaysUp: false };
 }
 
-/** Whether the visibility condition holds at some instant of [rise, set], sampled every <= 10 s. */
+/**
+ * Whether the visibility condition holds at some instant of [rise, set]: sampled every <= 10 s,
+ * and every 1 s inside a step where darkness and sunlight each hold at one end but not together.
+ */
 function passVisible(view: SkyView, rise: number, set: number): boolean {
   const steps = Math.max(1, Math.ceil((set - rise) / VISIBILITY_STEP_MS));
-  for (let i = 0; i <= steps; i++) {
-    if (view.visibleAt(rise + ((set - rise) * i) / steps)) return true;
+  const darkAt = (t: number): boolean => view.observerSunElevationDeg(t) < CIVIL_TWILIGHT_DEG;
+  // Sunlight needs a propagation: only ask for it next to darkness.
+  let prevT = rise;
+  let prevDark = darkAt(rise);
+  let prevLit: boolean | undefined = prevDark ? view.sunlitAt(rise) : undefined;
+  if (prevDark && prevLit) return true;
+  for (let i = 1; i <= steps; i++) {
+    const t = rise + ((set - rise) * i) / steps;
+    const dark = darkAt(t);
+    if (dark || prevDark) {
+      const lit = view.sunlitAt(t);
+      if (dark && lit) return true;
+      prevLit ??= view.sunlitAt(prevT);
+      if (lit || prevLit) {
+        for (let u = prevT + 1000; u < t; u += 1000) {
+          if (darkAt(u) && view.sunlitAt(u)) return true;
+        }
+      }
+      prevLit = lit;
+    } else {
+      prevLit = undefined;
+    }
+    prevDark = dark;
+    prevT = t;
   }
   return false;
 }
