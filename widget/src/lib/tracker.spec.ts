@@ -1,0 +1,203 @@
+import { afterEach, beforeEach, describe, expect, it, vi } from 'vitest';
+import type { FetchLike } from './api.ts';
+import { Tracker, type TrackerEvent } from './tracker.ts';
+
+const NOW = Date.parse('2026-03-04T13:17:41Z');
+
+interface Call {
+  path: string;
+  q: URLSearchParams;
+}
+
+/** A fake /v1 that answers from a table; `down` makes every request fail like a lost network. */
+function fakeApi(opts: { key?: string; down?: () => boolean; missing?: string[]; stale?: string[] } = {}) {
+  const calls: Call[] = [];
+  const json = (body: unknown, status = 200, headers: Record<string, string> = {}) =>
+    new Response(JSON.stringify(body), { status, headers: { 'content-type': status < 400 ? 'application/json' : 'application/problem+json', ...headers } });
+  const fetch: FetchLike = async (input) => {
+    const u = new URL(input);
+    calls.push({ path: u.pathname, q: u.searchParams });
+    if (opts.down?.()) throw new TypeError('Failed to fetch');
+    const key = u.searchParams.get('key');
+    if (opts.key && key !== opts.key) return json({ type: 'about:blank', title: 'Invalid key', status: 401, code: 'invalid-key' }, 401);
+    const m = u.pathname.match(/^\/v1\/satellites\/([^/]+)(?:\/(\w+))?$/);
+    const e = u.pathname.match(/^\/v1\/embeds\/([^/]+)$/);
+    if (e) return json({ id: e[1], satellites: ['emb-sat'], options: { orbitsAhead: 0.5 }, apiKey: 'nlb_fromembed' });
+    if (!m) return json({ title: 'no', status: 404, code: 'not-found' }, 404);
+    const id = m[1]!;
+    if (opts.missing?.includes(id)) return json({ title: 'Not found', status: 404, code: 'not-found' }, 404);
+    if (!m[2]) return json({ id, name: `Sat ${id}` });
+    if (m[2] === 'elements')
+      return json({ epoch: '2026-03-04T00:00:00Z', periodMin: 90, semiMajorAxisKm: 6780, inclinationDeg: 51.6, ageDays: opts.stale?.includes(id) ? 21 : 0.5, stale: !!opts.stale?.includes(id) });
+    if (m[2] === 'track') {
+      const start = Date.parse(u.searchParams.get('start')!);
+      const end = Date.parse(u.searchParams.get('end')!);
+      const step = Number(u.searchParams.get('step')) * 1000;
+      const points = [];
+      for (let t = start; t <= end; t += step) points.push({ t: new Date(t).toISOString(), lat: 0, lon: ((t / 1000) % 360) - 180, altKm: 420, sunlit: true });
+      return json({ points });
+    }
+    if (m[2] === 'passes')
+      return json({ passes: [{ rise: { t: '2026-03-04T18:00:00Z', azimuth: 200 }, culmination: { t: '2026-03-04T18:05:00Z', azimuth: 150, elevation: 40, rangeKm: 600 }, set: { t: '2026-03-04T18:10:00Z', azimuth: 80 }, visible: true }] });
+    return json({ title: 'no', status: 404, code: 'not-found' }, 404);
+  };
+  return { fetch, calls };
+}
+
+function make(fake: ReturnType<typeof fakeApi>, extra: Partial<ConstructorParameters<typeof Tracker>[0]> = {}) {
+  const events: TrackerEvent[] = [];
+  const t = new Tracker({
+    apiBase: 'https://api.nadirline.test',
+    apiKey: 'nlb_good',
+    attrs: { satellites: 'a,b', observer: '52.2,0.12' },
+    fetch: fake.fetch,
+    now: () => Date.now(),
+    origin: 'https://hall.example',
+    onEvent: (e) => events.push(e),
+    ...extra,
+  });
+  return { t, events };
+}
+
+/** Let pending promises and timers up to `ms` run. */
+async function advance(ms: number) {
+  await vi.advanceTimersByTimeAsync(ms);
+}
+
+beforeEach(() => {
+  vi.useFakeTimers({ now: NOW });
+});
+afterEach(() => {
+  vi.useRealTimers();
+});
+
+describe('Tracker', () => {
+  it('loads names, element sets, aligned track windows and passes, then says so once', async () => {
+    const fake = fakeApi();
+    const { t, events } = make(fake);
+    t.resume();
+    await advance(10);
+    expect(t.state.phase).toBe('ready');
+    expect(t.state.sats.map((s) => s.name)).toEqual(['Sat a', 'Sat b']);
+    expect(t.state.sats[0]!.samples.length).toBeGreaterThan(100);
+    expect(t.state.sats[0]!.passes).toHaveLength(1);
+    const tracks = fake.calls.filter((c) => c.path.endsWith('/track'));
+    for (const c of tracks) expect(Date.parse(c.q.get('start')!) % (2 * 3600_000)).toBe(0);
+    expect(fake.calls.every((c) => c.q.get('key') === 'nlb_good')).toBe(true);
+    expect(events.filter((e) => e.type === 'load')).toHaveLength(1);
+    await advance(60_000);
+    expect(events.filter((e) => e.type === 'load')).toHaveLength(1);
+    t.dispose();
+  });
+
+  it('asks for no track window twice and fetches the next one before the current one ends', async () => {
+    const fake = fakeApi();
+    const { t } = make(fake, { attrs: { satellites: 'a', orbitsBehind: 0, orbitsAhead: 0 } });
+    t.resume();
+    await advance(10);
+    const first = fake.calls.filter((c) => c.path.endsWith('/track')).map((c) => c.q.get('start'));
+    expect(new Set(first).size).toBe(first.length);
+    // 13:17 now; the window 14:00-16:00 must be held by 15:30 at the latest
+    await advance(Date.parse('2026-03-04T15:31:00Z') - NOW);
+    const starts = fake.calls.filter((c) => c.path.endsWith('/track')).map((c) => c.q.get('start'));
+    expect(new Set(starts).size).toBe(starts.length);
+    expect(starts).toContain('2026-03-04T16:00:00Z');
+    t.dispose();
+  });
+
+  it('stops for good on a bad key and shows why', async () => {
+    const fake = fakeApi({ key: 'nlb_other' });
+    const { t, events } = make(fake);
+    t.resume();
+    await advance(10);
+    expect(t.state.fatal?.code).toBe('invalid-key');
+    const n = fake.calls.length;
+    await advance(10 * 60_000);
+    expect(fake.calls.length).toBe(n);
+    expect(events).toContainEqual(expect.objectContaining({ type: 'error', detail: expect.objectContaining({ code: 'invalid-key', status: 401, fatal: true }) }));
+    t.dispose();
+  });
+
+  it('keeps the data it has when the network goes, retries with growing waits and recovers', async () => {
+    let down = false;
+    const fake = fakeApi({ down: () => down });
+    const { t } = make(fake, { formatTime: () => '13:17' });
+    t.resume();
+    await advance(10);
+    const held = t.state.sats[0]!.samples.length;
+    down = true;
+    t.setObserver({ lat: 10, lon: 10, altM: 0 }); // needs new passes: a request that fails
+    await advance(10);
+    expect(t.state.transient?.code).toBe('network');
+    expect(t.state.transient?.text).toContain('Showing what was known at 13:17');
+    expect(t.state.sats[0]!.samples.length).toBe(held);
+    const at = (n: number) => fake.calls.length - n;
+    const c0 = fake.calls.length;
+    await advance(2000); // first retry after 2 s
+    expect(at(c0)).toBeGreaterThan(0);
+    const c1 = fake.calls.length;
+    await advance(3000); // second wait is 4 s: nothing yet
+    expect(at(c1)).toBe(0);
+    down = false;
+    await advance(1100);
+    expect(t.state.transient).toBeNull();
+    expect(t.state.sats[0]!.passes).not.toBeNull();
+    t.dispose();
+  });
+
+  it('makes no request while paused and carries on after resume', async () => {
+    const fake = fakeApi();
+    const { t } = make(fake);
+    t.resume();
+    await advance(10);
+    t.pause();
+    const n = fake.calls.length;
+    await advance(6 * 3600_000);
+    expect(fake.calls.length).toBe(n);
+    t.resume();
+    await advance(10);
+    expect(fake.calls.length).toBeGreaterThan(n);
+    expect(t.isRunning).toBe(true);
+    t.dispose();
+  });
+
+  it('marks a missing satellite and goes on with the others', async () => {
+    const fake = fakeApi({ missing: ['a'] });
+    const { t, events } = make(fake);
+    t.resume();
+    await advance(10);
+    expect(t.state.sats[0]!.dead).toBe(true);
+    expect(t.state.sats[0]!.notice?.heading).toBe('Satellite not found');
+    expect(t.state.sats[1]!.samples.length).toBeGreaterThan(0);
+    expect(events).toContainEqual(expect.objectContaining({ type: 'error', detail: expect.objectContaining({ code: 'not-found', satellite: 'a', fatal: false }) }));
+    t.dispose();
+  });
+
+  it('warns about a stale element set with its age but still draws it', async () => {
+    const fake = fakeApi({ stale: ['b'] });
+    const { t } = make(fake);
+    t.resume();
+    await advance(10);
+    expect(t.state.sats[1]!.notice?.text).toContain('21 days old');
+    expect(t.state.sats[1]!.samples.length).toBeGreaterThan(0);
+    t.dispose();
+  });
+
+  it('loads a saved embed first and then uses its satellites, options and key', async () => {
+    const fake = fakeApi();
+    const { t } = make(fake, { apiKey: '', embedId: 'e42', attrs: {} });
+    t.resume();
+    await advance(10);
+    expect(fake.calls[0]!.path).toBe('/v1/embeds/e42');
+    expect(t.state.sats.map((s) => s.id)).toEqual(['emb-sat']);
+    expect(t.state.settings.orbitsAhead).toBe(0.5);
+    expect(fake.calls.slice(1).every((c) => c.q.get('key') === 'nlb_fromembed')).toBe(true);
+    t.dispose();
+  });
+
+  it('shows words, not a blank box, when no satellites are set', () => {
+    const fake = fakeApi();
+    const { t } = make(fake, { attrs: {} });
+    expect(t.state.fatal?.heading).toBe('Nothing to show yet');
+  });
+});
