@@ -80,7 +80,7 @@ function parseOmmChunk(text: string, chunk: Chunk, pos: TextPositions): ParseRes
   }
   const root = (doc as Record<string, unknown>).omm;
   if (typeof root !== 'object' || root === null || Array.isArray(root)) {
-    return reject('structure', { field: 'omm', ...base }, 'expected one <omm> element holding header and body');
+    return reject('structure', { field: 'omm', ...base }, 'the <omm> element is empty; it must hold <header> and <body>');
   }
 
   /** Position of the value of the n-th <KEYWORD> in this chunk. */
@@ -165,7 +165,7 @@ function strayText(masked: string, chunks: Chunk[]): { offset: number; text: str
   const stray: { offset: number; text: string }[] = [];
   const re = /\S[^\r\n]*/g;
   let m: RegExpExecArray | null;
-  while ((m = re.exec(outside)) !== null) stray.push({ offset: m.index, text: m[0] });
+  while ((m = re.exec(outside)) !== null) stray.push({ offset: m.index, text: m[0].trimEnd() });
   return stray;
 }
 
