@@ -3,6 +3,10 @@ import vue from '@vitejs/plugin-vue';
 
 export default defineProject({
   plugins: [vue({ features: { customElement: /\.ce\.vue$/ } })],
+  define: {
+    // the build defines the hashed names (vite.config.ts); tests use fixed ones
+    __NADIR_ASSETS__: JSON.stringify({ world: 'assets/countries-110m.test.json', fonts: { 400: 'assets/work-sans-400.test.woff2' } }),
+  },
   test: {
     name: 'widget',
     include: ['src/**/*.spec.ts'],
