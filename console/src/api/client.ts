@@ -84,19 +84,16 @@ export class ApiError extends Error {
 }
 
 /**
- * Which input a field problem belongs to: its `field`, or the first segment of a JSON pointer in
- * `where` ("/origins/2" -> "origins", "/kepler/eccentricity" -> "kepler.eccentricity" is kept
- * as its last segment "eccentricity" since forms name inputs after the leaf).
+ * Which input a field problem belongs to. Forms name inputs after the leaf of the path:
+ * field "kepler.eccentricity" or where "/kepler/eccentricity" -> "eccentricity";
+ * "origins.2" or "/origins/2" -> "origins". Places in a text ("line 3, column 12") name no field.
  */
 export function fieldName(e: FieldProblem): string | undefined {
-  if (e.field) return e.field;
+  const leaf = (parts: string[]) => parts.filter((p) => p !== '' && !/^\d+$/.test(p)).at(-1);
+  if (e.field) return leaf(e.field.split('.')) ?? e.field;
   const w = e.where?.trim() ?? '';
-  if (w.startsWith('/')) {
-    const parts = w.slice(1).split('/').filter((p) => p !== '' && !/^\d+$/.test(p));
-    return parts.at(-1);
-  }
-  if (/^body\./.test(w)) return w.slice(5).split('.').at(-1);
-  if (/^[A-Za-z][\w]*$/.test(w)) return w;
+  if (w.startsWith('/')) return leaf(w.slice(1).split('/'));
+  if (/^[A-Za-z]\w*$/.test(w)) return w;
   return undefined;
 }
 

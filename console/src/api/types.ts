@@ -129,7 +129,10 @@ export interface KeplerInput {
   name?: string;
   catalogNumber?: string;
   epoch: string;
-  meanMotionRevPerDay: number;
+  /** Exactly one of the next three gives the size of the orbit. */
+  semiMajorAxisKm?: number;
+  periodMin?: number;
+  meanMotionRevPerDay?: number;
   eccentricity: number;
   inclinationDeg: number;
   raanDeg: number;
@@ -142,7 +145,7 @@ export type ExportFormat = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json';
 
 export type KeyKind = 'browser' | 'server';
 export type KeyState = 'active' | 'grace' | 'expired' | 'revoked';
-export type KeyScope = 'read' | 'write' | (string & {});
+export type KeyScope = 'read' | 'element-sets:write' | (string & {});
 
 export interface ApiKey {
   id: string;
@@ -166,7 +169,8 @@ export interface KeyCreateInput {
   name: string;
   origins?: string[];
   scopes?: KeyScope[];
-  rateLimitPerMin?: number | null;
+  /** Whole requests per minute, 1 to 100 000; the server's default when left out. */
+  rateLimitPerMin?: number;
   expiresAt?: string | null;
 }
 
@@ -187,9 +191,9 @@ export interface EmbedOptions {
   orbitsAhead: number;
   timeZone?: string;
   locale?: string;
-  /** Size the snippets use, in CSS pixels (width may be "100%"). */
+  /** Size the snippets use: CSS pixels as digits ("640") or a CSS length ("100%"). */
   width: string;
-  height: number;
+  height: string;
 }
 
 export interface Embed {
@@ -205,7 +209,8 @@ export interface EmbedInput {
   name: string;
   satelliteIds: string[];
   options: EmbedOptions;
-  apiKeyId: string | null;
+  /** The browser key the embed reads with (its origins, limits and usage apply). */
+  apiKeyId: string;
 }
 
 export interface UsageReport {

@@ -30,12 +30,12 @@ export function describeError(err: ApiError): string {
   }
 }
 
-export interface AsyncOptions {
+export interface AsyncOptions<R> {
   /** Said by the live region when the call succeeds. */
-  success?: string | ((result: unknown) => string | undefined);
+  success?: string | ((result: R) => string | undefined);
 }
 
-export function useAsync<A extends unknown[], R>(fn: (...args: A) => Promise<R>, options: AsyncOptions = {}) {
+export function useAsync<A extends unknown[], R>(fn: (...args: A) => Promise<R>, options: AsyncOptions<R> = {}) {
   const router = useRouter();
   const session = useSessionStore();
   const notices = useNoticesStore();

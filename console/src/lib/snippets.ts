@@ -15,7 +15,7 @@ export const DEFAULT_EMBED_OPTIONS: EmbedOptions = {
   orbitsBehind: 1,
   orbitsAhead: 1,
   width: '100%',
-  height: 420,
+  height: '420',
 };
 
 /** Escape a value for a double-quoted HTML attribute. */
@@ -44,9 +44,15 @@ function attrs(map: Record<string, string>): string {
     .join('');
 }
 
+/** "640" -> "640px"; any other CSS length as given, stripped of characters that could end the attribute. */
+export function cssLength(v: string, fallback: string): string {
+  const t = v.trim().replace(/["'<>;{}]/g, '');
+  if (!t) return fallback;
+  return /^\d+(\.\d+)?$/.test(t) ? `${t}px` : t;
+}
+
 function sizeStyle(o: EmbedOptions): string {
-  const w = /^\d+$/.test(o.width) ? `${o.width}px` : o.width;
-  return `display:block;width:${w};height:${o.height}px`;
+  return `display:block;width:${cssLength(o.width, '100%')};height:${cssLength(o.height, '420px')}`;
 }
 
 function cleanOrigin(origin: string): string {
@@ -65,8 +71,8 @@ export function scriptSnippet(origin: string, embedId: string, o: EmbedOptions):
 /** Hosted iframe form, for pages (or CMSs) that strip scripts. */
 export function iframeSnippet(origin: string, embedId: string, o: EmbedOptions, title: string): string {
   const base = cleanOrigin(origin);
-  const w = /^\d+$/.test(o.width) ? o.width : o.width.replace(/"/g, '');
-  return `<iframe src="${escapeAttr(base)}/embed/${encodeURIComponent(embedId)}" title="${escapeAttr(title || 'Satellite ground track')}" width="${escapeAttr(w)}" height="${o.height}" loading="lazy" style="border:0"></iframe>`;
+  const style = `border:0;display:block;width:${cssLength(o.width, '100%')};height:${cssLength(o.height, '420px')}`;
+  return `<iframe src="${escapeAttr(base)}/embed/${encodeURIComponent(embedId)}" title="${escapeAttr(title || 'Satellite ground track')}" loading="lazy" style="${style}"></iframe>`;
 }
 
 /** Inline form: every option as an attribute, with a browser key the publisher fills in. */

@@ -7,7 +7,8 @@ import { DEFAULT_EMBED_OPTIONS } from '../lib/snippets.ts';
 
 /** Fill options a saved embed may lack (older embeds, or ones made through the API). */
 export function normalizeEmbed(e: Embed): Embed {
-  return { ...e, satelliteIds: e.satelliteIds ?? [], options: { ...DEFAULT_EMBED_OPTIONS, ...(e.options ?? {}) } };
+  const o = { ...DEFAULT_EMBED_OPTIONS, ...(e.options ?? {}) };
+  return { ...e, satelliteIds: e.satelliteIds ?? [], options: { ...o, width: String(o.width), height: String(o.height), layers: [...(o.layers ?? [])] } };
 }
 
 export const useEmbedsStore = defineStore('embeds', () => {
