@@ -17,6 +17,7 @@ export type ProblemCode =
   | 'network'
   | 'bad-answer'
   | 'no-satellites'
+  | 'no-elements'
   | (string & {});
 
 export interface ApiProblem {
@@ -74,6 +75,8 @@ export async function problemFrom(res: Response, nowMs = Date.now()): Promise<Ap
 export interface SatelliteInfo {
   id: string;
   name: string;
+  /** Derived elements of the current element set (null when the satellite has none yet). */
+  derived?: ElementsInfo | null;
 }
 export interface ElementsInfo {
   epoch: string;
@@ -112,10 +115,15 @@ export interface EmbedConfig {
 const iso = (ms: number) => new Date(ms).toISOString().replace('.000Z', 'Z');
 
 export class NadirApi {
+  /**
+   * @param key browser key sent as `?key=`; when empty, `embedId` (if any) is sent as `?embed=`,
+   *   which the server accepts as the read credential of a saved embed.
+   */
   constructor(
     private readonly base: string,
     private readonly key: string,
     private readonly fetchImpl: FetchLike = (u, i) => fetch(u, i),
+    private readonly embedId = '',
   ) {}
 
   /** Absolute URL of a /v1 path with its query, the browser key last. */
@@ -123,6 +131,7 @@ export class NadirApi {
     const u = new URL(path.replace(/^\//, ''), this.base.endsWith('/') ? this.base : `${this.base}/`);
     for (const [k, v] of Object.entries(query)) if (v !== undefined) u.searchParams.set(k, String(v));
     if (this.key) u.searchParams.set('key', this.key);
+    else if (this.embedId && !path.includes('/embeds/')) u.searchParams.set('embed', this.embedId);
     return u.toString();
   }
 
@@ -162,7 +171,7 @@ export class NadirApi {
     };
   }
   passes(id: string, obs: { lat: number; lon: number; altM: number }, startMs: number, days: number, signal?: AbortSignal) {
-    return this.get<{ passes: Pass[] }>(
+    return this.get<{ passes: Pass[]; alwaysUp?: boolean }>(
       `v1/satellites/${encodeURIComponent(id)}/passes`,
       { lat: round2(obs.lat), lon: round2(obs.lon), altM: Math.round(obs.altM), start: iso(startMs), days, minElevation: 10 },
       signal,

@@ -103,6 +103,14 @@ export function noticeFor(p: Pick<ApiProblem, 'code' | 'status' | 'retryAfterS'>
         text: `The orbit data for ${sat} is ${ctx.ageDays === undefined ? 'out of date' : `${ageWords(ctx.ageDays)} old`}, so its position may be off by many kilometres.`,
         fatal: false,
       };
+    case 'no-elements':
+      return {
+        code: p.code,
+        severity: 'warning',
+        heading: 'No orbit data yet',
+        text: `${ctx.satellite ? `“${ctx.satellite}”` : 'This satellite'} has no element set yet, so it cannot be drawn. The satellite’s team can upload one in the Nadirline console.`,
+        fatal: false,
+      };
     case 'decayed':
       return {
         code: p.code,

@@ -195,6 +195,47 @@ describe('Tracker', () => {
     t.dispose();
   });
 
+  it('takes the derived elements from the satellite answer without asking /elements', async () => {
+    const fake = fakeApi();
+    const base = fake.fetch;
+    const withDerived: FetchLike = async (input, init) => {
+      const u = new URL(input);
+      if (/^\/v1\/satellites\/[^/]+$/.test(u.pathname)) {
+        fake.calls.push({ path: u.pathname, q: u.searchParams });
+        return new Response(JSON.stringify({ id: 'a', name: 'Kestrel', derived: { epoch: '2026-03-04T00:00:00Z', periodMin: 92, semiMajorAxisKm: 6790, inclinationDeg: 51.6, ageDays: 1, stale: false } }));
+      }
+      return base(input, init);
+    };
+    const { t } = make({ fetch: withDerived, calls: fake.calls }, { attrs: { satellites: 'a' } });
+    t.resume();
+    await advance(10);
+    expect(t.state.sats[0]!.name).toBe('Kestrel');
+    expect(t.state.sats[0]!.elements?.periodMin).toBe(92);
+    expect(fake.calls.some((c) => c.path.endsWith('/elements'))).toBe(false);
+    t.dispose();
+  });
+
+  it('reads with ?embed= as the credential when the embed brings no key of its own', async () => {
+    const fake = fakeApi();
+    const base = fake.fetch;
+    const noKey: FetchLike = async (input, init) => {
+      const u = new URL(input);
+      if (u.pathname.startsWith('/v1/embeds/')) {
+        fake.calls.push({ path: u.pathname, q: u.searchParams });
+        return new Response(JSON.stringify({ id: 'e7', name: 'Hall map', satellites: ['a'], options: {} }));
+      }
+      return base(input, init);
+    };
+    const { t } = make({ fetch: noKey, calls: fake.calls }, { apiKey: '', embedId: 'e7', attrs: {} });
+    t.resume();
+    await advance(10);
+    expect(fake.calls[0]!.q.has('embed')).toBe(false);
+    const reads = fake.calls.slice(1);
+    expect(reads.length).toBeGreaterThan(2);
+    expect(reads.every((c) => c.q.get('embed') === 'e7' && !c.q.has('key'))).toBe(true);
+    t.dispose();
+  });
+
   it('shows words, not a blank box, when no satellites are set', () => {
     const fake = fakeApi();
     const { t } = make(fake, { attrs: {} });

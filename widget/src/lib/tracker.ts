@@ -20,6 +20,8 @@ export interface SatState {
   samples: Sample[];
   plan: WindowPlan | null;
   passes: Pass[] | null;
+  /** Never sets for the observer (a high orbit always above the horizon). */
+  alwaysUp: boolean;
   /** A problem that concerns only this satellite (not found, stale, decayed). */
   notice: Notice | null;
   /** Gone for good (not found, decayed): no more requests for it. */
@@ -99,7 +101,7 @@ export class Tracker {
 
   constructor(private readonly opts: TrackerOptions) {
     this.now = opts.now ?? Date.now;
-    this.api = new NadirApi(opts.apiBase, opts.apiKey, opts.fetch);
+    this.api = new NadirApi(opts.apiBase, opts.apiKey, opts.fetch, opts.embedId ?? '');
     const settings = settle(opts.attrs);
     this.state = reactive({
       phase: opts.embedId ? 'config' : 'loading',
@@ -161,6 +163,7 @@ export class Tracker {
       samples: markRaw([]),
       plan: null,
       passes: null,
+      alwaysUp: false,
       notice: null,
       dead: false,
     }));
@@ -193,29 +196,45 @@ export class Tracker {
       if (!r.ok) return this.problem(r, null) ?? undefined;
       this.embed = r.value;
       this.state.embed = markRaw(r.value);
-      if (r.value.apiKey && !this.opts.apiKey) this.api = new NadirApi(this.opts.apiBase, r.value.apiKey, this.opts.fetch);
+      if (r.value.apiKey && !this.opts.apiKey) this.api = new NadirApi(this.opts.apiBase, r.value.apiKey, this.opts.fetch, r.value.id);
       this.useSettings(settle(this.opts.attrs, r.value));
       this.state.phase = 'loading';
       if (this.state.fatal) return undefined;
     }
     this.state.fatal = null;
 
-    // metadata of satellites not yet known
+    // metadata of satellites not yet known: /v1/satellites/{id} carries the derived elements;
+    // /elements is asked only when the answer has none of its own
     for (const sat of this.state.sats) {
       if (sat.dead || sat.elements) continue;
-      const [meta, el] = await Promise.all([this.api.satellite(sat.id, signal), this.api.elements(sat.id, signal)]);
+      const meta = await this.api.satellite(sat.id, signal);
       if (signal.aborted) return undefined;
-      if (meta.ok && typeof meta.value.name === 'string' && meta.value.name) sat.name = meta.value.name;
-      const bad = !meta.ok ? meta : !el.ok ? el : null;
-      if (bad) {
-        const stop = this.problem(bad, sat);
+      if (!meta.ok) {
+        const stop = this.problem(meta, sat);
         if (stop !== null) return stop;
         continue;
       }
-      if (!el.ok) continue;
-      sat.elements = el.value;
-      sat.notice = el.value.stale
-        ? noticeFor({ code: 'stale-element-set', status: 200 }, { satellite: sat.name, ageDays: el.value.ageDays })
+      if (typeof meta.value.name === 'string' && meta.value.name) sat.name = meta.value.name;
+      let el: ElementsInfo | null | undefined = meta.value.derived;
+      if (el === undefined) {
+        const r = await this.api.elements(sat.id, signal);
+        if (signal.aborted) return undefined;
+        if (!r.ok) {
+          const stop = this.problem(r, sat);
+          if (stop !== null) return stop;
+          continue;
+        }
+        el = r.value;
+      }
+      if (!el || !Number.isFinite(el.periodMin)) {
+        sat.dead = true;
+        sat.notice = noticeFor({ code: 'no-elements', status: 200 }, { satellite: sat.name });
+        this.report(sat.notice, { code: 'no-elements', status: 200 }, sat.id);
+        continue;
+      }
+      sat.elements = markRaw(el);
+      sat.notice = el.stale
+        ? noticeFor({ code: 'stale-element-set', status: 200 }, { satellite: sat.name, ageDays: el.ageDays })
         : null;
     }
 
@@ -260,7 +279,8 @@ export class Tracker {
           if (stop !== null) return stop;
           continue;
         }
-        sat.passes = Array.isArray(r.value.passes) ? r.value.passes : [];
+        sat.passes = markRaw(Array.isArray(r.value.passes) ? r.value.passes : []);
+        sat.alwaysUp = r.value.alwaysUp === true;
         this.passKey.set(sat.id, key);
       }
     }
