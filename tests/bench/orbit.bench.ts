@@ -89,9 +89,9 @@ async function passBench(): Promise<void> {
   };
   runFast(); // warm up
   const fastMs: number[] = [];
-  for (let i = 0; i < 7; i++) fastMs.push(timeIt(runFast));
+  for (let i = 0; i < 15; i++) fastMs.push(timeIt(runFast));
   const slowMs: number[] = [];
-  for (let i = 0; i < 2; i++) slowMs.push(timeIt(runSlow));
+  for (let i = 0; i < 3; i++) slowMs.push(timeIt(runSlow));
   const f = median(fastMs);
   const s = median(slowMs);
   let worstS = 0;

@@ -6,7 +6,7 @@
  */
 import type { SatRec } from 'satellite.js';
 import type { Result } from '../types.ts';
-import { CIVIL_TWILIGHT_DEG, EARTH_ROTATION_RAD_S, MS_PER_DAY, MS_PER_MIN } from './constants.ts';
+import { CIVIL_TWILIGHT_DEG, EARTH_RADIUS_WGS72_KM, EARTH_ROTATION_RAD_S, MS_PER_DAY, MS_PER_MIN } from './constants.ts';
 import { gmstRad, isSunlit, sunVector } from './frames.ts';
 import type { SunVector } from './frames.ts';
 import { eciStateToEcef, lookAnglesFromEcef, observerSite, sunElevationDeg, validateObserver } from './observer.ts';
@@ -52,8 +52,10 @@ const MIN_STEP_MS = 2_000;
 const MAX_STEP_MS = 600_000;
 /** Stop refining a time once its bracket is this narrow, ms. */
 const TIME_TOLERANCE_MS = 20;
-/** While the observer is in darkness, the satellite's sunlight is sampled at least this often, ms. */
+/** The observer's darkness is sampled this often over a pass, ms. */
 const VISIBILITY_STEP_MS = 10_000;
+/** While the observer is in darkness, the satellite's sunlight is sampled at least this often, ms. */
+const SUNLIT_STEP_MS = 20_000;
 const SUN_REFRESH_MS = 10 * MS_PER_MIN;
 const INV_PHI = (Math.sqrt(5) - 1) / 2;
 
@@ -67,6 +69,7 @@ export class PropagationStop extends Error {
 /** Everything needed to look at one satellite from one place, with a small Sun cache. */
 export class SkyView {
   private readonly epochMs: number;
+  readonly observerRadiusKm: number;
   private sun: SunVector;
   private sunAt: number;
 
@@ -76,6 +79,8 @@ export class SkyView {
     readonly maskDeg: number,
   ) {
     this.epochMs = satrecEpochMs(satrec);
+    const o = site.ecefKm;
+    this.observerRadiusKm = Math.sqrt(o.x * o.x + o.y * o.y + o.z * o.z);
     this.sunAt = Number.NaN;
     this.sun = sunVector(0);
   }
@@ -88,17 +93,26 @@ export class SkyView {
     return { p: s.position, v: s.velocity };
   }
 
-  /** Elevation minus the mask, deg, and the angular speed of the satellite about the Earth, rad/s. */
-  elevation(t: number): { e: number; angularRateRadS: number } {
+  /**
+   * Elevation minus the mask (deg), the satellite's inertial angular speed about the Earth's
+   * centre (rad/s: |r x v| / |r|^2) and the geocentric angle between the observer and the
+   * satellite (rad).
+   */
+  elevation(t: number): { e: number; angularRateRadS: number; centralAngleRad: number } {
     const { p, v } = this.state(t);
     const ecef = eciStateToEcef(p, v, gmstRad(t));
     const la = lookAnglesFromEcef(this.site, ecef.r);
-    // |r x v| / |r|^2: the satellite's inertial angular speed.
     const cx = p.y * v.z - p.z * v.y;
     const cy = p.z * v.x - p.x * v.z;
     const cz = p.x * v.y - p.y * v.x;
     const r2 = p.x * p.x + p.y * p.y + p.z * p.z;
-    return { e: la.elevationDeg - this.maskDeg, angularRateRadS: Math.sqrt(cx * cx + cy * cy + cz * cz) / r2 };
+    const o = this.site.ecefKm;
+    const cosCentral = (ecef.r.x * o.x + ecef.r.y * o.y + ecef.r.z * o.z) / (Math.sqrt(r2) * this.observerRadiusKm);
+    return {
+      e: la.elevationDeg - this.maskDeg,
+      angularRateRadS: Math.sqrt(cx * cx + cy * cy + cz * cz) / r2,
+      centralAngleRad: Math.acos(Math.max(-1, Math.min(1, cosCentral))),
+    };
   }
 
   /** Elevation minus mask only. */
@@ -265,29 +279,66 @@ export function findPasses(
   }
 }
 
+/**
+ * Bounds for skipping: the largest geocentric angle from the observer at which the satellite can
+ * be above the mask, and the fastest the satellite's direction can move over the ground.
+ * Spherical geometry: a satellite at radius r seen from radius Ro at elevation eps lies
+ * acos((Ro / r) cos eps) - eps from the observer (Wertz SMAD 5.2 with the observer's radius).
+ * Margins cover the ellipsoid (geodetic and geocentric vertical differ by < 0.2 deg, common
+ * practice) and the periodic terms SGP4 adds to the mean elements.
+ */
+function horizonReach(view: SkyView): { maxCentralAngleRad: number; maxRateRadS: number } | undefined {
+  const { satrec } = view;
+  const e = Math.min(0.999, satrec.ecco + 0.02);
+  const apogeeKm = satrec.a * (1 + e) * EARTH_RADIUS_WGS72_KM * 1.01 + 20;
+  const epsRad = (Math.max(-89, view.maskDeg - 1) * Math.PI) / 180;
+  const ratio = (view.observerRadiusKm / apogeeKm) * Math.cos(epsRad);
+  if (!(ratio > 0 && ratio < 1) || !(satrec.no > 0)) return undefined;
+  const maxCentralAngleRad = Math.acos(ratio) - epsRad;
+  // Angular rate at perigee: n (1 + e)^2 / (1 - e^2)^(3/2) (two-body, from h = r^2 dnu/dt).
+  const perigeeRate = ((satrec.no / 60) * (1 + e) ** 2) / (1 - e * e) ** 1.5;
+  const maxRateRadS = perigeeRate * 1.1 + EARTH_ROTATION_RAD_S * 1.01;
+  if (!(maxCentralAngleRad > 0 && maxCentralAngleRad < Math.PI && Number.isFinite(maxRateRadS))) return undefined;
+  return { maxCentralAngleRad, maxRateRadS };
+}
+
 function searchPasses(view: SkyView, startMs: number, endMs: number, sunlitCheck: boolean): PassList {
   const f = (t: number): number => view.e(t);
-  // Coarse scan: step so the satellite moves about COARSE_STEP_RAD relative to the ground.
+  // Coarse scan: step so the satellite moves about COARSE_STEP_RAD relative to the ground; far
+  // from the observer, jump as far as the satellite surely stays below the mask.
+  const reach = horizonReach(view);
   const grid: Sample[] = [];
+  /** safe[k]: the satellite is surely below the mask between grid[k] and grid[k + 1]. */
+  const safe: boolean[] = [];
   let t = startMs;
   for (;;) {
-    const { e, angularRateRadS } = view.elevation(t);
+    const { e, angularRateRadS, centralAngleRad } = view.elevation(t);
     grid.push({ t, e });
     if (t >= endMs) break;
-    const step = Math.min(MAX_STEP_MS, Math.max(MIN_STEP_MS, (COARSE_STEP_RAD / (angularRateRadS + EARTH_ROTATION_RAD_S)) * 1000));
+    let step = Math.min(MAX_STEP_MS, Math.max(MIN_STEP_MS, (COARSE_STEP_RAD / (angularRateRadS + EARTH_ROTATION_RAD_S)) * 1000));
+    let isSafe = false;
+    if (reach && e < 0) {
+      const jump = ((centralAngleRad - reach.maxCentralAngleRad) / reach.maxRateRadS) * 1000;
+      if (jump > step) {
+        step = jump;
+        isSafe = true;
+      }
+    }
+    safe.push(isSafe);
     t = Math.min(endMs, t + step);
   }
 
-  // Refine every local maximum (and every dip that stays above the mask) between coarse samples.
+  // Refine every local maximum (and every dip that stays above the mask) between coarse samples;
+  // a neighbour across a safe jump does not count (the satellite is below the mask in there).
   const maxima: Sample[] = [];
   const extra: Sample[] = [];
   const n = grid.length;
   for (let k = 0; k < n; k++) {
     const cur = grid[k] as Sample;
-    const prev = grid[k - 1];
-    const next = grid[k + 1];
+    const prev = safe[k - 1] ? undefined : grid[k - 1];
+    const next = safe[k] ? undefined : grid[k + 1];
     if (!prev && !next) {
-      maxima.push(cur);
+      if (cur.e > 0 || n === 1) maxima.push(cur);
       continue;
     }
     const lo = prev ? prev.t : cur.t;
@@ -356,36 +407,50 @@ function searchPasses(view: SkyView, startMs: number, endMs: number, sunlitCheck
   return { passes, alwaysUp: false };
 }
 
+/** First time in (a, b] where `test` no longer gives `from`, to within 0.5 s (bisection). */
+function boolEdge(test: (t: number) => boolean, a0: number, b0: number, from: boolean): number {
+  let a = a0;
+  let b = b0;
+  while (b - a > 500) {
+    const m = (a + b) / 2;
+    if (test(m) === from) a = m;
+    else b = m;
+  }
+  return b;
+}
+
 /**
- * Whether the visibility condition holds at some instant of [rise, set]: sampled every <= 10 s,
- * and every 1 s inside a step where darkness and sunlight each hold at one end but not together.
+ * Whether the visibility condition holds at some instant of [rise, set]. The observer's darkness
+ * needs no propagation: it is sampled every 10 s and its edges bisected to 0.5 s. Only inside the
+ * dark stretches is the satellite's sunlight looked at, at both ends and at least every 20 s.
  */
 function passVisible(view: SkyView, rise: number, set: number): boolean {
-  const steps = Math.max(1, Math.ceil((set - rise) / VISIBILITY_STEP_MS));
   const darkAt = (t: number): boolean => view.observerSunElevationDeg(t) < CIVIL_TWILIGHT_DEG;
-  // Sunlight needs a propagation: only ask for it next to darkness.
+  const steps = Math.max(1, Math.ceil((set - rise) / VISIBILITY_STEP_MS));
+  const darkRuns: [number, number][] = [];
   let prevT = rise;
   let prevDark = darkAt(rise);
-  let prevLit: boolean | undefined = prevDark ? view.sunlitAt(rise) : undefined;
-  if (prevDark && prevLit) return true;
+  let darkFrom: number | undefined = prevDark ? rise : undefined;
   for (let i = 1; i <= steps; i++) {
     const t = rise + ((set - rise) * i) / steps;
     const dark = darkAt(t);
-    if (dark || prevDark) {
-      const lit = view.sunlitAt(t);
-      if (dark && lit) return true;
-      prevLit ??= view.sunlitAt(prevT);
-      if (lit || prevLit) {
-        for (let u = prevT + 1000; u < t; u += 1000) {
-          if (darkAt(u) && view.sunlitAt(u)) return true;
-        }
+    if (dark !== prevDark) {
+      const edge = boolEdge(darkAt, prevT, t, prevDark);
+      if (dark) darkFrom = edge;
+      else if (darkFrom !== undefined) {
+        darkRuns.push([darkFrom, Math.max(darkFrom, edge - 500)]);
+        darkFrom = undefined;
       }
-      prevLit = lit;
-    } else {
-      prevLit = undefined;
     }
     prevDark = dark;
     prevT = t;
+  }
+  if (darkFrom !== undefined) darkRuns.push([darkFrom, set]);
+  for (const [a, b] of darkRuns) {
+    const n = Math.max(1, Math.ceil((b - a) / SUNLIT_STEP_MS));
+    for (let j = 0; j <= n; j++) {
+      if (view.sunlitAt(a + ((b - a) * j) / n)) return true;
+    }
   }
   return false;
 }
