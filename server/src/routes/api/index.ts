@@ -6,7 +6,7 @@
 import express, { Router } from 'express';
 import type { AppContext } from '../../context.ts';
 import { csrfProtection } from '../../http/csrf.ts';
-import { requireRole } from '../../http/roles.ts';
+import { ACCESS, requireRole, type Access, type Action } from '../../http/roles.ts';
 import { securityHeaders } from '../../http/security.ts';
 import { createSessionMiddleware } from '../../http/session.ts';
 import { getMailService } from '../../services/mail.ts';
@@ -17,6 +17,13 @@ import { orgRoutes } from './orgs.ts';
 import type { ApiRoute } from './routes.ts';
 import { satelliteRoutes } from './satellites.ts';
 import { usageRoutes } from './usage.ts';
+
+declare module '../../context.ts' {
+  interface AppServices {
+    /** What createApiRouter mounted: method, path under /api, role-table action and who may call it. */
+    apiRoutes?: Array<{ method: ApiRoute['method']; path: string; action: Action; access: Access }>;
+  }
+}
 
 /** Every /api route with its action, in mounting order. */
 export function buildApiRoutes(ctx: AppContext): ApiRoute[] {
@@ -35,7 +42,9 @@ export async function createApiRouter(ctx: AppContext): Promise<Router> {
   router.use(createSessionMiddleware(ctx));
   router.use(csrfProtection);
   router.use(express.json({ limit: '2mb' }));
-  for (const route of buildApiRoutes(ctx)) {
+  const routes = buildApiRoutes(ctx);
+  ctx.services.apiRoutes = routes.map((r) => ({ method: r.method, path: r.path, action: r.action, access: ACCESS[r.action] }));
+  for (const route of routes) {
     router[route.method](route.path, requireRole(route.action), ...route.handlers);
   }
   return router;
