@@ -15,6 +15,7 @@ import { createV1Router } from './routes/v1/index.ts';
 import { getEmbedService } from './services/embeds.ts';
 import { getKeyService } from './services/keys.ts';
 import { getQuotaService } from './services/quota.ts';
+import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
 
 export interface NadirlineApp {
@@ -40,6 +41,7 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   getUsageRecorder(context);
   getQuotaService(context);
   getEmbedService(context);
+  getSatelliteService(context);
 
   const app = express();
   app.disable('x-powered-by');

@@ -1,8 +1,362 @@
-/** Static hosting: the console SPA, the widget build, the examples and hosted embed pages. */
-import { Router } from 'express';
+/**
+ * Static hosting and pages served by the app:
+ *   /widget/*          widget/dist: hashed files cached for a year (immutable), nadir-track.js and
+ *                      nadir-track.iife.js for 5 minutes; readable from any origin (CORS *, CORP
+ *                      cross-origin), since pages on other sites load them.
+ *   /embed/:id         a page holding only <nadir-track embed="ID"> for a saved embed; framable by
+ *                      the origins of the embed's key.
+ *   /examples/*        examples/: in demo mode, {{BROWSER_KEY}}, {{SATELLITE_IDS}}, {{EMBED_ID}} and
+ *                      {{API_BASE}} in .html/.js files are replaced from the demo credentials.
+ *   /docs/api          API reference rendered from the OpenAPI document; /docs/problems the problem codes.
+ *   /fonts/*.woff2     Work Sans (from @fontsource/work-sans) for the server's own pages.
+ *   /                  console/dist, a single-page app: other GETs that accept HTML and are not
+ *                      under /v1, /api, /dev get index.html (history fallback).
+ * Missing builds answer a clear page (HTML) or problem (anything else).
+ */
+import fs from 'node:fs';
+import { createRequire } from 'node:module';
+import path from 'node:path';
+import express, { Router, type Request, type Response } from 'express';
+import { repoRoot } from '../config.ts';
 import type { AppContext } from '../context.ts';
+import { HttpError, PROBLEM_TYPE_BASE, sendProblem } from '../http/problem.ts';
+import { securityHeaders } from '../http/security.ts';
+import { getEmbedService } from '../services/embeds.ts';
+import { getKeyService } from '../services/keys.ts';
+import { buildOpenApi, PROBLEM_DOCS } from '../services/openapi.ts';
+import { CAPS } from './v1/schemas.ts';
 
-export async function createSiteRouter(_ctx: AppContext): Promise<Router> {
+const YEAR_S = 31_536_000;
+const HASHED = /[.-][A-Za-z0-9_-]{8,}\.[a-z0-9]+$/;
+
+export function esc(s: string): string {
+  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c);
+}
+
+function fontDir(): string | null {
+  try {
+    const require = createRequire(import.meta.url);
+    return path.join(path.dirname(require.resolve('@fontsource/work-sans/package.json')), 'files');
+  } catch {
+    const p = path.join(repoRoot, 'node_modules', '@fontsource', 'work-sans', 'files');
+    return fs.existsSync(p) ? p : null;
+  }
+}
+
+/** Calm paper palette of the server's own pages (docs, placeholders). */
+const PAGE_CSS = `
+@font-face { font-family: 'Work Sans'; font-weight: 400; font-style: normal; font-display: swap; src: url(/fonts/work-sans-latin-400-normal.woff2) format('woff2'); }
+@font-face { font-family: 'Work Sans'; font-weight: 600; font-style: normal; font-display: swap; src: url(/fonts/work-sans-latin-600-normal.woff2) format('woff2'); }
+:root { --paper: #f7f4ed; --ink: #2a2925; --muted: #6a655a; --rule: #dcd5c6; --accent: #1d5e63; --code: #efe9dc; --warn: #8a4b16; }
+@media (prefers-color-scheme: dark) { :root { --paper: #1c1d1f; --ink: #e8e4da; --muted: #a59f92; --rule: #3a3a38; --accent: #7cc2c4; --code: #27292b; --warn: #e0a86a; } }
+* { box-sizing: border-box; }
+body { margin: 0; background: var(--paper); color: var(--ink); font: 16px/1.55 'Work Sans', system-ui, sans-serif; }
+main { max-width: 58rem; margin: 0 auto; padding: 2rem 1.25rem 4rem; }
+h1 { font-weight: 600; font-size: 1.9rem; margin: 0 0 .25rem; }
+h2 { font-weight: 600; font-size: 1.3rem; margin: 2.5rem 0 .5rem; padding-top: 1rem; border-top: 1px solid var(--rule); }
+h3 { font-weight: 600; font-size: 1rem; margin: 1.25rem 0 .25rem; }
+a { color: var(--accent); }
+code, pre { font-family: ui-monospace, 'SFMono-Regular', Menlo, Consolas, monospace; font-size: .88em; background: var(--code); border-radius: 3px; }
+code { padding: .05em .3em; }
+pre { padding: .75rem; overflow-x: auto; }
+table { border-collapse: collapse; width: 100%; margin: .5rem 0 1rem; font-size: .94rem; }
+th, td { text-align: left; vertical-align: top; padding: .35rem .5rem; border-bottom: 1px solid var(--rule); }
+th { font-weight: 600; color: var(--muted); }
+.method { display: inline-block; min-width: 3.5rem; font-weight: 600; color: var(--accent); }
+.muted { color: var(--muted); }
+.note { border-left: 3px solid var(--warn); padding: .25rem .75rem; color: var(--muted); }
+nav.top { display: flex; gap: 1rem; font-size: .95rem; margin-bottom: 1.5rem; }
+`;
+
+function page(title: string, body: string): string {
+  return `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="color-scheme" content="light dark"><title>${esc(title)} · Nadirline</title>
+<style>${PAGE_CSS}</style></head>
+<body><main>${body}</main></body></html>`;
+}
+
+// ---------------------------------------------------------------------------------------------
+// API reference, rendered from the OpenAPI document.
+
+type Json = Record<string, unknown>;
+
+function schemaText(schema: Json | undefined): string {
+  if (!schema) return '';
+  const parts: string[] = [];
+  const type = schema.type ?? (schema.enum ? 'enum' : schema.anyOf ? 'one of' : '');
+  parts.push(String(type));
+  if (Array.isArray(schema.enum)) parts.push(`(${schema.enum.map((v) => `<code>${esc(String(v))}</code>`).join(' | ')})`);
+  if (schema.format) parts.push(`<span class="muted">${esc(String(schema.format))}</span>`);
+  if (schema.minimum !== undefined || schema.maximum !== undefined) parts.push(`<span class="muted">${schema.minimum ?? '…'} to ${schema.maximum ?? '…'}</span>`);
+  if (schema.default !== undefined) parts.push(`<span class="muted">default ${esc(JSON.stringify(schema.default))}</span>`);
+  return parts.join(' ');
+}
+
+function fieldsTable(schema: Json | undefined): string {
+  const props = (schema?.properties ?? null) as Record<string, Json> | null;
+  if (!props) return '';
+  const rows = Object.entries(props)
+    .map(([k, v]) => {
+      const inner = v.type === 'array' ? (v.items as Json | undefined) : v;
+      const nested = inner?.properties ? ` <span class="muted">{ ${Object.keys(inner.properties as Json).map(esc).join(', ')} }</span>` : '';
+      return `<tr><td><code>${esc(k)}</code></td><td>${schemaText(v)}${nested}</td><td>${esc(String(v.description ?? ''))}</td></tr>`;
+    })
+    .join('');
+  return `<table><tr><th>field</th><th>type</th><th>meaning</th></tr>${rows}</table>`;
+}
+
+export function renderApiReference(doc: ReturnType<typeof buildOpenApi>): string {
+  const info = doc.info as Json;
+  const sections: string[] = [];
+  const index: string[] = [];
+  for (const [p, ops] of Object.entries(doc.paths)) {
+    for (const [method, opRaw] of Object.entries(ops)) {
+      const op = opRaw as Json;
+      const anchor = String(op.operationId);
+      index.push(`<li><a href="#${esc(anchor)}"><span class="method">${method.toUpperCase()}</span> <code>${esc(p)}</code></a> <span class="muted">${esc(String(op.summary))}</span></li>`);
+      const params = (op.parameters as Json[]).filter((x) => x.in !== 'query' || (x.name !== 'key' && x.name !== 'embed'));
+      const paramRows = params
+        .map((x) => `<tr><td><code>${esc(String(x.name))}</code></td><td>${esc(String(x.in))}${x.required ? ', required' : ''}</td><td>${schemaText(x.schema as Json)}</td><td>${esc(String(x.description ?? ''))}</td></tr>`)
+        .join('');
+      const responses = Object.entries(op.responses as Record<string, Json>)
+        .map(([status, r]) => {
+          const content = r.content as Record<string, Json> | undefined;
+          const json = content?.['application/json']?.schema as Json | undefined;
+          return `<h3>${esc(status)} <span class="muted">${esc(String(r.description ?? ''))}</span></h3>${status.startsWith('2') ? fieldsTable(json) : ''}`;
+        })
+        .join('');
+      const body = op.requestBody as Json | undefined;
+      const bodyTypes = body ? Object.keys(body.content as Json) : [];
+      const bodyJson = body ? (((body.content as Json)['application/json'] as Json | undefined)?.schema as Json | undefined) : undefined;
+      sections.push(`<section id="${esc(anchor)}">
+<h2><span class="method">${method.toUpperCase()}</span> <code>${esc(p)}</code></h2>
+<p>${esc(String(op.summary))}</p>
+${op.description ? `<p class="muted">${esc(String(op.description))}</p>` : ''}
+<p class="muted">Credential: ${(op.security as unknown[]).length === 0 ? 'none' : method === 'post' ? 'server key with <code>element-sets:write</code> (Authorization: Bearer)' : 'any key (Authorization: Bearer), or <code>?key=</code> with a browser key, or <code>?embed=</code>'}</p>
+${paramRows ? `<table><tr><th>parameter</th><th>in</th><th>type</th><th>meaning</th></tr>${paramRows}</table>` : ''}
+${bodyTypes.length ? `<h3>Body</h3><p>${bodyTypes.map((t) => `<code>${esc(t)}</code>`).join(', ')}</p>${fieldsTable(bodyJson)}` : ''}
+${responses}
+</section>`);
+    }
+  }
+  const caps = doc['x-caps'] as Json;
+  return page(
+    'API reference',
+    `<nav class="top"><a href="/">Console</a><a href="/docs/problems">Problem codes</a><a href="/v1/openapi.json">openapi.json</a></nav>
+<h1>${esc(String(info.title))}</h1>
+<p class="muted">Version ${esc(String(info.version))} · base URL <code>${esc(String((doc.servers as Json[])[0]?.url ?? ''))}/v1</code></p>
+<p>${esc(String(info.description))}</p>
+<h2>Keys</h2>
+<p><strong>Browser keys</strong> (<code>nlb_…</code>) are read-only and work only from web pages of the origins they list (exact, like <code>https://www.example.org</code>, or a wildcard subdomain, like <code>https://*.example.org</code>); they may go in page source and in <code>?key=</code> on GET. A request with a browser key that names no origin (no Origin or Referer header, as from curl) is refused. <strong>Server keys</strong> (<code>nls_…</code>) are secret and belong on your backend, in the <code>Authorization: Bearer</code> header only; with the <code>element-sets:write</code> scope they may upload element sets. A rotated key keeps working until its grace period ends; a revoked key stops at once.</p>
+<h2>Limits</h2>
+<table><tr><th>limit</th><th>value</th></tr>
+<tr><td>track window</td><td>at most ${Number(caps.trackMaxWindowS) / 3600} h</td></tr>
+<tr><td>track points</td><td>at most ${esc(String(caps.trackMaxPoints))}; step ${esc(String(caps.trackMinStepS))} to ${esc(String(caps.trackMaxStepS))} s</td></tr>
+<tr><td>passes</td><td>at most ${esc(String(caps.passesMaxDays))} days per request</td></tr>
+<tr><td>positions</td><td>at most ${esc(String(caps.positionsMaxIds))} ids per request</td></tr>
+<tr><td>uploads</td><td>${Number(caps.uploadMaxBytes) / 1024 / 1024} MiB per body or file, ${esc(String(caps.uploadMaxFiles))} files</td></tr>
+<tr><td>rate</td><td>per key, requests per minute as set on the key; 429 with <code>Retry-After</code> and the <code>RateLimit</code> / <code>RateLimit-Policy</code> headers</td></tr>
+<tr><td>quota</td><td>requests per calendar month (UTC) per organization, by plan; 429 <code>quota-exceeded</code> when spent</td></tr></table>
+<p class="note">Positions come from mean element sets and SGP4: good to kilometres near epoch and worse as sets age. Not for collision avoidance, navigation, safety-of-life or operational decisions. Never point optics at or near the Sun.</p>
+<h2>Routes</h2>
+<ul>${index.join('')}</ul>
+${sections.join('\n')}`,
+  );
+}
+
+export function renderProblems(): string {
+  const rows = PROBLEM_DOCS.map(
+    (p) => `<tr id="${esc(p.code)}"><td><code>${esc(p.code)}</code></td><td>${p.status}</td><td>${esc(p.title)}</td><td>${esc(p.meaning)}</td></tr>`,
+  ).join('');
+  return page(
+    'Problem codes',
+    `<nav class="top"><a href="/">Console</a><a href="/docs/api">API reference</a></nav>
+<h1>Problem codes</h1>
+<p>Every error is <code>application/problem+json</code> (RFC 9457): <code>type</code> (this page and the code as fragment, <code>${esc(PROBLEM_TYPE_BASE)}&lt;code&gt;</code>), <code>title</code>, <code>status</code>, <code>detail</code> (a sentence for people), and <code>code</code> (stable, for programs). Validation problems add <code>errors: [{ where, message, field?, line?, column? }]</code>.</p>
+<table><tr><th>code</th><th>status</th><th>title</th><th>meaning and what to do</th></tr>${rows}</table>`,
+  );
+}
+
+// ---------------------------------------------------------------------------------------------
+
+interface DemoCredentialsFile {
+  browserKey?: string;
+  satellites?: Array<{ id: string }>;
+  embedId?: string;
+}
+
+function substituteDemo(text: string, creds: DemoCredentialsFile | null, apiBase: string): string {
+  return text
+    .replaceAll('{{BROWSER_KEY}}', creds?.browserKey ?? 'YOUR_BROWSER_KEY')
+    .replaceAll('{{SATELLITE_IDS}}', (creds?.satellites ?? []).map((s) => s.id).join(',') || 'YOUR_SATELLITE_IDS')
+    .replaceAll('{{EMBED_ID}}', creds?.embedId ?? 'YOUR_EMBED_ID')
+    .replaceAll('{{API_BASE}}', apiBase);
+}
+
+function missingBuild(res: Response, req: Request, what: string, command: string): void {
+  if (req.accepts(['html', 'json']) === 'html') {
+    res
+      .status(503)
+      .type('html')
+      .send(page(`${what} not built`, `<h1>The ${esc(what)} is not built yet</h1><p>Run <code>${esc(command)}</code> (or <code>npm start</code>, which builds everything) and reload.</p><p>The API works meanwhile: see <a href="/docs/api">the API reference</a>.</p>`));
+    return;
+  }
+  sendProblem(res, 'unavailable', `The ${what} is not built; run ${command}.`, {}, req.originalUrl);
+}
+
+export async function createSiteRouter(ctx: AppContext): Promise<Router> {
   const router = Router();
+  const { config } = ctx;
+  const widgetDist = path.join(repoRoot, 'widget', 'dist');
+  const consoleDist = path.join(repoRoot, 'console', 'dist');
+  const examplesDir = path.join(repoRoot, 'examples');
+  const consoleHeaders = securityHeaders(config, 'console');
+
+  // -- fonts for the server's own pages --------------------------------------------------------
+  const fonts = fontDir();
+  if (fonts) {
+    router.use('/fonts', express.static(fonts, { immutable: true, maxAge: YEAR_S * 1000, index: false, fallthrough: false }));
+  }
+
+  // -- widget ----------------------------------------------------------------------------------
+  router.use('/widget', (req, res, next) => {
+    res.setHeader('Access-Control-Allow-Origin', '*');
+    res.setHeader('Cross-Origin-Resource-Policy', 'cross-origin');
+    res.setHeader('X-Content-Type-Options', 'nosniff');
+    if (!fs.existsSync(path.join(widgetDist, 'nadir-track.js'))) {
+      missingBuild(res, req, 'widget', 'npm run build -w widget');
+      return;
+    }
+    next();
+  });
+  router.use(
+    '/widget',
+    express.static(widgetDist, {
+      index: false,
+      fallthrough: true,
+      setHeaders: (res, file) => {
+        const base = path.basename(file);
+        res.setHeader('Cache-Control', HASHED.test(base) && !base.startsWith('nadir-track.') ? `public, max-age=${YEAR_S}, immutable` : 'public, max-age=300, must-revalidate');
+      },
+    }),
+  );
+  router.use('/widget', (req, res) => sendProblem(res, 'not-found', `No widget file ${req.path}.`, {}, req.originalUrl));
+
+  // -- hosted embed page -----------------------------------------------------------------------
+  router.get('/embed/:id', async (req, res) => {
+    const embeds = getEmbedService(ctx);
+    const embed = await embeds.findEmbed(String(req.params.id));
+    if (!embed) {
+      consoleHeaders(req, res, () => undefined);
+      res.status(404).type('html').send(page('Embed not found', '<h1>This embed does not exist</h1><p>It may have been deleted. Ask the site that showed it for a new link.</p>'));
+      return;
+    }
+    const key = embed.apiKeyId ? await getKeyService(ctx).findById(embed.apiKeyId) : null;
+    const ancestors = ["'self'", ...(key?.origins ?? [])].join(' ');
+    const size = (v: unknown, d: string) => (typeof v === 'string' && /^[0-9.]+(px|rem|em|vh|vw|%)$/.test(v) ? v : d);
+    res.setHeader(
+      'Content-Security-Policy',
+      `default-src 'self'; script-src 'self'; style-src 'self' 'unsafe-inline'; img-src 'self' data: blob:; font-src 'self' data:; connect-src 'self'; object-src 'none'; base-uri 'none'; frame-ancestors ${ancestors}`,
+    );
+    res.setHeader('X-Content-Type-Options', 'nosniff');
+    res.setHeader('Referrer-Policy', 'strict-origin-when-cross-origin');
+    res.setHeader('Cache-Control', 'no-cache');
+    const template = path.join(repoRoot, 'widget', 'embed.html');
+    if (fs.existsSync(template)) {
+      const html = fs.readFileSync(template, 'utf8').replaceAll('{{EMBED_ID}}', esc(embed.id)).replaceAll('{{EMBED_NAME}}', esc(embed.name));
+      res.type('html').send(html);
+      return;
+    }
+    res.type('html').send(`<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<title>${esc(embed.name)} · Nadirline</title>
+<style>html,body{margin:0;height:100%;background:transparent}nadir-track{display:block;width:${size(embed.options.width, '100%')};height:${size(embed.options.height, '100%')}}</style>
+<script type="module" src="/widget/nadir-track.js"></script></head>
+<body><nadir-track embed="${esc(embed.id)}" api-base="/"></nadir-track></body></html>`);
+  });
+
+  // -- examples --------------------------------------------------------------------------------
+  let demoCreds: { at: number; value: DemoCredentialsFile | null } | undefined;
+  const credentials = (): DemoCredentialsFile | null => {
+    if (!config.demo) return null;
+    if (!demoCreds || Date.now() - demoCreds.at > 5_000) {
+      const file = path.join(config.dataDir, 'demo-credentials.json');
+      let value: DemoCredentialsFile | null = null;
+      try {
+        value = JSON.parse(fs.readFileSync(file, 'utf8')) as DemoCredentialsFile;
+      } catch {
+        value = null;
+      }
+      demoCreds = { at: Date.now(), value };
+    }
+    return demoCreds.value;
+  };
+  router.get('/examples', (_req, res) => res.redirect(301, '/examples/'));
+  router.use('/examples', async (req, res, next) => {
+    if (req.method !== 'GET' && req.method !== 'HEAD') return next();
+    let rel = decodeURIComponent(req.path);
+    if (rel.endsWith('/')) rel += 'index.html';
+    const file = path.resolve(examplesDir, `.${rel}`);
+    if (!file.startsWith(examplesDir + path.sep) || rel.includes('\0')) throw new HttpError('not-found', 'No such example.');
+    if (/(^|\/)(node_modules|package\.json|tsconfig)/.test(rel)) throw new HttpError('not-found', 'No such example.');
+    let stat: fs.Stats;
+    try {
+      stat = await fs.promises.stat(file);
+    } catch {
+      if (rel === '/index.html') {
+        res.type('html').send(page('Examples', '<h1>Examples</h1><p>No examples are installed yet.</p>'));
+        return;
+      }
+      throw new HttpError('not-found', `No example ${rel}.`);
+    }
+    if (!stat.isFile()) throw new HttpError('not-found', `No example ${rel}.`);
+    res.setHeader('Cache-Control', 'no-cache');
+    res.setHeader('X-Content-Type-Options', 'nosniff');
+    if (/\.(html|js|mjs|css|json|txt)$/.test(file)) {
+      const text = await fs.promises.readFile(file, 'utf8');
+      const host = req.get('host');
+      const apiBase = host ? `${req.protocol}://${host}` : config.publicUrl;
+      res.type(path.extname(file)).send(substituteDemo(text, credentials(), apiBase));
+      return;
+    }
+    res.sendFile(file);
+  });
+
+  // -- docs ------------------------------------------------------------------------------------
+  const reference = renderApiReference(buildOpenApi(config.publicUrl));
+  const problems = renderProblems();
+  router.get('/docs', (_req, res) => res.redirect(302, '/docs/api'));
+  router.get('/docs/api', consoleHeaders, (_req, res) => {
+    res.setHeader('Cache-Control', 'public, max-age=300');
+    res.type('html').send(reference);
+  });
+  router.get('/docs/problems', consoleHeaders, (_req, res) => {
+    res.setHeader('Cache-Control', 'public, max-age=300');
+    res.type('html').send(problems);
+  });
+
+  // -- console SPA -----------------------------------------------------------------------------
+  const indexFile = path.join(consoleDist, 'index.html');
+  router.use(
+    consoleHeaders,
+    express.static(consoleDist, {
+      index: false,
+      setHeaders: (res, file) => {
+        res.setHeader('Cache-Control', file.includes(`${path.sep}assets${path.sep}`) ? `public, max-age=${YEAR_S}, immutable` : 'no-cache');
+      },
+    }),
+  );
+  router.use((req, res, next) => {
+    if (req.method !== 'GET' && req.method !== 'HEAD') return next();
+    if (/^\/(v1|api|dev|widget|examples|fonts|assets)(\/|$)/.test(req.path) || /\.[a-z0-9]+$/i.test(req.path)) return next();
+    if (req.accepts(['html', 'json']) !== 'html') return next();
+    if (!fs.existsSync(indexFile)) {
+      missingBuild(res, req, 'console', 'npm run build -w console');
+      return;
+    }
+    res.setHeader('Cache-Control', 'no-cache');
+    res.sendFile(indexFile);
+  });
   return router;
 }

@@ -1,8 +1,385 @@
-/** The keyed public API, /v1 (contract in brief.md). */
-import { Router } from 'express';
+/**
+ * The keyed public API, /v1 (contract in brief.md; the route table and caps in ./schemas.ts).
+ * Each keyed route runs: CORS headers -> credential, origin and scope -> per-key rate limit ->
+ * monthly quota and usage count (memory only) -> query validation -> handler.
+ */
+import crypto from 'node:crypto';
+import express, { Router, type Request, type RequestHandler, type Response } from 'express';
+import multer from 'multer';
+import type { z } from 'zod';
+import {
+  findPasses,
+  footprintRadius,
+  isSunlit,
+  propagateAt,
+  sampleTrack,
+  sunVector,
+  trackToGeoJSON,
+  type TrackSample,
+} from '@nadirline/shared';
 import type { AppContext } from '../../context.ts';
+import { HttpError, type ProblemCode } from '../../http/problem.ts';
+import { Satellite } from '../../models/index.ts';
+import { getEmbedService, publicEmbed } from '../../services/embeds.ts';
+import { buildOpenApi } from '../../services/openapi.ts';
+import { parsedOf, type CachedSatellite, type CurrentSet } from '../../services/orbit-cache.ts';
+import { getSatelliteService, unprocessable, type ElementFormat, type SatelliteService } from '../../services/satellites.ts';
+import { authenticate, authOf, canSee, corsHeaders, keyRateLimit, preflight, quotaAndUsage, type V1Auth } from './auth.ts';
+import {
+  CAPS,
+  createSatelliteBody,
+  expressPath,
+  idParam,
+  passesQuery,
+  positionQuery,
+  positionsQuery,
+  routeTemplate,
+  trackQuery,
+  V1_ROUTES,
+  type RouteSpec,
+} from './schemas.ts';
 
-export async function createV1Router(_ctx: AppContext): Promise<Router> {
+const MINUTE_MS = 60_000;
+
+// ---------------------------------------------------------------------------------------------
+// Small helpers.
+
+function parseQuery<S extends z.ZodType>(schema: S, req: Request): z.output<S> {
+  const r = schema.safeParse(req.query);
+  if (!r.success) {
+    const errors = r.error.issues.map((i) => ({ where: `query.${i.path.join('.') || '(all)'}`, field: String(i.path[0] ?? ''), message: i.message }));
+    throw new HttpError('validation-failed', errors.map((e) => `${e.field || 'query'} ${e.message}`).join('; '), { errors });
+  }
+  return r.data;
+}
+
+function checkId(id: unknown): string {
+  const r = idParam.safeParse(id);
+  if (!r.success) throw new HttpError('not-found', 'No satellite has this id.');
+  return r.data;
+}
+
+const iso = (ms: number) => new Date(ms).toISOString();
+const round = (v: number, digits: number) => {
+  const f = 10 ** digits;
+  return Math.round(v * f) / f;
+};
+
+/** Map an engine failure code to our problem. */
+function engineProblem(code: string, message: string, satName: string): HttpError {
+  const problem: ProblemCode = code === 'decayed' ? 'decayed' : 'propagation-failed';
+  const hint =
+    code === 'too-far-from-epoch'
+      ? ' Ask for a time nearer the element set\u2019s epoch, or upload a fresh element set.'
+      : code === 'decayed'
+        ? ' Upload a fresh element set if the object is still in orbit.'
+        : '';
+  return new HttpError(problem, `${satName}: ${message}.${hint}`, { reason: code });
+}
+
+async function visibleSatellite(sats: SatelliteService, auth: V1Auth, rawId: unknown): Promise<CachedSatellite> {
+  const id = checkId(rawId);
+  const cached = await sats.current(id);
+  if (!cached || !canSee(auth, cached.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
+  return cached;
+}
+
+function requireSet(c: CachedSatellite): CurrentSet {
+  if (!c.current) throw new HttpError('no-element-set', `${c.satellite.name} has no element set yet; upload one (TLE or OMM) first.`);
+  return c.current;
+}
+
+function positionOf(cur: CurrentSet, atMs: number, name: string) {
+  const p = propagateAt(cur.satrec, atMs);
+  if (!p.ok) return { ok: false as const, error: engineProblem(p.code, p.message, name) };
+  return {
+    ok: true as const,
+    value: {
+      t: iso(atMs),
+      lat: round(p.latDeg, 5),
+      lon: round(p.lonDeg, 5),
+      altKm: round(p.altKm, 3),
+      speedKmS: round(p.speedKmS, 4),
+      footprintRadiusKm: round(footprintRadius(p.altKm, 0).radiusKm, 1),
+      sunlit: isSunlit(p.positionEciKm, sunVector(atMs)),
+    },
+  };
+}
+
+function pointJson(s: TrackSample) {
+  return { t: iso(s.t), lat: round(s.lat, 5), lon: round(s.lon, 5), altKm: round(s.altKm, 3), sunlit: s.sunlit };
+}
+
+// ---------------------------------------------------------------------------------------------
+
+export async function createV1Router(ctx: AppContext): Promise<Router> {
   const router = Router();
+  const sats = getSatelliteService(ctx);
+  const embeds = getEmbedService(ctx);
+  const limiter = keyRateLimit();
+  const openapi = buildOpenApi(ctx.config.publicUrl);
+  const openapiText = JSON.stringify(openapi, null, 2);
+  const openapiEtag = `"${crypto.createHash('sha1').update(openapiText).digest('base64url').slice(0, 20)}"`;
+
+  router.use(corsHeaders);
+  router.options('/*splat', preflight(ctx));
+
+  const spec = (method: RouteSpec['method'], path: string): RouteSpec => {
+    const s = V1_ROUTES.find((r) => r.method === method && (r.path === path || expressPath(r.path) === path));
+    if (!s) throw new Error(`no route spec for ${method} ${path}`);
+    return s;
+  };
+
+  /** Mount a keyed route from the table. */
+  const keyed = (method: RouteSpec['method'], path: string, ...handlers: RequestHandler[]) => {
+    const s = spec(method, path);
+    if (s.access === 'public') throw new Error('keyed() on a public route');
+    const chain: RequestHandler[] = [authenticate(ctx, s.access), limiter, quotaAndUsage(ctx, routeTemplate(s)), ...handlers];
+    if (method === 'get') router.get(expressPath(s.path), ...chain);
+    else router.post(expressPath(s.path), ...chain);
+  };
+
+  // -- satellites ------------------------------------------------------------------------------
+
+  keyed('get', '/satellites', async (_req, res) => {
+    const auth = authOf(res);
+    const rows = await Satellite.findAll({ where: { organizationId: auth.key.organizationId }, order: [['name', 'ASC']] });
+    const visible = rows.filter((s) => canSee(auth, s));
+    const now = new Date();
+    res.json({ satellites: await Promise.all(visible.map((s) => sats.view(s, now))) });
+  });
+
+  keyed('get', '/satellites/:id', async (req, res) => {
+    const c = await visibleSatellite(sats, authOf(res), req.params.id);
+    res.json(await sats.view(c.satellite));
+  });
+
+  keyed('get', '/satellites/:id/elements', async (req, res) => {
+    const c = await visibleSatellite(sats, authOf(res), req.params.id);
+    const cur = requireSet(c);
+    res.json(sats.derived(cur.elementSet));
+  });
+
+  keyed('get', '/satellites/:id/position', async (req, res) => {
+    const q = parseQuery(positionQuery, req);
+    const c = await visibleSatellite(sats, authOf(res), req.params.id);
+    const cur = requireSet(c);
+    const at = q.at ?? Date.now();
+    const p = positionOf(cur, at, c.satellite.name);
+    if (!p.ok) throw p.error;
+    res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
+    res.json({ satelliteId: c.satellite.id, ...p.value });
+  });
+
+  keyed('get', '/positions', async (req, res) => {
+    const q = parseQuery(positionsQuery, req);
+    const auth = authOf(res);
+    const at = q.at ?? Date.now();
+    const found = await Promise.all(q.ids.map((id) => sats.current(id)));
+    const missing = q.ids.filter((id, i) => {
+      const c = found[i];
+      return !c || !canSee(auth, c.satellite);
+    });
+    if (missing.length > 0) throw new HttpError('not-found', `No satellite ${missing.join(', ')} is visible to this key.`, { missing });
+    const positions = (found as CachedSatellite[]).map((c) => {
+      const base = { id: c.satellite.id, name: c.satellite.name };
+      if (!c.current) return { ...base, error: { code: 'no-element-set', detail: `${c.satellite.name} has no element set yet.` } };
+      const p = positionOf(c.current, at, c.satellite.name);
+      return p.ok ? { ...base, ...p.value } : { ...base, error: { code: p.error.code, detail: p.error.detail } };
+    });
+    res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
+    res.json({ t: iso(at), positions });
+  });
+
+  keyed('get', '/satellites/:id/track', async (req, res) => {
+    const q = parseQuery(trackQuery, req);
+    const c = await visibleSatellite(sats, authOf(res), req.params.id);
+    const cur = requireSet(c);
+    const stepS = q.step ?? CAPS.trackDefaultStepS;
+    const start = q.start ?? Math.floor(Date.now() / MINUTE_MS) * MINUTE_MS;
+    const periodMs = (1440 / cur.elementSet.meanMotionRevPerDay) * MINUTE_MS;
+    const end = q.end ?? start + Math.min(Math.ceil(periodMs / (stepS * 1000)) * stepS * 1000, CAPS.trackMaxWindowS * 1000);
+    if (end <= start) {
+      throw new HttpError('validation-failed', 'end must be after start.', { errors: [{ where: 'query.end', field: 'end', message: 'must be after start' }] });
+    }
+    if (end - start > CAPS.trackMaxWindowS * 1000) {
+      throw new HttpError('validation-failed', `The window is ${((end - start) / 3_600_000).toFixed(1)} h; at most ${CAPS.trackMaxWindowS / 3600} h per request.`, {
+        errors: [{ where: 'query.end', field: 'end', message: `at most ${CAPS.trackMaxWindowS / 3600} h after start` }],
+      });
+    }
+    const count = Math.floor((end - start) / (stepS * 1000) + 1e-9) + 1;
+    if (count > CAPS.trackMaxPoints) {
+      throw new HttpError('validation-failed', `This window and step give ${count} points; at most ${CAPS.trackMaxPoints} per request. Use a larger step or a shorter window.`, {
+        errors: [{ where: 'query.step', field: 'step', message: `gives ${count} points, more than ${CAPS.trackMaxPoints}` }],
+      });
+    }
+    const etag = `W/"${crypto.createHash('sha1').update(`${c.satellite.id}|${cur.record.id}|${start}|${end}|${stepS}|${q.format}|${c.satellite.name}`).digest('base64url').slice(0, 22)}"`;
+    const quantum = CAPS.trackCacheQuantumS * 1000;
+    const explicit = q.start !== undefined && q.end !== undefined;
+    res.setHeader('ETag', etag);
+    res.vary('Authorization');
+    res.setHeader(
+      'Cache-Control',
+      explicit && start % quantum === 0 && end % quantum === 0 ? 'public, max-age=600, stale-while-revalidate=60' : explicit ? 'private, max-age=60' : 'private, max-age=30',
+    );
+    if (req.fresh) {
+      res.status(304).end();
+      return;
+    }
+    const r = sampleTrack(cur.satrec, { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
+    if (!r.ok) throw engineProblem(r.code, r.message, c.satellite.name);
+    if (q.format === 'geojson') {
+      const fc = trackToGeoJSON(r.samples, {
+        satelliteId: c.satellite.id,
+        name: c.satellite.name,
+        elementSetId: cur.record.id,
+        start: iso(start),
+        end: iso(end),
+        stepS,
+      });
+      res.type('application/geo+json').send(JSON.stringify(fc));
+      return;
+    }
+    res.json({
+      satelliteId: c.satellite.id,
+      elementSetId: cur.record.id,
+      start: iso(start),
+      end: iso(r.samples[r.samples.length - 1]?.t ?? end),
+      stepS,
+      count: r.samples.length,
+      points: r.samples.map(pointJson),
+    });
+  });
+
+  keyed('get', '/satellites/:id/passes', async (req, res) => {
+    const q = parseQuery(passesQuery, req);
+    const c = await visibleSatellite(sats, authOf(res), req.params.id);
+    const cur = requireSet(c);
+    const start = q.start ?? Date.now();
+    const r = findPasses(cur.satrec, { latDeg: q.lat, lonDeg: q.lon, altM: q.altM }, { startMs: start, days: q.days, minElevationDeg: q.minElevation });
+    if (!r.ok) {
+      if (r.code === 'invalid-observer' || r.code === 'invalid-window') {
+        throw new HttpError('validation-failed', r.message, { errors: [{ where: 'query', message: r.message }] });
+      }
+      throw engineProblem(r.code, r.message, c.satellite.name);
+    }
+    res.setHeader('Cache-Control', q.start !== undefined ? 'private, max-age=300' : 'private, max-age=60');
+    res.json({
+      satelliteId: c.satellite.id,
+      observer: { lat: q.lat, lon: q.lon, altM: q.altM },
+      start: iso(start),
+      end: iso(start + q.days * 86_400_000),
+      minElevation: q.minElevation,
+      alwaysUp: r.alwaysUp,
+      passes: r.passes.map((p) => ({
+        rise: { t: iso(p.rise.t), azimuth: round(p.rise.azimuthDeg, 2) },
+        culmination: {
+          t: iso(p.culmination.t),
+          azimuth: round(p.culmination.azimuthDeg, 2),
+          elevation: round(p.culmination.elevationDeg, 2),
+          rangeKm: round(p.culmination.rangeKm, 1),
+        },
+        set: { t: iso(p.set.t), azimuth: round(p.set.azimuthDeg, 2) },
+        visible: p.visible,
+        inProgressAtStart: p.inProgressAtStart,
+        inProgressAtEnd: p.inProgressAtEnd,
+      })),
+    });
+  });
+
+  // -- writes ----------------------------------------------------------------------------------
+
+  const jsonBody = express.json({ limit: CAPS.uploadMaxBytes });
+  keyed('post', '/satellites', jsonBody, async (req, res) => {
+    if (!req.is('application/json')) throw new HttpError('unsupported-media-type', 'Send JSON: { "name": "...", "elements": "<TLE or OMM text>" }.');
+    const r = createSatelliteBody.safeParse(req.body);
+    if (!r.success) {
+      const errors = r.error.issues.map((i) => ({ where: `body.${i.path.join('.')}`, field: String(i.path[0] ?? ''), message: i.message }));
+      throw new HttpError('validation-failed', errors.map((e) => `${e.field} ${e.message}`).join('; '), { errors });
+    }
+    const auth = authOf(res);
+    const { satellite, upload } = await sats.createSatellite(
+      auth.key.organizationId,
+      { name: r.data.name, description: r.data.description, elementsText: r.data.elements },
+      { keyId: auth.key.id },
+    );
+    res.status(201).location(`/v1/satellites/${satellite.id}`).json({ ...(await sats.view(satellite)), report: upload?.report ?? [] });
+  });
+
+  const textBody = express.text({ type: ['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'], limit: CAPS.uploadMaxBytes });
+  const files = multer({ storage: multer.memoryStorage(), limits: { fileSize: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles, fields: 10 } }).any();
+  keyed('post', '/satellites/:id/element-sets', async (req, res, next) => {
+    // Check the satellite before reading any body.
+    const auth = authOf(res);
+    const id = checkId(req.params.id);
+    const c = await sats.current(id);
+    if (!c || !canSee(auth, c.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
+    if (req.is('multipart/form-data')) files(req, res, next);
+    else if (req.is(['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'])) textBody(req, res, next);
+    else throw new HttpError('unsupported-media-type', 'Send the element set as text/plain (TLE or OMM KVN), application/xml (OMM XML), application/json (OMM JSON) or multipart/form-data files.');
+  }, async (req, res) => {
+    const auth = authOf(res);
+    const satellite = await Satellite.findByPk(String(req.params.id));
+    if (!satellite) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
+    let format: ElementFormat | undefined;
+    let text: string | undefined;
+    let upFiles: Array<{ name: string; text: string }> | undefined;
+    if (req.is('multipart/form-data')) {
+      const list = (req.files as Express.Multer.File[] | undefined) ?? [];
+      upFiles = list.map((f) => ({ name: f.originalname || f.fieldname, text: f.buffer.toString('utf8') }));
+      const bodyText = (req.body as Record<string, unknown> | undefined)?.text;
+      if (typeof bodyText === 'string' && bodyText.trim()) text = bodyText;
+      if (upFiles.length === 0 && text === undefined) throw new HttpError('validation-failed', 'The form holds no file; send element sets as files[] (or a text field).');
+    } else {
+      text = typeof req.body === 'string' ? req.body : '';
+      if (req.is(['application/xml', 'text/xml', 'application/*+xml'])) format = 'omm-xml';
+      else if (req.is(['application/json', 'application/*+json'])) format = 'omm-json';
+      if (!text.trim()) throw new HttpError('validation-failed', 'The body is empty; send the element set itself.', { errors: [{ where: '(body)', message: 'empty' }] });
+    }
+    const result = await sats.addElementSets(satellite, { text, format, files: upFiles }, { keyId: auth.key.id });
+    if (result.accepted === 0) throw unprocessable(result.report);
+    const now = new Date();
+    const summaries = result.created.map((r) => {
+      const { uploadedBy: _omit, ...summary } = sats.summary(r, parsedOf(r), now);
+      return summary;
+    });
+    const first = result.created[0];
+    res.status(result.created.length > 0 ? 201 : 200).json({
+      elementSet: first ? { ...summaries[0], elements: parsedOf(first) } : null,
+      elementSets: summaries,
+      accepted: result.accepted,
+      rejected: result.rejected,
+      report: result.report,
+    });
+  });
+
+  // -- public ----------------------------------------------------------------------------------
+
+  router.get('/embeds/:id', authenticate(ctx, 'read', { embedFromPath: 'id' }), limiter, quotaAndUsage(ctx, 'GET /v1/embeds/{id}'), async (req, res) => {
+    const { embed } = authOf(res);
+    if (!embed) throw new HttpError('not-found', 'No such embed.');
+    res.setHeader('Cache-Control', 'private, max-age=30');
+    res.json(publicEmbed(embed));
+  });
+  void embeds;
+
+  router.get('/openapi.json', (req, res) => {
+    res.setHeader('Cache-Control', 'public, max-age=300');
+    res.setHeader('ETag', openapiEtag);
+    if (req.fresh) {
+      res.status(304).end();
+      return;
+    }
+    res.type('application/json').send(openapiText);
+  });
+
+  router.all('/*splat', (req: Request, _res: Response) => {
+    const known = V1_ROUTES.filter((r) => new RegExp(`^${expressPath(r.path).replace(/:[A-Za-z]+/g, '[^/]+')}$`).test(req.path));
+    if (known.length > 0) {
+      throw new HttpError('method-not-allowed', `${req.method} is not allowed here; this path answers ${known.map((r) => r.method.toUpperCase()).join(', ')}.`, {}, { Allow: known.map((r) => r.method.toUpperCase()).join(', ') });
+    }
+    throw new HttpError('not-found', `No /v1 route ${req.path}. The routes are listed at /v1/openapi.json and /docs/api.`);
+  });
+
   return router;
 }

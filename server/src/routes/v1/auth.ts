@@ -1,0 +1,223 @@
+/**
+ * Credentials, origins, CORS, limits and usage for /v1.
+ *
+ * Credentials, in this order:
+ *   - `Authorization: Bearer <key>` (any key, any method);
+ *   - `?key=<browser key>` on GET / HEAD only (a plain page needs no preflight); a server key in
+ *     the URL is refused, since URLs end up in logs and histories;
+ *   - `?embed=<embed id>` on GET / HEAD: resolved to the embed's browser key, reads limited to the
+ *     embed's satellites.
+ *
+ * Origins (CORS answered per key):
+ *   - browser key: the page's origin must be one the key lists (exact, or wildcard subdomain).
+ *     The origin is the Origin header, else the origin of the Referer header; a same-origin GET
+ *     (Sec-Fetch-Site: same-origin) counts as this server's own origin. A request naming no
+ *     origin at all (curl, a backend) is refused: browser keys are for pages, backends use server
+ *     keys. An embed's reads are also allowed from this server's own origin (the hosted /embed/:id page).
+ *   - server key: meant for backends, which send no Origin. A request that carries an Origin
+ *     header (a web page) is refused unless the key lists that origin.
+ *   - Every /v1 answer to a request with an Origin header reflects that origin in
+ *     Access-Control-Allow-Origin, errors included, so pages can read the problem; refused
+ *     requests do no work and return no data.
+ *   - Preflight (OPTIONS) is answered for any origin, since a preflight carries no Authorization
+ *     header; when the URL itself holds `?key=` or `?embed=`, that key's origins are checked there.
+ */
+import type { NextFunction, Request, RequestHandler, Response } from 'express';
+import { rateLimit, type Options as RateLimitOptions } from 'express-rate-limit';
+import type { AppContext } from '../../context.ts';
+import { HttpError } from '../../http/problem.ts';
+import { getEmbedService, type EmbedRecord } from '../../services/embeds.ts';
+import { getKeyService, kindOfKeyText, originAllowed, type KeyRecord } from '../../services/keys.ts';
+import { getQuotaService } from '../../services/quota.ts';
+import { getUsageRecorder } from '../../services/usage.ts';
+import type { Access } from './schemas.ts';
+
+export interface V1Auth {
+  key: KeyRecord;
+  /** Set when the credential was `?embed=`. */
+  embed: EmbedRecord | null;
+  via: 'bearer' | 'query-key' | 'embed';
+  /** The origin the request was judged by, if any. */
+  origin: string | null;
+}
+
+export function authOf(res: Response): V1Auth {
+  const a = res.locals.v1auth as V1Auth | undefined;
+  if (!a) throw new Error('authOf called on a route without auth');
+  return a;
+}
+
+/** May this credential read this satellite's data? (org match; embeds: only their satellites) */
+export function canSee(auth: V1Auth, satellite: { id: string; organizationId: string }): boolean {
+  if (satellite.organizationId !== auth.key.organizationId) return false;
+  return !auth.embed || auth.embed.satelliteIds.includes(satellite.id);
+}
+
+export const EXPOSED_HEADERS = 'RateLimit, RateLimit-Policy, Retry-After, ETag, Location';
+
+/** This server's own origins: the public URL and the Host the request came to. */
+function selfOrigins(ctx: AppContext, req: Request): string[] {
+  const host = req.get('host');
+  const list = [ctx.config.publicUrl.toLowerCase()];
+  if (host) list.push(`${req.protocol}://${host}`.toLowerCase());
+  return list;
+}
+
+function refererOrigin(req: Request): string | null {
+  const ref = req.get('referer');
+  if (!ref) return null;
+  try {
+    const u = new URL(ref);
+    return u.protocol === 'http:' || u.protocol === 'https:' ? u.origin : null;
+  } catch {
+    return null;
+  }
+}
+
+/** Reflect the Origin on every /v1 answer (the credential check decides what is served). */
+export const corsHeaders: RequestHandler = (req, res, next) => {
+  const origin = req.get('origin');
+  if (origin) {
+    res.setHeader('Access-Control-Allow-Origin', origin);
+    res.setHeader('Access-Control-Expose-Headers', EXPOSED_HEADERS);
+  }
+  res.vary('Origin');
+  next();
+};
+
+function checkOrigin(ctx: AppContext, req: Request, key: KeyRecord, embed: EmbedRecord | null): string | null {
+  const header = req.get('origin');
+  const self = selfOrigins(ctx, req);
+  if (key.kind === 'server') {
+    if (!header) return null;
+    if (originAllowed(key.origins, header)) return header;
+    throw new HttpError(
+      'origin-not-allowed',
+      `This is a server key, which is secret and belongs on a backend; this request came from a web page (${header}). Use a browser key in pages, and rotate this key if it was published.`,
+    );
+  }
+  let origin = header ?? refererOrigin(req);
+  if (!origin && req.get('sec-fetch-site') === 'same-origin') origin = self[self.length - 1] ?? null;
+  if (!origin) {
+    throw new HttpError(
+      'origin-not-allowed',
+      'Browser keys work only from web pages of the origins they list, and this request named no origin (no Origin or Referer header). From a backend or the command line, use a server key.',
+    );
+  }
+  const o = origin.toLowerCase();
+  if (o !== 'null' && (originAllowed(key.origins, o) || (embed && self.includes(o)))) return origin;
+  throw new HttpError(
+    'origin-not-allowed',
+    `The origin ${origin} is not allowed for this ${embed ? `embed's key` : 'browser key'} (…${key.lastFour}). Allowed: ${key.origins.join(', ') || 'none'}. Add the origin to the key in the console.`,
+    { origin },
+  );
+}
+
+/** Resolve the credential of a request: throws unauthenticated / invalid-key / key-* problems. */
+export async function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath?: string): Promise<Omit<V1Auth, 'origin'>> {
+  const keys = getKeyService(ctx);
+  const read = req.method === 'GET' || req.method === 'HEAD' || req.method === 'OPTIONS';
+  const header = req.get('authorization');
+  const q = req.query as Record<string, unknown>;
+  if (header) {
+    const m = /^Bearer\s+(\S+)\s*$/i.exec(header);
+    if (!m?.[1]) throw new HttpError('unauthenticated', 'Send the key as "Authorization: Bearer <key>".', {}, { 'WWW-Authenticate': 'Bearer' });
+    return { key: await keys.authenticate(m[1]), embed: null, via: 'bearer' };
+  }
+  const keyParam = typeof q.key === 'string' ? q.key : undefined;
+  if (keyParam !== undefined) {
+    if (kindOfKeyText(keyParam) === 'server') {
+      throw new HttpError('invalid-key', 'Server keys are secret and never go in a URL; send them as "Authorization: Bearer <key>". Rotate this key if the URL was shared or logged.');
+    }
+    if (!read) throw new HttpError('unauthenticated', 'Keys in the query string work only for GET requests; send "Authorization: Bearer <key>".', {}, { 'WWW-Authenticate': 'Bearer' });
+    return { key: await keys.authenticate(keyParam), embed: null, via: 'query-key' };
+  }
+  const embedId = embedIdFromPath ?? (typeof q.embed === 'string' ? q.embed : undefined);
+  if (embedId !== undefined) {
+    if (!read) throw new HttpError('browser-key-read-only', 'An embed reads only; writes need a server key with the element-sets:write scope.');
+    const { embed, key } = await getEmbedService(ctx).resolveForRead(embedId);
+    return { key, embed, via: 'embed' };
+  }
+  throw new HttpError(
+    'unauthenticated',
+    'This route needs a key: "Authorization: Bearer <key>", or ?key=<browser key> on GET from a page of one of its origins.',
+    {},
+    { 'WWW-Authenticate': 'Bearer' },
+  );
+}
+
+/** Credential + origin + scope for one route. */
+export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>, opts: { embedFromPath?: string } = {}): RequestHandler {
+  return async (req: Request, res: Response, next: NextFunction) => {
+    const embedId = opts.embedFromPath ? String(req.params[opts.embedFromPath] ?? '') : undefined;
+    const cred = await resolveCredential(ctx, req, embedId);
+    const origin = checkOrigin(ctx, req, cred.key, cred.embed);
+    if (access === 'write') {
+      if (cred.key.kind === 'browser' || cred.via === 'embed') {
+        throw new HttpError('browser-key-read-only', 'Browser keys and embeds are read-only (they sit in page source). Use a server key with the element-sets:write scope from your backend.');
+      }
+      if (!cred.key.scopes.includes('element-sets:write')) {
+        throw new HttpError('scope-missing', `This server key (…${cred.key.lastFour}) lacks the element-sets:write scope. An admin can add it in the console.`, { scope: 'element-sets:write' });
+      }
+    }
+    res.locals.v1auth = { ...cred, origin } satisfies V1Auth;
+    next();
+  };
+}
+
+/** Per-key rate limit (limit from the key record), standard RateLimit headers, 429 problem. */
+export function keyRateLimit(): RequestHandler {
+  const options: Partial<RateLimitOptions> = {
+    windowMs: 60_000,
+    limit: (_req: Request, res: Response) => authOf(res).key.rateLimitPerMin,
+    keyGenerator: (_req: Request, res: Response) => authOf(res).key.id,
+    standardHeaders: 'draft-8',
+    legacyHeaders: false,
+    identifier: 'per-key',
+    validate: false,
+    handler: (_req, res, next, opts) => {
+      const retry = res.getHeader('Retry-After');
+      next(
+        new HttpError(
+          'rate-limited',
+          `This key allows ${authOf(res).key.rateLimitPerMin} requests per minute; wait ${retry ?? Math.ceil(opts.windowMs / 1000)} s before the next one.`,
+          { limitPerMin: authOf(res).key.rateLimitPerMin },
+        ),
+      );
+    },
+  };
+  return rateLimit(options);
+}
+
+/** Monthly quota, then count the request (memory only) and note the key's last use. */
+export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler {
+  const quota = getQuotaService(ctx);
+  const usage = getUsageRecorder(ctx);
+  const keys = getKeyService(ctx);
+  return async (_req, res, next) => {
+    const { key } = authOf(res);
+    const now = new Date();
+    await quota.check(key.organizationId, now);
+    usage.record(key.organizationId, key.id, template, now);
+    keys.touch(key.id, now);
+    next();
+  };
+}
+
+/** OPTIONS: preflight for any origin, or checked against `?key=` / `?embed=` when the URL holds one. */
+export function preflight(ctx: AppContext): RequestHandler {
+  return async (req, res) => {
+    const origin = req.get('origin');
+    const q = req.query as Record<string, unknown>;
+    if (origin && (typeof q.key === 'string' || typeof q.embed === 'string')) {
+      const cred = await resolveCredential(ctx, req);
+      checkOrigin(ctx, req, cred.key, cred.embed);
+    }
+    if (origin) {
+      res.setHeader('Access-Control-Allow-Methods', 'GET, HEAD, POST, OPTIONS');
+      res.setHeader('Access-Control-Allow-Headers', req.get('access-control-request-headers') ?? 'Authorization, Content-Type, If-None-Match');
+      res.setHeader('Access-Control-Max-Age', '600');
+    }
+    res.status(204).end();
+  };
+}

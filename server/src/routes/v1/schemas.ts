@@ -1,0 +1,374 @@
+/**
+ * The /v1 contract as data: caps, the zod schemas that validate every request, response shapes,
+ * and the route table. The router validates with these schemas and services/openapi.ts turns the
+ * same table into the OpenAPI 3.1 document, so the two cannot drift apart.
+ */
+import { z } from 'zod';
+
+/** Request caps (also published in the OpenAPI document and on /docs/api). */
+export const CAPS = {
+  /** Longest track window, seconds (2 days). */
+  trackMaxWindowS: 2 * 86_400,
+  /** Most points in one track answer. */
+  trackMaxPoints: 5_000,
+  trackMinStepS: 1,
+  trackMaxStepS: 3_600,
+  trackDefaultStepS: 60,
+  /** Track windows whose start and end fall on whole multiples of this are cacheable (seconds). */
+  trackCacheQuantumS: 60,
+  passesMaxDays: 14,
+  passesDefaultDays: 3,
+  passesDefaultMinElevationDeg: 10,
+  positionsMaxIds: 50,
+  /** Largest element-set body or file, bytes. */
+  uploadMaxBytes: 2 * 1024 * 1024,
+  uploadMaxFiles: 20,
+  /** Farthest from now a time parameter may lie, days (propagation is refused beyond a year of epoch anyway). */
+  maxTimeOffsetDays: 366,
+} as const;
+
+const DAY_MS = 86_400_000;
+
+/** An ISO 8601 date-time with a zone (Z or ±hh:mm), to Unix ms. */
+const isoTime = (description: string) =>
+  z
+    .string()
+    .max(40)
+    .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/i, 'must be an ISO 8601 UTC time such as 2025-01-31T12:00:00Z')
+    .transform((v, ctx) => {
+      const ms = Date.parse(v);
+      if (!Number.isFinite(ms)) {
+        ctx.addIssue({ code: 'custom', message: 'is not a real date and time' });
+        return z.NEVER;
+      }
+      if (Math.abs(ms - Date.now()) > CAPS.maxTimeOffsetDays * DAY_MS) {
+        ctx.addIssue({ code: 'custom', message: `must lie within ${CAPS.maxTimeOffsetDays} days of now` });
+        return z.NEVER;
+      }
+      return ms;
+    })
+    .meta({ format: 'date-time', description, example: '2025-01-31T12:00:00Z' });
+
+const num = (min: number, max: number, description: string) => z.coerce.number().min(min).max(max).meta({ description });
+
+export const idParam = z.string().min(1).max(40).regex(/^[A-Za-z0-9_-]+$/, 'is not a satellite id').meta({ description: 'Satellite id, as GET /v1/satellites lists it.' });
+
+export const trackQuery = z.object({
+  start: isoTime('First point. Default: now, rounded down to the minute.').optional(),
+  end: isoTime(`Last point at or before this time. Default: one orbital period after start. At most ${CAPS.trackMaxWindowS / 3600} h after start.`).optional(),
+  step: num(CAPS.trackMinStepS, CAPS.trackMaxStepS, `Seconds between points (default ${CAPS.trackDefaultStepS}). At most ${CAPS.trackMaxPoints} points per answer.`).optional(),
+  format: z.enum(['json', 'geojson']).default('json').meta({ description: 'json (points) or geojson (a FeatureCollection whose line is split at the antimeridian, RFC 7946 section 3.1.9).' }),
+});
+
+export const positionQuery = z.object({
+  at: isoTime('Time of the position. Default: now.').optional(),
+});
+
+export const positionsQuery = z.object({
+  ids: z
+    .string()
+    .min(1)
+    .max(CAPS.positionsMaxIds * 41)
+    .transform((v) => [...new Set(v.split(',').map((s) => s.trim()).filter(Boolean))])
+    .pipe(z.array(idParam).min(1).max(CAPS.positionsMaxIds, `at most ${CAPS.positionsMaxIds} ids`))
+    .meta({ description: `Comma-separated satellite ids, at most ${CAPS.positionsMaxIds}.`, example: 'sat_abc,sat_def' }),
+  at: isoTime('Time of the positions. Default: now.').optional(),
+});
+
+export const passesQuery = z.object({
+  lat: num(-90, 90, 'Observer latitude, degrees north (WGS-84).'),
+  lon: num(-180, 180, 'Observer longitude, degrees east.'),
+  altM: num(-500, 9_000, 'Observer height above the ellipsoid, metres (default 0).').default(0),
+  start: isoTime('Start of the search. Default: now.').optional(),
+  days: num(0.01, CAPS.passesMaxDays, `Length of the search, days (default ${CAPS.passesDefaultDays}, at most ${CAPS.passesMaxDays}).`).default(CAPS.passesDefaultDays),
+  minElevation: num(0, 89, `Elevation mask, degrees (default ${CAPS.passesDefaultMinElevationDeg}).`).default(CAPS.passesDefaultMinElevationDeg),
+});
+
+export const createSatelliteBody = z.object({
+  name: z.string().trim().min(1).max(200).meta({ description: 'Display name.' }),
+  elements: z.string().max(CAPS.uploadMaxBytes).optional().meta({ description: 'Element set text: TLE (two or three lines), OMM KVN, OMM XML or OMM JSON.' }),
+  description: z.string().max(5_000).optional(),
+});
+
+// ---------------------------------------------------------------------------------------------
+// Response shapes (documentation; the handlers build these objects).
+
+const t = z.string().meta({ format: 'date-time', description: 'ISO 8601 UTC' });
+
+export const elementSetSummarySchema = z.object({
+  id: z.string(),
+  source: z.enum(['tle', 'omm-kvn', 'omm-xml', 'omm-json', 'kepler']),
+  epoch: t,
+  ageDays: z.number(),
+  staleness: z.enum(['fresh', 'aging', 'stale']),
+  createdAt: t,
+  catalogNumber: z.string(),
+  name: z.string(),
+});
+
+export const derivedSchema = z.object({
+  epoch: t,
+  semiMajorAxisKm: z.number(),
+  eccentricity: z.number(),
+  inclinationDeg: z.number(),
+  raanDeg: z.number(),
+  argPerigeeDeg: z.number(),
+  meanAnomalyDeg: z.number(),
+  meanMotionRevPerDay: z.number(),
+  periodMin: z.number(),
+  apogeeAltKm: z.number(),
+  perigeeAltKm: z.number(),
+  nodalPrecessionDegPerDay: z.number(),
+  westwardShiftPerRevDeg: z.number(),
+  latitudeLimitDeg: z.number(),
+  ageDays: z.number(),
+  stale: z.boolean(),
+  staleness: z.enum(['fresh', 'aging', 'stale']),
+});
+
+export const satelliteSchema = z.object({
+  id: z.string(),
+  name: z.string(),
+  catalogNumber: z.string().nullable(),
+  description: z.string(),
+  current: elementSetSummarySchema.nullable(),
+  derived: derivedSchema.nullable(),
+});
+
+export const positionSchema = z.object({
+  t,
+  lat: z.number().meta({ description: 'Geodetic latitude of the sub-satellite point, deg' }),
+  lon: z.number().meta({ description: 'Longitude, deg in [-180, 180)' }),
+  altKm: z.number(),
+  speedKmS: z.number().meta({ description: 'Inertial speed, km/s' }),
+  footprintRadiusKm: z.number().meta({ description: 'Ground distance to the horizon circle (0 deg elevation), km' }),
+  sunlit: z.boolean(),
+});
+
+export const trackPointSchema = z.object({ t, lat: z.number(), lon: z.number(), altKm: z.number(), sunlit: z.boolean() });
+export const trackSchema = z.object({
+  satelliteId: z.string(),
+  elementSetId: z.string(),
+  start: t,
+  end: t,
+  stepS: z.number(),
+  count: z.number().int(),
+  points: z.array(trackPointSchema),
+});
+
+export const passSchema = z.object({
+  rise: z.object({ t, azimuth: z.number() }),
+  culmination: z.object({ t, azimuth: z.number(), elevation: z.number(), rangeKm: z.number() }),
+  set: z.object({ t, azimuth: z.number() }),
+  visible: z.boolean().meta({ description: 'Sunlit satellite while the observer is in darkness (Sun below -6 deg) at some moment of the pass' }),
+  inProgressAtStart: z.boolean(),
+  inProgressAtEnd: z.boolean(),
+});
+export const passesSchema = z.object({
+  satelliteId: z.string(),
+  observer: z.object({ lat: z.number(), lon: z.number(), altM: z.number() }),
+  start: t,
+  end: t,
+  minElevation: z.number(),
+  alwaysUp: z.boolean(),
+  passes: z.array(passSchema),
+});
+
+export const reportEntrySchema = z.object({
+  index: z.number().int(),
+  line: z.number().int(),
+  ok: z.boolean(),
+  elementSetId: z.string().optional(),
+  duplicate: z.boolean().optional(),
+  code: z.string().optional(),
+  field: z.string().optional(),
+  message: z.string().optional(),
+  column: z.number().int().optional(),
+  file: z.string().optional(),
+});
+export const uploadSchema = z.object({
+  elementSet: elementSetSummarySchema.extend({ elements: z.record(z.string(), z.unknown()) }).nullable(),
+  elementSets: z.array(elementSetSummarySchema),
+  accepted: z.number().int(),
+  rejected: z.number().int(),
+  report: z.array(reportEntrySchema),
+});
+
+export const problemSchema = z.object({
+  type: z.string(),
+  title: z.string(),
+  status: z.number().int(),
+  detail: z.string(),
+  code: z.string(),
+  instance: z.string().optional(),
+  errors: z.array(z.object({ where: z.string(), message: z.string(), line: z.number().int().optional(), column: z.number().int().optional(), field: z.string().optional() })).optional(),
+});
+
+export const embedSchema = z.object({ id: z.string(), name: z.string(), satellites: z.array(z.string()), options: z.record(z.string(), z.unknown()) });
+
+// ---------------------------------------------------------------------------------------------
+// Route table.
+
+export type Access = 'public' | 'read' | 'write';
+
+export interface RouteSpec {
+  method: 'get' | 'post';
+  /** OpenAPI path below /v1, e.g. "/satellites/{id}/track". */
+  path: string;
+  operationId: string;
+  summary: string;
+  description?: string;
+  access: Access;
+  query?: z.ZodType;
+  /** JSON body schema (others are described in requestBodies). */
+  body?: z.ZodType;
+  /** Non-JSON request bodies accepted (media type -> description). */
+  bodies?: Record<string, string>;
+  responses: Record<string, { description: string; schema?: z.ZodType; mediaTypes?: string[] }>;
+  /** Problem codes this route may answer besides the auth and limit ones. */
+  problems?: string[];
+}
+
+export const V1_ROUTES: RouteSpec[] = [
+  {
+    method: 'get',
+    path: '/satellites',
+    operationId: 'listSatellites',
+    summary: 'Satellites this key may see',
+    access: 'read',
+    responses: { '200': { description: 'The satellites', schema: z.object({ satellites: z.array(satelliteSchema) }) } },
+  },
+  {
+    method: 'get',
+    path: '/satellites/{id}',
+    operationId: 'getSatellite',
+    summary: 'One satellite, its current element set summary and derived elements',
+    access: 'read',
+    responses: { '200': { description: 'The satellite', schema: satelliteSchema } },
+    problems: ['not-found'],
+  },
+  {
+    method: 'get',
+    path: '/satellites/{id}/track',
+    operationId: 'getTrack',
+    summary: 'Ground track over a window',
+    description: `Points every \`step\` seconds from \`start\` to \`end\`. Caps: window at most ${CAPS.trackMaxWindowS / 3600} h, at most ${CAPS.trackMaxPoints} points, step ${CAPS.trackMinStepS} to ${CAPS.trackMaxStepS} s. Answers carry an ETag; windows whose start and end are whole multiples of ${CAPS.trackCacheQuantumS} s are publicly cacheable.`,
+    access: 'read',
+    query: trackQuery,
+    responses: {
+      '200': { description: 'The track (application/json) or a GeoJSON FeatureCollection (application/geo+json)', schema: trackSchema, mediaTypes: ['application/json', 'application/geo+json'] },
+      '304': { description: 'Not modified (If-None-Match matched the ETag)' },
+    },
+    problems: ['not-found', 'validation-failed', 'no-element-set', 'decayed', 'propagation-failed'],
+  },
+  {
+    method: 'get',
+    path: '/satellites/{id}/position',
+    operationId: 'getPosition',
+    summary: 'Position at one time',
+    access: 'read',
+    query: positionQuery,
+    responses: { '200': { description: 'The position', schema: positionSchema.extend({ satelliteId: z.string() }) } },
+    problems: ['not-found', 'validation-failed', 'no-element-set', 'decayed', 'propagation-failed'],
+  },
+  {
+    method: 'get',
+    path: '/positions',
+    operationId: 'getPositions',
+    summary: 'Positions of several satellites at one time',
+    description: `At most ${CAPS.positionsMaxIds} ids. A satellite whose position cannot be computed appears with an \`error\` instead of coordinates.`,
+    access: 'read',
+    query: positionsQuery,
+    responses: {
+      '200': {
+        description: 'One entry per id, in the order asked',
+        schema: z.object({
+          t,
+          positions: z.array(
+            z.union([
+              positionSchema.extend({ id: z.string(), name: z.string() }),
+              z.object({ id: z.string(), name: z.string(), error: z.object({ code: z.string(), detail: z.string() }) }),
+            ]),
+          ),
+        }),
+      },
+    },
+    problems: ['not-found', 'validation-failed'],
+  },
+  {
+    method: 'get',
+    path: '/satellites/{id}/passes',
+    operationId: 'getPasses',
+    summary: 'Passes over an observer',
+    description: `Rise, culmination and set above the elevation mask, for up to ${CAPS.passesMaxDays} days. Observing advice: never point optics at or near the Sun.`,
+    access: 'read',
+    query: passesQuery,
+    responses: { '200': { description: 'The passes', schema: passesSchema } },
+    problems: ['not-found', 'validation-failed', 'no-element-set', 'decayed', 'propagation-failed'],
+  },
+  {
+    method: 'get',
+    path: '/satellites/{id}/elements',
+    operationId: 'getElements',
+    summary: 'Derived orbital elements of the current element set',
+    access: 'read',
+    responses: { '200': { description: 'The derived elements', schema: derivedSchema } },
+    problems: ['not-found', 'no-element-set'],
+  },
+  {
+    method: 'post',
+    path: '/satellites',
+    operationId: 'createSatellite',
+    summary: 'Register a satellite (server key with element-sets:write)',
+    access: 'write',
+    body: createSatelliteBody,
+    responses: { '201': { description: 'The new satellite; `report` lists each submitted element set', schema: satelliteSchema.extend({ report: z.array(reportEntrySchema) }) } },
+    problems: ['validation-failed', 'unprocessable-element-set', 'payload-too-large'],
+  },
+  {
+    method: 'post',
+    path: '/satellites/{id}/element-sets',
+    operationId: 'uploadElementSets',
+    summary: 'Upload element sets (server key with element-sets:write)',
+    description: `The body is the element set itself. A text or file may hold many sets; each gets a report entry. 201 when at least one set was stored, 422 with line and column when none was usable. Bodies and files up to ${CAPS.uploadMaxBytes / 1024 / 1024} MiB, at most ${CAPS.uploadMaxFiles} files.`,
+    access: 'write',
+    bodies: {
+      'text/plain': 'TLE (two or three lines per set) or OMM KVN',
+      'application/xml': 'OMM XML (one or many <omm> in an <ndm>)',
+      'application/json': 'OMM JSON (one object or an array)',
+      'multipart/form-data': 'files[]: files holding any of the above (format from the extension or the content)',
+    },
+    responses: {
+      '201': { description: 'Stored; per-entry report', schema: uploadSchema },
+      '200': { description: 'Every usable set was already stored (duplicates by epoch); nothing new' , schema: uploadSchema },
+    },
+    problems: ['not-found', 'unprocessable-element-set', 'unsupported-media-type', 'payload-too-large'],
+  },
+  {
+    method: 'get',
+    path: '/embeds/{id}',
+    operationId: 'getEmbed',
+    summary: 'A saved embed (public: the embed id is its own read credential)',
+    access: 'public',
+    responses: { '200': { description: 'The embed', schema: embedSchema } },
+    problems: ['not-found', 'origin-not-allowed'],
+  },
+  {
+    method: 'get',
+    path: '/openapi.json',
+    operationId: 'getOpenApi',
+    summary: 'This document',
+    access: 'public',
+    responses: { '200': { description: 'OpenAPI 3.1 document' } },
+  },
+];
+
+/** "GET /v1/satellites/{id}/track" — the usage counter's endpoint name. */
+export function routeTemplate(r: Pick<RouteSpec, 'method' | 'path'>): string {
+  return `${r.method.toUpperCase()} /v1${r.path}`;
+}
+
+/** Express path of a spec path: {id} -> :id. */
+export function expressPath(path: string): string {
+  return path.replace(/\{([A-Za-z]+)\}/g, ':$1');
+}

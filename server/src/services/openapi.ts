@@ -1,0 +1,180 @@
+/**
+ * The OpenAPI 3.1 document of /v1, generated from the route table and the zod schemas that
+ * validate the requests (routes/v1/schemas.ts), so the document and the checks cannot drift.
+ *
+ * Exported API:
+ *   buildOpenApi(serverUrl) -> OpenApiDocument (plain JSON object)
+ *   PROBLEM_DOCS: { code, status, title, meaning }[] (also rendered at /docs/problems)
+ */
+import { z } from 'zod';
+import { PROBLEM_TYPES, type ProblemCode } from '../http/problem.ts';
+import { CAPS, V1_ROUTES, problemSchema, type RouteSpec } from '../routes/v1/schemas.ts';
+
+export type OpenApiDocument = Record<string, unknown> & {
+  openapi: string;
+  paths: Record<string, Record<string, unknown>>;
+};
+
+type JsonSchema = Record<string, unknown>;
+
+function schemaOf(s: z.ZodType, io: 'input' | 'output'): JsonSchema {
+  const js = z.toJSONSchema(s, { io, target: 'draft-2020-12', unrepresentable: 'any' }) as JsonSchema;
+  delete js.$schema;
+  return js;
+}
+
+/** One plain sentence per problem code: what it means and what to do. */
+const MEANINGS: Partial<Record<ProblemCode, string>> = {
+  'validation-failed': 'A query parameter or body field is missing, malformed or outside its cap; `errors` names each one.',
+  'unauthenticated': 'No key was sent. Use `Authorization: Bearer <key>`, or `?key=` with a browser key on GET.',
+  'invalid-key': 'The key text is unknown (mistyped, cut short, or deleted), or a server key was put in a URL.',
+  'key-expired': 'The key passed its expiry date. Create a new key or extend the expiry in the console.',
+  'key-revoked': 'The key was revoked; it stopped working at once. Use another key.',
+  'key-rotated': 'The key was replaced by rotation and its grace period is over; the detail says when it stopped. Use the new key.',
+  'origin-not-allowed': 'A browser key (or an embed) was used from a page whose origin the key does not list, or without any origin; or a server key was used from a web page.',
+  'scope-missing': 'The server key lacks the element-sets:write scope needed for this write.',
+  'browser-key-read-only': 'Browser keys and embeds only read; writes need a server key.',
+  'not-found': 'No such route, satellite or embed visible to this key.',
+  'method-not-allowed': 'The path exists but not for this method; `Allow` lists the methods.',
+  'payload-too-large': `Bodies and files are limited to ${CAPS.uploadMaxBytes / 1024 / 1024} MiB (${CAPS.uploadMaxFiles} files).`,
+  'unsupported-media-type': 'Element sets go as text/plain, application/xml, application/json or multipart/form-data.',
+  'unprocessable-element-set': 'No submitted element set could be used; `errors` gives line, column and field of each problem.',
+  'no-element-set': 'The satellite has no element set yet; upload one first.',
+  'decayed': 'SGP4 says the object has decayed at the requested time.',
+  'propagation-failed': 'SGP4 could not compute this time (for example more than a year from the epoch); `reason` names the engine code.',
+  'rate-limited': 'The key sent more requests per minute than its limit. Wait `Retry-After` seconds; the RateLimit headers show the budget.',
+  'quota-exceeded': 'The organization used its plan\u2019s monthly requests. The quota resets on the first day of the next month (UTC).',
+  'internal': 'Our fault. It is logged; retry later.',
+};
+
+export const PROBLEM_DOCS = (Object.keys(PROBLEM_TYPES) as ProblemCode[]).map((code) => ({
+  code,
+  status: PROBLEM_TYPES[code].status,
+  title: PROBLEM_TYPES[code].title,
+  meaning: MEANINGS[code] ?? '',
+}));
+
+const AUTH_PROBLEMS = ['unauthenticated', 'invalid-key', 'key-expired', 'key-revoked', 'key-rotated', 'origin-not-allowed', 'rate-limited', 'quota-exceeded'];
+
+function problemResponses(route: RouteSpec): Record<string, unknown> {
+  const codes = new Set<string>([...(route.access === 'public' ? [] : AUTH_PROBLEMS), ...(route.problems ?? [])]);
+  if (route.access === 'write') {
+    codes.add('browser-key-read-only');
+    codes.add('scope-missing');
+  }
+  if (route.path === '/embeds/{id}') {
+    for (const c of ['invalid-key', 'key-expired', 'key-revoked', 'key-rotated', 'rate-limited', 'quota-exceeded']) codes.add(c);
+  }
+  const byStatus = new Map<number, string[]>();
+  for (const c of codes) {
+    const t = PROBLEM_TYPES[c as ProblemCode];
+    if (!t) continue;
+    byStatus.set(t.status, [...(byStatus.get(t.status) ?? []), c]);
+  }
+  const out: Record<string, unknown> = {};
+  for (const [status, list] of [...byStatus].sort((a, b) => a[0] - b[0])) {
+    out[String(status)] = {
+      description: `Problem: ${list.map((c) => `\`${c}\``).join(', ')}`,
+      ...(status === 429 ? { headers: { 'Retry-After': { schema: { type: 'integer' }, description: 'Seconds to wait' } } } : {}),
+      content: { 'application/problem+json': { schema: { $ref: '#/components/schemas/Problem' } } },
+    };
+  }
+  return out;
+}
+
+function parametersOf(route: RouteSpec): unknown[] {
+  const params: unknown[] = [];
+  for (const m of route.path.matchAll(/\{([A-Za-z]+)\}/g)) {
+    params.push({ name: m[1], in: 'path', required: true, schema: { type: 'string', maxLength: 40 } });
+  }
+  if (route.query) {
+    const js = schemaOf(route.query, 'input');
+    const props = (js.properties ?? {}) as Record<string, JsonSchema>;
+    const required = new Set((js.required as string[] | undefined) ?? []);
+    for (const [name, schema] of Object.entries(props)) {
+      const { description, ...rest } = schema;
+      params.push({ name, in: 'query', required: required.has(name), ...(description ? { description } : {}), schema: rest });
+    }
+  }
+  if (route.access === 'read') {
+    params.push(
+      { name: 'key', in: 'query', required: false, description: 'Browser key (GET only), instead of the Authorization header.', schema: { type: 'string' } },
+      { name: 'embed', in: 'query', required: false, description: 'Embed id (GET only): reads with the embed\u2019s browser key, limited to its satellites.', schema: { type: 'string' } },
+    );
+  }
+  return params;
+}
+
+export function buildOpenApi(serverUrl: string): OpenApiDocument {
+  const paths: Record<string, Record<string, unknown>> = {};
+  for (const route of V1_ROUTES) {
+    const responses: Record<string, unknown> = {};
+    for (const [status, r] of Object.entries(route.responses)) {
+      const types = r.mediaTypes ?? ['application/json'];
+      responses[status] = {
+        description: r.description,
+        ...(r.schema ? { content: Object.fromEntries(types.map((t) => [t, { schema: t === 'application/geo+json' ? { type: 'object', description: 'GeoJSON FeatureCollection (RFC 7946)' } : schemaOf(r.schema as z.ZodType, 'output') }])) } : {}),
+        ...(route.path.endsWith('/track') && status === '200'
+          ? {
+              headers: {
+                ETag: { schema: { type: 'string' } },
+                'Cache-Control': { schema: { type: 'string' }, description: `public when start and end are whole multiples of ${CAPS.trackCacheQuantumS} s` },
+              },
+            }
+          : {}),
+      };
+    }
+    Object.assign(responses, problemResponses(route));
+    const op: Record<string, unknown> = {
+      operationId: route.operationId,
+      summary: route.summary,
+      ...(route.description ? { description: route.description } : {}),
+      tags: [route.path.startsWith('/embeds') ? 'Embeds' : route.path === '/openapi.json' ? 'Meta' : 'Satellites'],
+      parameters: parametersOf(route),
+      responses,
+      security: route.access === 'public' ? [] : route.access === 'write' ? [{ serverKey: [] }] : [{ bearerKey: [] }, { browserKeyQuery: [] }, { embedQuery: [] }],
+    };
+    if (route.body) {
+      op.requestBody = { required: true, content: { 'application/json': { schema: schemaOf(route.body, 'input') } } };
+    } else if (route.bodies) {
+      op.requestBody = {
+        required: true,
+        content: Object.fromEntries(
+          Object.entries(route.bodies).map(([type, description]) => [
+            type,
+            type === 'multipart/form-data'
+              ? { schema: { type: 'object', properties: { 'files[]': { type: 'array', items: { type: 'string', format: 'binary' }, maxItems: CAPS.uploadMaxFiles } } }, description }
+              : { schema: { type: 'string', maxLength: CAPS.uploadMaxBytes, description } },
+          ]),
+        ),
+      };
+    }
+    const p = `/v1${route.path}`;
+    paths[p] = { ...(paths[p] ?? {}), [route.method]: op };
+  }
+  return {
+    openapi: '3.1.0',
+    jsonSchemaDialect: 'https://json-schema.org/draft/2020-12/schema',
+    info: {
+      title: 'Nadirline API',
+      version: '1.0.0',
+      description:
+        'Ground tracks, positions, passes and derived orbital elements of your satellites, computed with SGP4 from the element sets you upload. ' +
+        'JSON uses camelCase, ISO 8601 UTC times, degrees, kilometres and km/s unless a field name says otherwise. Errors are application/problem+json (RFC 9457) with a stable `code`. ' +
+        'Positions come from mean element sets: good to kilometres near epoch and worse as sets age; not for collision avoidance, navigation or safety-of-life decisions.',
+    },
+    servers: [{ url: serverUrl }],
+    'x-caps': { ...CAPS },
+    tags: [{ name: 'Satellites' }, { name: 'Embeds' }, { name: 'Meta' }],
+    paths,
+    components: {
+      securitySchemes: {
+        bearerKey: { type: 'http', scheme: 'bearer', description: 'A browser key (nlb_…) or server key (nls_…).' },
+        serverKey: { type: 'http', scheme: 'bearer', description: 'A server key (nls_…) with the element-sets:write scope.' },
+        browserKeyQuery: { type: 'apiKey', in: 'query', name: 'key', description: 'A browser key on GET, from a page of one of its origins.' },
+        embedQuery: { type: 'apiKey', in: 'query', name: 'embed', description: 'An embed id on GET.' },
+      },
+      schemas: { Problem: schemaOf(problemSchema, 'output') },
+    },
+  };
+}

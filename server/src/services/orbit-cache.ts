@@ -1,0 +1,131 @@
+/**
+ * In-process cache for the /v1 hot path: a satellite's row and its current element set, parsed
+ * and initialised for SGP4 once (a satrec), so a position or track request reads no database.
+ *
+ * Exported API:
+ *   class OrbitCache
+ *     get(satelliteId) -> Promise<CachedSatellite | null>   (null: no such satellite)
+ *     invalidate(satelliteId)                               (after an upload, edit or delete)
+ *     clear()
+ *   CachedSatellite = { satellite: SatelliteRecord, current: CurrentSet | null }
+ *   CurrentSet = { record: ElementSetRecord-like, elementSet: ElementSet, satrec: SatRec }
+ *
+ * Entries live ORBIT_CACHE_TTL_MS so that several processes on one database converge; within one
+ * process every change goes through SatelliteService, which invalidates at once.
+ */
+import { toSatrec, type ElementSet } from '@nadirline/shared';
+import type { SatRec } from 'satellite.js';
+import { ElementSetRecord, Satellite } from '../models/index.ts';
+
+export const ORBIT_CACHE_TTL_MS = 60_000;
+const MAX_ENTRIES = 20_000;
+
+export interface SatelliteRecord {
+  id: string;
+  organizationId: string;
+  name: string;
+  catalogNumber: string | null;
+  description: string;
+  currentElementSetId: string | null;
+  createdAt: Date;
+  updatedAt: Date;
+}
+
+export interface ElementSetRow {
+  id: string;
+  satelliteId: string;
+  source: string;
+  epoch: Date;
+  createdAt: Date;
+  uploadedByUserId: string | null;
+  uploadedByKeyId: string | null;
+}
+
+export interface CurrentSet {
+  record: ElementSetRow;
+  elementSet: ElementSet;
+  satrec: SatRec;
+}
+
+export interface CachedSatellite {
+  satellite: SatelliteRecord;
+  current: CurrentSet | null;
+}
+
+export function satelliteRecord(s: Satellite): SatelliteRecord {
+  return {
+    id: s.id,
+    organizationId: s.organizationId,
+    name: s.name,
+    catalogNumber: s.catalogNumber,
+    description: s.description ?? '',
+    currentElementSetId: s.currentElementSetId,
+    createdAt: new Date(s.createdAt),
+    updatedAt: new Date(s.updatedAt),
+  };
+}
+
+export function elementSetRow(r: ElementSetRecord): ElementSetRow {
+  return {
+    id: r.id,
+    satelliteId: r.satelliteId,
+    source: r.source,
+    epoch: new Date(r.epoch),
+    createdAt: new Date(r.createdAt),
+    uploadedByUserId: r.uploadedByUserId,
+    uploadedByKeyId: r.uploadedByKeyId,
+  };
+}
+
+/** The stored ElementSet JSON of a record (SQLite may hand JSON columns back as text). */
+export function parsedOf(r: ElementSetRecord): ElementSet {
+  const p = r.parsed as unknown;
+  return (typeof p === 'string' ? JSON.parse(p) : p) as ElementSet;
+}
+
+/** Parse + SGP4 initialisation of a stored element set. */
+export function currentSetOf(r: ElementSetRecord): CurrentSet {
+  const elementSet = parsedOf(r);
+  return { record: elementSetRow(r), elementSet, satrec: toSatrec(elementSet) };
+}
+
+export class OrbitCache {
+  private readonly entries = new Map<string, { value: CachedSatellite | null; at: number }>();
+  private readonly loading = new Map<string, Promise<CachedSatellite | null>>();
+
+  async get(satelliteId: string): Promise<CachedSatellite | null> {
+    const hit = this.entries.get(satelliteId);
+    if (hit && Date.now() - hit.at < (hit.value ? ORBIT_CACHE_TTL_MS : 5_000)) return hit.value;
+    let p = this.loading.get(satelliteId);
+    if (!p) {
+      p = this.load(satelliteId).finally(() => this.loading.delete(satelliteId));
+      this.loading.set(satelliteId, p);
+    }
+    return p;
+  }
+
+  invalidate(satelliteId: string): void {
+    this.entries.delete(satelliteId);
+  }
+
+  clear(): void {
+    this.entries.clear();
+  }
+
+  private async load(satelliteId: string): Promise<CachedSatellite | null> {
+    if (satelliteId.length > 40) return null;
+    const sat = await Satellite.findByPk(satelliteId);
+    let value: CachedSatellite | null = null;
+    if (sat) {
+      let current: CurrentSet | null = null;
+      if (sat.currentElementSetId) {
+        const r = await ElementSetRecord.findByPk(sat.currentElementSetId);
+        if (r) current = currentSetOf(r);
+      }
+      value = { satellite: satelliteRecord(sat), current };
+    }
+    if (this.entries.size >= MAX_ENTRIES) this.entries.clear();
+    this.entries.set(satelliteId, { value, at: Date.now() });
+    return value;
+  }
+}

@@ -1,0 +1,448 @@
+/**
+ * Satellites and their element sets: registration, uploads (TLE, OMM KVN / XML / JSON, files
+ * holding many sets, Keplerian form entry), the current set (latest epoch), summaries and the
+ * derived elements. The parsed current set is cached with its satrec (OrbitCache).
+ *
+ * Exported API (ctx.services.satellites is a SatelliteService; getSatelliteService(ctx)):
+ *   listSatellites(orgId) -> Promise<Satellite[]>
+ *   getSatellite(orgId, id) -> Promise<Satellite>                                  (404 not-found)
+ *   createSatellite(orgId, { name, description?, elementsText? }, actor)
+ *       -> Promise<{ satellite: Satellite, upload: UploadResult | null }>
+ *          (with elementsText: 422 unprocessable-element-set, nothing created, when no set is usable)
+ *   updateSatellite(orgId, id, { name?, description? }) / deleteSatellite(orgId, id)
+ *   addElementSets(satellite, { text?, format?, files?: [{ name, text }], kepler? }, actor)
+ *       -> Promise<UploadResult>  = { report: ReportEntry[], accepted, rejected, created: ElementSetRecord[] }
+ *          ReportEntry = { index, line, ok, elementSetId?, code?, field?, message?, column?, file? }
+ *          (never throws for bad sets; the caller answers 422 when accepted === 0)
+ *   listElementSets(satelliteId) -> Promise<ElementSetRecord[]>                     (newest epoch first)
+ *   getElementSet(orgId, esId) -> Promise<ElementSetRecord>
+ *   exportElementSet(record, 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json') -> { text, filename, contentType }
+ *   current(satelliteId) -> Promise<CachedSatellite | null>                        (cached, with satrec)
+ *   summary(record, now?, uploaders?) -> ElementSetSummary
+ *   derived(elementSet, now?) -> DerivedElements
+ *   view(satellite, now?) -> Promise<SatelliteView>  ({ id, name, catalogNumber, description, current, derived })
+ *   uploaderNames(records) -> Promise<Map<id, name>>   (for summaries in the console)
+ *   Actor = { userId?: string | null, keyId?: string | null }
+ */
+import { nanoid } from 'nanoid';
+import {
+  deriveElements,
+  fromKeplerian,
+  parseElementSets,
+  propagateAt,
+  stalenessOf,
+  toOmmJson,
+  toOmmKvn,
+  toOmmXml,
+  toSatrec,
+  toTle,
+  type DerivedElements,
+  type ElementSet,
+  type ParsedEntry,
+  type Staleness,
+} from '@nadirline/shared';
+import type { AppContext } from '../context.ts';
+import { HttpError } from '../http/problem.ts';
+import { ApiKey, ElementSetRecord, Satellite, User } from '../models/index.ts';
+import { OrbitCache, parsedOf, type CachedSatellite } from './orbit-cache.ts';
+
+export const MAX_ELEMENT_TEXT_CHARS = 2_000_000;
+export const MAX_SETS_PER_UPLOAD = 500;
+
+export interface Actor {
+  userId?: string | null;
+  keyId?: string | null;
+}
+
+export type ElementFormat = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json';
+export const EXPORT_FORMATS: readonly ElementFormat[] = ['tle', 'omm-kvn', 'omm-xml', 'omm-json'];
+
+export interface ReportEntry {
+  /** 1-based index of the entry in its text or file. */
+  index: number;
+  /** 1-based first line of the entry. */
+  line: number;
+  ok: boolean;
+  elementSetId?: string;
+  /** Set when the same satellite already has an element set with this epoch (it is kept, not duplicated). */
+  duplicate?: boolean;
+  code?: string;
+  field?: string;
+  message?: string;
+  column?: number;
+  file?: string;
+}
+
+export interface UploadResult {
+  report: ReportEntry[];
+  accepted: number;
+  rejected: number;
+  created: ElementSetRecord[];
+}
+
+export interface ElementSetSummary {
+  id: string;
+  source: string;
+  epoch: string;
+  ageDays: number;
+  staleness: Staleness;
+  uploadedBy: string | null;
+  createdAt: string;
+  catalogNumber: string;
+  name: string;
+}
+
+export interface SatelliteView {
+  id: string;
+  name: string;
+  catalogNumber: string | null;
+  description: string;
+  current: ElementSetSummary | null;
+  derived: DerivedElements | null;
+}
+
+export interface UploadInput {
+  /** Element set text: TLE (2 or 3 lines per set), OMM KVN, OMM XML or OMM JSON. */
+  text?: string | undefined;
+  /** Format hint (from the Content-Type); detected from the text when absent. */
+  format?: ElementFormat | undefined;
+  files?: Array<{ name: string; text: string }> | undefined;
+  /** Keplerian form entry, as fromKeplerian of the shared engine takes it. */
+  kepler?: unknown;
+}
+
+const DAY_MS = 86_400_000;
+
+function formatFromFileName(name: string): ElementFormat | undefined {
+  const n = name.toLowerCase();
+  if (n.endsWith('.xml')) return 'omm-xml';
+  if (n.endsWith('.json')) return 'omm-json';
+  if (n.endsWith('.kvn') || n.endsWith('.omm')) return 'omm-kvn';
+  return undefined;
+}
+
+export class SatelliteService {
+  readonly cache = new OrbitCache();
+
+  constructor(private readonly ctx: AppContext) {}
+
+  listSatellites(orgId: string): Promise<Satellite[]> {
+    return Satellite.findAll({ where: { organizationId: orgId }, order: [['name', 'ASC']] });
+  }
+
+  async getSatellite(orgId: string, id: string): Promise<Satellite> {
+    const s = await Satellite.findOne({ where: { id, organizationId: orgId } });
+    if (!s) throw new HttpError('not-found', `Satellite ${id} does not exist in this organization.`);
+    return s;
+  }
+
+  async createSatellite(
+    orgId: string,
+    input: { name: string; description?: string | undefined; elementsText?: string | undefined; format?: ElementFormat | undefined },
+    actor: Actor,
+  ): Promise<{ satellite: Satellite; upload: UploadResult | null }> {
+    const name = input.name.trim();
+    if (!name || name.length > 200) {
+      throw new HttpError('validation-failed', 'A satellite needs a name of 1 to 200 characters.', {
+        errors: [{ where: 'name', field: 'name', message: '1 to 200 characters' }],
+      });
+    }
+    let entries: ParsedEntry[] | null = null;
+    if (input.elementsText !== undefined && input.elementsText.trim() !== '') {
+      entries = this.parseText(input.elementsText, input.format);
+      const usable = entries.filter((e) => e.result.ok);
+      if (usable.length === 0) throw unprocessable(entries.map((e) => reportOf(e)), 'None of the submitted element sets could be used; the satellite was not created.');
+    }
+    const satellite = await Satellite.create({
+      id: `sat_${nanoid(12)}`,
+      organizationId: orgId,
+      name,
+      catalogNumber: null,
+      description: (input.description ?? '').slice(0, 5000),
+      currentElementSetId: null,
+    });
+    const upload = entries ? await this.storeEntries(satellite, withRawText(input.elementsText ?? '', entries), actor) : null;
+    return { satellite, upload };
+  }
+
+  async updateSatellite(orgId: string, id: string, input: { name?: string | undefined; description?: string | undefined }): Promise<Satellite> {
+    const s = await this.getSatellite(orgId, id);
+    const patch: { name?: string; description?: string } = {};
+    if (input.name !== undefined) {
+      const name = input.name.trim();
+      if (!name || name.length > 200) {
+        throw new HttpError('validation-failed', 'A satellite needs a name of 1 to 200 characters.', {
+          errors: [{ where: 'name', field: 'name', message: '1 to 200 characters' }],
+        });
+      }
+      patch.name = name;
+    }
+    if (input.description !== undefined) patch.description = input.description.slice(0, 5000);
+    await s.update(patch);
+    this.cache.invalidate(id);
+    return s;
+  }
+
+  async deleteSatellite(orgId: string, id: string): Promise<void> {
+    const s = await this.getSatellite(orgId, id);
+    await this.ctx.sequelize.transaction(async (transaction) => {
+      await ElementSetRecord.destroy({ where: { satelliteId: id }, transaction });
+      await s.destroy({ transaction });
+    });
+    this.cache.invalidate(id);
+  }
+
+  /** Parse and store element sets for a satellite; bad entries are reported, good ones kept. */
+  async addElementSets(satellite: Satellite, input: UploadInput, actor: Actor): Promise<UploadResult> {
+    const batch: BatchItem[] = [];
+    if (input.text !== undefined) batch.push(...withRawText(input.text, this.parseText(input.text, input.format)));
+    for (const f of input.files ?? []) {
+      batch.push(...withRawText(f.text, this.parseText(f.text, formatFromFileName(f.name)), f.name));
+    }
+    if (input.kepler !== undefined) {
+      const result = fromKeplerian(input.kepler as Parameters<typeof fromKeplerian>[0]);
+      batch.push({ entry: { index: 1, line: 1, result }, raw: JSON.stringify(input.kepler) });
+    }
+    if (batch.length === 0) {
+      throw new HttpError('validation-failed', 'Send element sets as text, as files, or as Keplerian elements.', {
+        errors: [{ where: '(body)', message: 'no element set given' }],
+      });
+    }
+    if (batch.length > MAX_SETS_PER_UPLOAD) {
+      throw new HttpError('payload-too-large', `At most ${MAX_SETS_PER_UPLOAD} element sets per upload; this one holds ${batch.length}.`);
+    }
+    return this.storeEntries(satellite, batch, actor);
+  }
+
+  listElementSets(satelliteId: string): Promise<ElementSetRecord[]> {
+    return ElementSetRecord.findAll({ where: { satelliteId }, order: [['epoch', 'DESC'], ['createdAt', 'DESC']] });
+  }
+
+  async getElementSet(orgId: string, esId: string): Promise<ElementSetRecord> {
+    const r = await ElementSetRecord.findByPk(esId, { include: [{ model: Satellite, as: 'satellite', attributes: ['organizationId'] }] });
+    const owner = (r as (ElementSetRecord & { satellite?: Satellite }) | null)?.satellite?.organizationId;
+    if (!r || owner !== orgId) throw new HttpError('not-found', `Element set ${esId} does not exist in this organization.`);
+    return r;
+  }
+
+  exportElementSet(record: ElementSetRecord, format: ElementFormat): { text: string; filename: string; contentType: string } {
+    const es = parsedOf(record);
+    const base = `${(es.name || `object-${es.catalogNumber}`).replace(/[^A-Za-z0-9._-]+/g, '-')}-${es.epochIso.slice(0, 19).replace(/[:]/g, '')}`;
+    switch (format) {
+      case 'tle':
+        return { text: toTle(es).text, filename: `${base}.tle`, contentType: 'text/plain; charset=utf-8' };
+      case 'omm-kvn':
+        return { text: toOmmKvn(es), filename: `${base}.kvn`, contentType: 'text/plain; charset=utf-8' };
+      case 'omm-xml':
+        return { text: toOmmXml(es), filename: `${base}.xml`, contentType: 'application/xml; charset=utf-8' };
+      case 'omm-json':
+        return { text: `${JSON.stringify(toOmmJson(es), null, 2)}\n`, filename: `${base}.json`, contentType: 'application/json; charset=utf-8' };
+    }
+  }
+
+  current(satelliteId: string): Promise<CachedSatellite | null> {
+    return this.cache.get(satelliteId);
+  }
+
+  summary(
+    record: Pick<ElementSetRecord, 'id' | 'source' | 'epoch' | 'createdAt' | 'uploadedByUserId' | 'uploadedByKeyId'> & { parsed?: object },
+    es: ElementSet,
+    now: Date = new Date(),
+    uploaders?: Map<string, string>,
+  ): ElementSetSummary {
+    const ageDays = (now.getTime() - es.epochMs) / DAY_MS;
+    const by = record.uploadedByUserId ?? record.uploadedByKeyId;
+    return {
+      id: record.id,
+      source: record.source,
+      epoch: es.epochIso,
+      ageDays: Math.round(ageDays * 1000) / 1000,
+      staleness: stalenessOf(ageDays),
+      uploadedBy: by && uploaders ? (uploaders.get(by) ?? null) : null,
+      createdAt: new Date(record.createdAt).toISOString(),
+      catalogNumber: es.catalogNumber,
+      name: es.name,
+    };
+  }
+
+  derived(es: ElementSet, now: Date = new Date()): DerivedElements {
+    return deriveElements(es, now.getTime());
+  }
+
+  /** The satellite as /v1 and the console show it. */
+  async view(satellite: Satellite | CachedSatellite['satellite'], now: Date = new Date(), uploaders?: Map<string, string>): Promise<SatelliteView> {
+    const cached = await this.cache.get(satellite.id);
+    const cur = cached?.current ?? null;
+    return {
+      id: satellite.id,
+      name: satellite.name,
+      catalogNumber: satellite.catalogNumber,
+      description: satellite.description ?? '',
+      current: cur ? this.summary(cur.record, cur.elementSet, now, uploaders) : null,
+      derived: cur ? this.derived(cur.elementSet, now) : null,
+    };
+  }
+
+  /** Display names of who uploaded: users by name, keys as "key <name> (…abcd)". */
+  async uploaderNames(records: ReadonlyArray<Pick<ElementSetRecord, 'uploadedByUserId' | 'uploadedByKeyId'>>): Promise<Map<string, string>> {
+    const userIds = [...new Set(records.map((r) => r.uploadedByUserId).filter((x): x is string => !!x))];
+    const keyIds = [...new Set(records.map((r) => r.uploadedByKeyId).filter((x): x is string => !!x))];
+    const names = new Map<string, string>();
+    if (userIds.length) for (const u of await User.findAll({ where: { id: userIds }, attributes: ['id', 'name'] })) names.set(u.id, u.name);
+    if (keyIds.length) for (const k of await ApiKey.findAll({ where: { id: keyIds }, attributes: ['id', 'name', 'lastFour'] })) names.set(k.id, `key ${k.name} (…${k.lastFour})`);
+    return names;
+  }
+
+  private parseText(text: string, format?: ElementFormat): ParsedEntry[] {
+    if (text.length > MAX_ELEMENT_TEXT_CHARS) {
+      throw new HttpError('payload-too-large', `Element set text is limited to ${MAX_ELEMENT_TEXT_CHARS.toLocaleString('en')} characters.`);
+    }
+    return parseElementSets(text, format);
+  }
+
+  private async storeEntries(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
+    const report: ReportEntry[] = [];
+    const created: ElementSetRecord[] = [];
+    const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'] });
+    const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
+    let catalog = satellite.catalogNumber;
+    await this.ctx.sequelize.transaction(async (transaction) => {
+      for (const { entry, file, raw } of batch) {
+        const base = reportOf(entry, file);
+        if (!entry.result.ok) {
+          report.push(base);
+          continue;
+        }
+        const es = entry.result.elementSet;
+        if (catalog && es.catalogNumber && es.catalogNumber !== catalog && !(es.source === 'kepler')) {
+          report.push({
+            ...base,
+            ok: false,
+            code: 'catalog-mismatch',
+            field: 'catalogNumber',
+            message: `This set is for catalog number ${es.catalogNumber}, but the satellite ${satellite.name} is catalog number ${catalog}.`,
+          });
+          continue;
+        }
+        const check = checkPropagates(es);
+        if (check) {
+          report.push({ ...base, ok: false, ...check });
+          continue;
+        }
+        const epochMs = Math.floor(es.epochMs);
+        const dup = byEpoch.get(epochMs);
+        if (dup) {
+          report.push({ ...base, ok: true, elementSetId: dup, duplicate: true });
+          continue;
+        }
+        const record = await ElementSetRecord.create(
+          {
+            id: `es_${nanoid(14)}`,
+            satelliteId: satellite.id,
+            source: es.source,
+            rawText: raw,
+            parsed: es as unknown as object,
+            epoch: new Date(epochMs),
+            uploadedByUserId: actor.userId ?? null,
+            uploadedByKeyId: actor.keyId ?? null,
+          },
+          { transaction },
+        );
+        byEpoch.set(epochMs, record.id);
+        created.push(record);
+        if (!catalog && es.catalogNumber && es.source !== 'kepler') catalog = es.catalogNumber;
+        report.push({ ...base, ok: true, elementSetId: record.id });
+      }
+      if (created.length > 0) {
+        const latest = await ElementSetRecord.findOne({ where: { satelliteId: satellite.id }, order: [['epoch', 'DESC']], attributes: ['id'], transaction });
+        await satellite.update({ currentElementSetId: latest?.id ?? null, catalogNumber: catalog }, { transaction });
+      }
+    });
+    this.cache.invalidate(satellite.id);
+    const accepted = report.filter((r) => r.ok).length;
+    return { report, accepted, rejected: report.length - accepted, created };
+  }
+}
+
+interface BatchItem {
+  entry: ParsedEntry;
+  /** The entry's own text as submitted (kept with the stored set). */
+  raw: string;
+  file?: string;
+}
+
+/** Each entry with its slice of the submitted text: from its first line to the next entry's. */
+function withRawText(text: string, entries: ParsedEntry[], file?: string): BatchItem[] {
+  const lines = text.split(/\r\n|\n|\r/);
+  const starts = [...new Set(entries.map((e) => e.line))].sort((a, b) => a - b);
+  return entries.map((entry) => {
+    let raw = text;
+    if (starts.length > 1) {
+      const next = starts.find((l) => l > entry.line) ?? lines.length + 1;
+      raw = lines.slice(entry.line - 1, next - 1).join('\n').trim();
+    }
+    return { entry, raw, ...(file !== undefined ? { file } : {}) };
+  });
+}
+
+function reportOf(entry: ParsedEntry, file?: string): ReportEntry {
+  const r = entry.result;
+  const base: ReportEntry = { index: entry.index, line: entry.line, ok: r.ok, ...(file !== undefined ? { file } : {}) };
+  if (r.ok) return base;
+  return {
+    ...base,
+    code: r.code,
+    field: r.field,
+    message: r.message,
+    ...(r.line !== undefined ? { line: r.line } : {}),
+    ...(r.column !== undefined ? { column: r.column } : {}),
+  };
+}
+
+/** SGP4 must initialise and answer at the epoch; otherwise the set is useless for every route. */
+function checkPropagates(es: ElementSet): { code: string; field: string; message: string } | null {
+  try {
+    const satrec = toSatrec(es);
+    const p = propagateAt(satrec, es.epochMs);
+    if (!p.ok) return { code: `sgp4-${p.code}`, field: 'elements', message: `SGP4 cannot use this set: ${p.message}.` };
+    return null;
+  } catch (err) {
+    return { code: 'sgp4-init', field: 'elements', message: `SGP4 cannot use this set: ${(err as Error).message}` };
+  }
+}
+
+/** A 422 problem for uploads where nothing was usable: every rejected entry with line and column. */
+export function unprocessable(report: ReportEntry[], detail?: string): HttpError {
+  const bad = report.filter((r) => !r.ok);
+  const first = bad[0];
+  const where = (r: ReportEntry) => `${r.file ? `${r.file}, ` : ''}line ${r.line}${r.column !== undefined ? `, column ${r.column}` : ''}`;
+  return new HttpError(
+    'unprocessable-element-set',
+    detail ?? (first ? `${where(first)}: ${first.message ?? first.code}` : 'No element set could be used.'),
+    {
+      errors: bad.map((r) => ({
+        where: where(r),
+        message: r.message ?? r.code ?? 'not usable',
+        line: r.line,
+        ...(r.column !== undefined ? { column: r.column } : {}),
+        ...(r.field !== undefined ? { field: r.field } : {}),
+        ...(r.code !== undefined ? { reason: r.code } : {}),
+        ...(r.file !== undefined ? { file: r.file } : {}),
+      })),
+      report,
+    },
+  );
+}
+
+declare module '../context.ts' {
+  interface AppServices {
+    /** Set by getSatelliteService (app.ts calls it at start-up). */
+    satellites?: SatelliteService;
+  }
+}
+
+/** The app's SatelliteService, created on first use. */
+export function getSatelliteService(ctx: AppContext): SatelliteService {
+  ctx.services.satellites ??= new SatelliteService(ctx);
+  return ctx.services.satellites;
+}
