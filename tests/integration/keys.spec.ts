@@ -1,0 +1,213 @@
+/**
+ * Key rules on /v1: origins and CORS, scopes, rotation with grace, revocation, expiry,
+ * per-key rate limits and the monthly quota.
+ */
+import request from 'supertest';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { ApiKey, UsageDaily } from '../../server/src/models/index.ts';
+import { getKeyService } from '../../server/src/services/keys.ts';
+import { getQuotaService, planOf } from '../../server/src/services/quota.ts';
+import { leoTle, PAGE_ORIGIN, startKeyedApp, type KeyedTestApp } from '../support/app.ts';
+
+let t: KeyedTestApp;
+beforeAll(async () => {
+  t = await startKeyedApp();
+});
+afterAll(async () => {
+  await t?.close();
+});
+
+const sat = () => `/v1/satellites/${t.satellites.leo.id}`;
+
+function expectProblem(res: request.Response, status: number, code: string): void {
+  expect(res.status, JSON.stringify(res.body)).toBe(status);
+  expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
+  expect(res.body.code).toBe(code);
+}
+
+describe('browser keys and origins', () => {
+  it('serves a browser key in ?key= from a listed origin and reflects that origin in CORS', async () => {
+    const res = await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Origin', PAGE_ORIGIN).expect(200);
+    expect(res.headers['access-control-allow-origin']).toBe(PAGE_ORIGIN);
+    expect(res.headers.vary).toMatch(/Origin/);
+    expect(res.headers['access-control-expose-headers']).toMatch(/RateLimit/);
+  });
+
+  it('serves any subdomain of a wildcard origin, but not the bare domain', async () => {
+    await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Origin', 'https://maps.outreach.example.net').expect(200);
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Origin', 'https://example.net'), 403, 'origin-not-allowed');
+  });
+
+  it('refuses a browser key from an origin it does not list, readably for the page', async () => {
+    const res = await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Origin', 'https://copycat.example.com');
+    expectProblem(res, 403, 'origin-not-allowed');
+    expect(res.body.detail).toContain('https://copycat.example.com');
+    expect(res.headers['access-control-allow-origin']).toBe('https://copycat.example.com');
+    expect(res.body).not.toHaveProperty('lat');
+  });
+
+  it('judges a request without Origin by its Referer, and refuses one naming no origin at all', async () => {
+    await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Referer', `${PAGE_ORIGIN}/where-is-it.html`).expect(200);
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Referer', 'https://elsewhere.example.com/x'), 403, 'origin-not-allowed');
+    const bare = await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey });
+    expectProblem(bare, 403, 'origin-not-allowed');
+    expect(bare.body.detail).toMatch(/server key/);
+  });
+
+  it('refuses writes with a browser key', async () => {
+    const res = await request(t.app)
+      .post(`${sat()}/element-sets`)
+      .set('Authorization', `Bearer ${t.browserKey}`)
+      .set('Origin', PAGE_ORIGIN)
+      .set('Content-Type', 'text/plain')
+      .send(leoTle());
+    expectProblem(res, 403, 'browser-key-read-only');
+  });
+
+  it('answers a preflight for any origin, and checks a key carried in the URL', async () => {
+    const ok = await request(t.app).options(`${sat()}/track`).set('Origin', 'https://anyone.example.com').set('Access-Control-Request-Method', 'GET').set('Access-Control-Request-Headers', 'authorization');
+    expect(ok.status).toBe(204);
+    expect(ok.headers['access-control-allow-origin']).toBe('https://anyone.example.com');
+    expect(ok.headers['access-control-allow-headers']).toBe('authorization');
+    expect(ok.headers['access-control-allow-methods']).toMatch(/GET/);
+    const refused = await request(t.app).options(`${sat()}/track?key=${t.browserKey}`).set('Origin', 'https://anyone.example.com').set('Access-Control-Request-Method', 'GET');
+    expectProblem(refused, 403, 'origin-not-allowed');
+    await request(t.app).options(`${sat()}/track?key=${t.browserKey}`).set('Origin', PAGE_ORIGIN).set('Access-Control-Request-Method', 'GET').expect(204);
+  });
+});
+
+describe('embeds as read credentials', () => {
+  it('reads the embed\u2019s satellites with its browser key, from the key\u2019s origins and this server\u2019s own', async () => {
+    await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Origin', PAGE_ORIGIN).expect(200);
+    await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Origin', 'http://nadirline.test').expect(200);
+    await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Sec-Fetch-Site', 'same-origin').expect(200);
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Origin', 'https://copycat.example.com'), 403, 'origin-not-allowed');
+  });
+
+  it('limits an embed to its own satellites', async () => {
+    const list = await request(t.app).get('/v1/satellites').query({ embed: t.embedId }).set('Origin', PAGE_ORIGIN).expect(200);
+    expect(list.body.satellites.map((s: { id: string }) => s.id)).toEqual([t.satellites.leo.id]);
+    expectProblem(await request(t.app).get(`/v1/satellites/${t.satellites.geo.id}/position`).query({ embed: t.embedId }).set('Origin', PAGE_ORIGIN), 404, 'not-found');
+  });
+});
+
+describe('server keys and scopes', () => {
+  it('refuses a server key sent from a web page and a server key in the URL', async () => {
+    const page = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.serverKey}`).set('Origin', PAGE_ORIGIN);
+    expectProblem(page, 403, 'origin-not-allowed');
+    expect(page.body.detail).toMatch(/server key/);
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ key: t.serverKey }), 401, 'invalid-key');
+  });
+
+  it('needs the element-sets:write scope to write', async () => {
+    const res = await request(t.app).post(`${sat()}/element-sets`).set('Authorization', `Bearer ${t.readKey}`).set('Content-Type', 'text/plain').send(leoTle());
+    expectProblem(res, 403, 'scope-missing');
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.readKey}`).expect(200);
+  });
+
+  it('never lets a key read another organization\u2019s satellites', async () => {
+    expectProblem(await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.otherKey}`), 404, 'not-found');
+  });
+});
+
+describe('rotation, revocation and expiry', () => {
+  it('keeps the old key working through its grace period while the new one works at once', async () => {
+    const made = await t.makeKey({ kind: 'server', name: 'Rotating' });
+    const keys = getKeyService(t.context);
+    const rotated = await keys.rotateKey(made.id, 24);
+    expect(rotated.secret).not.toBe(made.secret);
+    expect(keys.serializeKey(rotated.previous).state).toBe('grace');
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`).expect(200);
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${rotated.secret}`).expect(200);
+
+    // The grace period ends (moved into the past as time would move it).
+    const stoppedAt = new Date(Date.now() - 60_000);
+    await ApiKey.update({ graceUntil: stoppedAt }, { where: { id: made.id } });
+    keys.invalidate(rotated.previous);
+    const res = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`);
+    expectProblem(res, 401, 'key-rotated');
+    expect(res.body.detail).toContain(stoppedAt.toISOString());
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${rotated.secret}`).expect(200);
+  });
+
+  it('stops the old key at once with a grace of zero hours', async () => {
+    const made = await t.makeKey({ kind: 'server', name: 'Leaked' });
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`).expect(200);
+    const rotated = await getKeyService(t.context).rotateKey(made.id, 0);
+    expectProblem(await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`), 401, 'key-rotated');
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${rotated.secret}`).expect(200);
+  });
+
+  it('revokes at once, even with the key record cached', async () => {
+    const made = await t.makeKey({ kind: 'browser', name: 'Old site', origins: [PAGE_ORIGIN] });
+    await request(t.app).get(`${sat()}/position`).query({ key: made.secret }).set('Origin', PAGE_ORIGIN).expect(200);
+    await getKeyService(t.context).revokeKey(made.id);
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ key: made.secret }).set('Origin', PAGE_ORIGIN), 401, 'key-revoked');
+  });
+
+  it('answers key-expired after the expiry date', async () => {
+    const soon = new Date(Date.now() + 200);
+    const made = await t.makeKey({ kind: 'server', name: 'Short-lived', expiresAt: soon });
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`).expect(200);
+    await new Promise((r) => setTimeout(r, 300));
+    const res = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`);
+    expectProblem(res, 401, 'key-expired');
+    expect(res.body.detail).toContain(soon.toISOString());
+  });
+
+  it('refuses to rotate a revoked key and validates key input', async () => {
+    const keys = getKeyService(t.context);
+    const made = await t.makeKey({ kind: 'server', name: 'Gone' });
+    await keys.revokeKey(made.id);
+    await expect(keys.rotateKey(made.id)).rejects.toMatchObject({ code: 'conflict' });
+    await expect(keys.createKey({ organizationId: t.orgId, kind: 'browser', name: 'No origins' })).rejects.toMatchObject({ code: 'validation-failed' });
+    await expect(keys.createKey({ organizationId: t.orgId, kind: 'browser', name: 'Writer', origins: [PAGE_ORIGIN], scopes: ['element-sets:write'] })).rejects.toMatchObject({ code: 'validation-failed' });
+    await expect(keys.createKey({ organizationId: t.orgId, kind: 'browser', name: 'Bad origin', origins: ['example.org/path'] })).rejects.toMatchObject({ code: 'validation-failed' });
+  });
+
+  it('shows the text once: only the hash and last four characters are stored', async () => {
+    const made = await t.makeKey({ kind: 'server', name: 'Stored' });
+    const row = await ApiKey.findByPk(made.id);
+    expect(made.secret).toMatch(/^nls_[A-Za-z0-9_-]{32}$/);
+    expect(row?.hash).toMatch(/^[0-9a-f]{64}$/);
+    expect(row?.hash).not.toContain(made.secret.slice(4));
+    expect(row?.lastFour).toBe(made.secret.slice(-4));
+    expect(JSON.stringify(row?.toJSON())).not.toContain(made.secret);
+  });
+});
+
+describe('rate limits and quota', () => {
+  it('answers 429 with Retry-After and the standard RateLimit headers past the key\u2019s limit', async () => {
+    const made = await t.makeKey({ kind: 'server', name: 'Slow', rateLimitPerMin: 3 });
+    for (let i = 0; i < 3; i++) {
+      const ok = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`).expect(200);
+      expect(ok.headers['ratelimit-policy']).toMatch(/q=3/);
+      expect(ok.headers.ratelimit).toMatch(/r=\d+/);
+    }
+    const res = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`);
+    expectProblem(res, 429, 'rate-limited');
+    expect(Number(res.headers['retry-after'])).toBeGreaterThan(0);
+    expect(res.headers['retry-after']).toBeDefined();
+    expect(res.headers.ratelimit).toMatch(/r=0/);
+    // Other keys are not affected.
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.serverKey}`).expect(200);
+  });
+
+  it('answers quota-exceeded once the organization has used its month', async () => {
+    const quota = getQuotaService(t.context);
+    const limit = planOf('mission').monthlyRequests;
+    const used = await quota.usedThisMonth(t.orgId);
+    const day = new Date().toISOString().slice(0, 10);
+    await UsageDaily.create({ organizationId: t.orgId, apiKeyId: t.serverKeyId, endpoint: 'GET /v1/earlier', day, count: limit - used - 1 });
+    quota.invalidatePlan(t.orgId);
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.serverKey}`).expect(200);
+    const res = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.serverKey}`);
+    expectProblem(res, 429, 'quota-exceeded');
+    expect(res.body.limit).toBe(limit);
+    expect(Number(res.headers['retry-after'])).toBeGreaterThan(0);
+    // Another organization is not affected.
+    await request(t.app).get(`/v1/satellites/${t.satellites.other.id}/position`).set('Authorization', `Bearer ${t.otherKey}`).expect(200);
+    const status = await quota.status(t.orgId);
+    expect(status.usedThisMonth).toBeGreaterThanOrEqual(limit);
+  });
+});
