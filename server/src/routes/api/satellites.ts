@@ -156,8 +156,9 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     const { format } = parseQuery(ExportQuery, req);
     const record = await sats.getElementSet(orgAuth(res).organization.id, param(req, 'esId'));
     const out = sats.exportElementSet(record, format);
-    res.set('Content-Type', out.contentType);
+    // attachment() sets a type from the file extension: set ours after it.
     res.attachment(out.filename);
+    res.set('Content-Type', out.contentType);
     res.send(out.text);
   });
 

@@ -51,8 +51,8 @@ export function usageRoutes(ctx: AppContext): ApiRoutes {
     const orgId = orgAuth(res).organization.id;
     const window = range(parseQuery(UsageQuery, req));
     const csv = await usage.csv(orgId, window);
-    res.type('text/csv; charset=utf-8');
     res.attachment(`nadirline-usage-${window.from}-to-${window.to}.csv`);
+    res.type('text/csv; charset=utf-8');
     res.send(csv);
   });
 
