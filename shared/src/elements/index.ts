@@ -12,7 +12,6 @@ export {
   meanMotionFromSemiMajorAxis,
   semiMajorAxisFromMeanMotion,
   meanMotionFromPeriod,
-  MU_WGS72_KM3_S2,
 } from './kepler.ts';
 export type { KeplerianInput } from './kepler.ts';
 export { parseElementSets, parseElementSet, detectElementSetFormat } from './detect.ts';

@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import type { ElementSet, ElementSetError, ParseResult } from '../types.ts';
+import { MU_WGS72_KM3_S2 } from '../orbit/constants.ts';
 import {
-  MU_WGS72_KM3_S2,
   fromKeplerian,
   meanMotionFromPeriod,
   meanMotionFromSemiMajorAxis,

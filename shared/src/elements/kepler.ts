@@ -17,9 +17,9 @@ import {
   toElementSet,
 } from './validate.ts';
 import type { Candidate, CandidateField } from './validate.ts';
+// WGS-72 mu 398600.8 km^3/s^2, the constant SGP4 uses (AIAA 2006-6753 table 2), kept in one place.
+import { MU_WGS72_KM3_S2 } from '../orbit/constants.ts';
 
-/** WGS-72 gravitational parameter, km^3/s^2: the constant SGP4 uses (AIAA 2006-6753 table 2). */
-export const MU_WGS72_KM3_S2 = 398600.8;
 const SECONDS_PER_DAY = 86400;
 const MINUTES_PER_DAY = 1440;
 

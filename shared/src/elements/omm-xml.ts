@@ -1,10 +1,11 @@
 /**
  * OMM in XML (CCSDS 502.0-B-3 section 8.5 and the NDM/XML schema): one <omm> message, or an
  * <ndm> holding several. Each <omm> is checked and parsed on its own, so one broken message
- * does not sink its neighbours. Positions of values are found by searching the text, as
- * fast-xml-parser reports positions only for syntax errors.
+ * does not sink its neighbours. fast-xml-parser's validator checks well-formedness (and places
+ * syntax errors); a small reader then walks the checked text keeping offsets, so every value is
+ * reported at its own line and column (the library's parser keeps no positions).
  */
-import { XMLParser, XMLValidator } from 'fast-xml-parser';
+import { XMLValidator } from 'fast-xml-parser';
 import type { ElementSet, ElementSetError, ParseResult, ParsedEntry } from '../types.ts';
 import { reject } from './errors.ts';
 import type { FieldLocation } from './errors.ts';
@@ -24,15 +25,6 @@ const CONTAINERS = new Set([
   'covarianceMatrix',
   'userDefinedParameters',
 ]);
-
-const parser = new XMLParser({
-  ignoreAttributes: false,
-  attributeNamePrefix: '@_',
-  removeNSPrefix: true,
-  parseTagValue: false,
-  parseAttributeValue: false,
-  trimValues: true,
-});
 
 interface Chunk {
   start: number;
@@ -60,7 +52,76 @@ function findOmmChunks(masked: string): Chunk[] {
 
 type Walk = { ok: true } | ElementSetError;
 
-/** Parse one <omm> element's text; `offset` is where it starts in the whole text. */
+/** An element of a well-formed chunk, with offsets into the chunk. */
+interface XmlElement {
+  /** Local name (namespace prefix removed). */
+  name: string;
+  attrs: Map<string, { value: string; at: number }>;
+  children: XmlElement[];
+  text: string;
+  /** Offset of the first non-blank character of the text, or just after the start tag. */
+  textAt: number;
+  at: number;
+}
+
+const ENTITIES: Record<string, string> = { lt: '<', gt: '>', amp: '&', quot: '"', apos: "'" };
+
+function decodeEntities(s: string): string {
+  return s.replace(/&(#x[0-9a-fA-F]+|#\d+|[A-Za-z]+);/g, (m, e: string) => {
+    if (e.startsWith('#')) {
+      const code = e[1] === 'x' ? parseInt(e.slice(2), 16) : parseInt(e.slice(1), 10);
+      return code <= 0x10ffff ? String.fromCodePoint(code) : m;
+    }
+    return ENTITIES[e] ?? m;
+  });
+}
+
+function localName(qname: string): string {
+  const i = qname.indexOf(':');
+  return i < 0 ? qname : qname.slice(i + 1);
+}
+
+const TOKEN =
+  /<!--[\s\S]*?-->|<!\[CDATA\[([\s\S]*?)\]\]>|<\?[\s\S]*?\?>|<\/([^\s>]+)\s*>|<([^\s/>!?]+)((?:\s+[^\s=/>]+\s*=\s*(?:"[^"]*"|'[^']*'))*)\s*(\/?)>|[^<]+/y;
+const ATTR = /([^\s=/>]+)\s*=\s*(?:"([^"]*)"|'([^']*)')/g;
+
+/**
+ * Read a chunk that XMLValidator (fast-xml-parser) has found well-formed into elements that
+ * keep their offsets, so every value can be reported at its own line and column.
+ */
+function readElements(xml: string): XmlElement | null {
+  const root: XmlElement = { name: '#document', attrs: new Map(), children: [], text: '', textAt: 0, at: 0 };
+  const stack: XmlElement[] = [root];
+  TOKEN.lastIndex = 0;
+  while (TOKEN.lastIndex < xml.length) {
+    const at = TOKEN.lastIndex;
+    const m = TOKEN.exec(xml);
+    if (!m) return null;
+    const top = stack[stack.length - 1] as XmlElement;
+    const [whole, cdata, endName, startName, attrText = '', selfClose] = m;
+    if (startName !== undefined) {
+      const el: XmlElement = { name: localName(startName), attrs: new Map(), children: [], text: '', textAt: at + whole.length, at };
+      for (const a of attrText.matchAll(ATTR)) {
+        el.attrs.set(localName(a[1] ?? ''), { value: decodeEntities(a[2] ?? a[3] ?? ''), at: at + startName.length + 1 + (a.index ?? 0) });
+      }
+      top.children.push(el);
+      if (selfClose !== '/') stack.push(el);
+    } else if (endName !== undefined) {
+      if (stack.length <= 1) return null;
+      stack.pop();
+    } else if (cdata !== undefined || !whole.startsWith('<')) {
+      const piece = cdata ?? decodeEntities(whole);
+      if (top.text.trim() === '' && piece.trim() !== '') {
+        const lead = whole.length - whole.trimStart().length;
+        top.textAt = at + (cdata !== undefined ? 9 : lead);
+      }
+      top.text += piece;
+    }
+  }
+  return stack.length === 1 ? root : null;
+}
+
+/** Parse one <omm> element's text; `chunk` is where it sits in the whole text. */
 function parseOmmChunk(text: string, chunk: Chunk, pos: TextPositions): ParseResult {
   const xml = text.slice(chunk.start, chunk.end);
   const base = pos.at(chunk.start);
@@ -72,80 +133,52 @@ function parseOmmChunk(text: string, chunk: Chunk, pos: TextPositions): ParseRes
     const where = absolute(err.line ?? 1, err.col ?? 1);
     return reject('syntax', { field: 'xml', ...where }, `not well-formed XML: ${err.msg}`);
   }
-  let doc: unknown;
-  try {
-    doc = parser.parse(xml);
-  } catch (e) {
-    return reject('syntax', { field: 'xml', ...base }, `not well-formed XML: ${e instanceof Error ? e.message : String(e)}`);
+  const doc = readElements(xml);
+  const root = doc?.children.length === 1 ? doc.children[0] : undefined;
+  if (!root || root.name !== 'omm') {
+    return reject('syntax', { field: 'xml', ...base }, 'expected one well-formed <omm> element');
   }
-  const root = (doc as Record<string, unknown>).omm;
-  if (typeof root !== 'object' || root === null || Array.isArray(root)) {
+  const at = (offset: number, field: string): FieldLocation => ({ field, ...pos.at(chunk.start + offset) });
+
+  const items = new Map<string, OmmItem>();
+  const version = root.attrs.get('version');
+  if (!version) {
+    return reject('missing', { field: 'CCSDS_OMM_VERS', ...base }, 'the <omm> element needs its version attribute (version="3.0"; CCSDS 502.0-B-3 section 8)');
+  }
+  items.set('CCSDS_OMM_VERS', { value: version.value, ...pos.at(chunk.start + version.at) });
+  if (root.children.length === 0 && root.text.trim() === '') {
     return reject('structure', { field: 'omm', ...base }, 'the <omm> element is empty; it must hold <header> and <body>');
   }
 
-  /** Position of the value of the n-th <KEYWORD> in this chunk. */
-  const locate = (keyword: string): FieldLocation => {
-    const re = new RegExp(`<(?:[A-Za-z_][\\w.-]*:)?${keyword.replace(/[.*+?^${}()|[\]\\]/g, '\\$&')}(?=[\\s>/])`);
-    const m = re.exec(xml);
-    if (!m) return { field: keyword, ...base };
-    const gt = xml.indexOf('>', m.index);
-    let at = gt < 0 ? m.index : gt + 1;
-    while (at < xml.length && /\s/.test(xml[at] ?? '')) at++;
-    const p = pos.at(chunk.start + (gt < 0 ? m.index : at));
-    return { field: keyword, line: p.line, column: p.column };
-  };
-
-  const items = new Map<string, OmmItem>();
-  const rootObj = root as Record<string, unknown>;
-  const version = rootObj['@_version'];
-  if (typeof version !== 'string') {
-    return reject('missing', { field: 'CCSDS_OMM_VERS', ...base }, 'the <omm> element needs its version attribute (version="3.0"; CCSDS 502.0-B-3 section 8)');
-  }
-  const vm = /version\s*=\s*["']/.exec(xml);
-  const vpos = vm ? pos.at(chunk.start + vm.index + vm[0].length) : base;
-  items.set('CCSDS_OMM_VERS', { value: version, line: vpos.line, column: vpos.column });
-
-  const walk = (node: Record<string, unknown>, tag: string): Walk => {
-    for (const [key, val] of Object.entries(node)) {
-      if (key.startsWith('@_')) continue;
-      if (key === '#text') {
-        if (String(val).trim() !== '') {
-          return reject('structure', locate(tag), `<${tag}> holds text "${String(val).slice(0, 30)}" where only elements belong`);
-        }
-        continue;
-      }
+  const walk = (node: XmlElement): Walk => {
+    if (node.text.trim() !== '') {
+      return reject('structure', at(node.textAt, node.name), `<${node.name}> holds text "${node.text.trim().slice(0, 30)}" where only elements belong`);
+    }
+    const seen = new Set<string>();
+    for (const child of node.children) {
+      const key = child.name;
       if (key === 'COMMENT' || key === 'USER_DEFINED') continue;
       if (CONTAINERS.has(key)) {
-        if (Array.isArray(val)) return reject('duplicate', locate(key), `<${key}> appears more than once in one <omm>`);
-        if (typeof val === 'object' && val !== null) {
-          const r = walk(val as Record<string, unknown>, key);
-          if (!r.ok) return r;
-        } else if (String(val).trim() !== '') {
-          return reject('structure', locate(key), `<${key}> must hold elements, not text`);
-        }
+        if (seen.has(key)) return reject('duplicate', at(child.at, key), `<${key}> appears more than once in one <omm>`);
+        seen.add(key);
+        const r = walk(child);
+        if (!r.ok) return r;
         continue;
       }
       if (!isOmmKeyword(key)) {
-        return reject('unknown-keyword', locate(key), `<${key}> is not an OMM element (CCSDS 502.0-B-3 tables 4-1 to 4-3)`);
+        return reject('unknown-keyword', at(child.at, key), `<${key}> is not an OMM element (CCSDS 502.0-B-3 tables 4-1 to 4-3)`);
       }
       if (key === 'CCSDS_OMM_VERS') continue;
-      if (Array.isArray(val)) return reject('duplicate', locate(key), `<${key}> appears more than once`);
-      const loc = locate(key);
-      const item: OmmItem = { value: '' };
-      if (loc.line !== undefined) item.line = loc.line;
-      if (loc.column !== undefined) item.column = loc.column;
-      if (typeof val === 'object' && val !== null) {
-        const o = val as Record<string, unknown>;
-        const children = Object.keys(o).filter((k) => !k.startsWith('@_') && k !== '#text');
-        if (children.length > 0) return reject('structure', loc, `<${key}> must hold a value, not elements`);
-        item.value = typeof o['#text'] === 'string' ? o['#text'] : '';
-        if (typeof o['@_units'] === 'string') item.unit = o['@_units'];
-      } else item.value = String(val);
+      if (items.has(key)) return reject('duplicate', at(child.at, key), `<${key}> appears more than once`);
+      if (child.children.length > 0) return reject('structure', at(child.at, key), `<${key}> must hold a value, not elements`);
+      const item: OmmItem = { value: child.text.trim(), ...pos.at(chunk.start + child.textAt) };
+      const units = child.attrs.get('units');
+      if (units) item.unit = units.value;
       items.set(key, item);
     }
     return { ok: true };
   };
-  const walked = walk(rootObj, 'omm');
+  const walked = walk(root);
   if (!walked.ok) return walked;
   return buildFromOmm(items, { source: 'omm-xml', requireHeader: true, line: base.line, column: base.column });
 }
