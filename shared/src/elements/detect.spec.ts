@@ -1,9 +1,9 @@
 import { describe, expect, it } from 'vitest';
 import type { ElementSet, ParseResult, ParsedEntry } from '../types.ts';
 import { detectElementSetFormat, parseElementSet, parseElementSets } from './detect.ts';
-import { toOmmJson } from './omm-json.ts';
-import { toOmmKvn } from './omm-kvn.ts';
-import { toNdmXml, toOmmXml } from './omm-xml.ts';
+import { parseOmmJson, toOmmJson } from './omm-json.ts';
+import { parseOmmKvn, toOmmKvn } from './omm-kvn.ts';
+import { parseOmmXml, parseOmmXmlMany, toNdmXml, toOmmXml } from './omm-xml.ts';
 import { parseTle } from './tle.ts';
 import { AIAA_2006_6753_CASES } from './verification-cases.ts';
 
@@ -111,6 +111,19 @@ describe('parseElementSets gives a result per entry, never all-or-nothing', () =
   it('gives an empty list for empty text', () => {
     expect(parseElementSets('')).toEqual([]);
     expect(parseElementSets(' \n\r\n ')).toEqual([]);
+  });
+});
+
+describe('input that is not text', () => {
+  it('is answered with a rejection or an empty list, not an exception', () => {
+    for (const bad of [undefined, null, 42, {}, []] as unknown as string[]) {
+      expect(parseTle(bad).ok).toBe(false);
+      expect(parseOmmKvn(bad).ok).toBe(false);
+      expect(parseOmmXml(bad).ok).toBe(false);
+      expect(parseOmmJson(bad).ok).toBe(false);
+      expect(parseOmmXmlMany(bad)).toEqual([]);
+      expect(parseElementSets(bad)).toEqual([]);
+    }
   });
 });
 

@@ -26,8 +26,6 @@ export interface OmmItem {
   /** Position of the value. */
   line?: number;
   column?: number;
-  /** Finds the position when it is needed (for formats where finding it costs a search). */
-  locate?: () => { line?: number; column?: number };
 }
 
 export type OmmSource = Extract<ElementSetSource, 'omm-kvn' | 'omm-xml' | 'omm-json'>;
@@ -148,9 +146,8 @@ export function buildFromOmm(items: Map<string, OmmItem>, ctx: OmmContext): Pars
     const it = items.get(kw);
     if (!it) return { ...startAt, field: kw };
     const loc: FieldLocation = { field: kw };
-    const p = it.locate ? it.locate() : it;
-    if (p.line !== undefined) loc.line = p.line;
-    if (p.column !== undefined) loc.column = p.column;
+    if (it.line !== undefined) loc.line = it.line;
+    if (it.column !== undefined) loc.column = it.column;
     return loc;
   };
   const text = (kw: string): string | undefined => {

@@ -78,6 +78,7 @@ export function parseOmmKvnEntries(text: string): ParsedEntry[] {
 
 /** Parse exactly one OMM in KVN. Several messages are an error (use parseElementSets for those). */
 export function parseOmmKvn(text: string): ParseResult {
+  if (typeof text !== 'string') return reject('format', { field: 'text' }, `expected text, got ${typeof text}`);
   const chunks = splitKvnMessages(splitLines(text));
   if (chunks.length === 0) return reject('empty', { field: 'text' }, 'no OMM message found (the text is empty)');
   if (chunks.length > 1) {

@@ -233,6 +233,7 @@ function xmlEntries(text: string): { messages: ParsedEntry[]; stray: ParsedEntry
 
 /** Every <omm> of an XML text (a lone <omm> or an <ndm> holding many), each with its own result. */
 export function parseOmmXmlMany(text: string): ParsedEntry[] {
+  if (typeof text !== 'string') return [];
   const { messages, stray } = xmlEntries(text);
   const all = [...messages, ...stray].sort((a, b) => a.line - b.line);
   return all.map((e, i) => ({ ...e, index: i + 1 }));
@@ -240,6 +241,7 @@ export function parseOmmXmlMany(text: string): ParsedEntry[] {
 
 /** Parse exactly one OMM in XML (a lone <omm>, or an <ndm> holding one). */
 export function parseOmmXml(text: string): ParseResult {
+  if (typeof text !== 'string') return reject('format', { field: 'text' }, `expected text, got ${typeof text}`);
   const { messages, stray } = xmlEntries(text);
   if (stray[0]) return stray[0].result;
   if (messages.length === 0) {

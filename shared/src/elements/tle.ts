@@ -391,6 +391,7 @@ export function parseTleLines(lines: SourceLine[]): ParseResult {
  * name line is dropped). CRLF, blank lines around the set and trailing blanks are tolerated.
  */
 export function parseTle(text: string): ParseResult {
+  if (typeof text !== 'string') return reject('format', { field: 'text' }, `expected text, got ${typeof text}`);
   return parseTleLines(splitLines(text));
 }
 
