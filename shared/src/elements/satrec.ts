@@ -7,9 +7,10 @@
  * element at full precision and the epoch as a calendar string rounded to the millisecond; the
  * satrec's epoch fields are then set to the exact epoch. Initialisation used the rounded epoch
  * only for Greenwich sidereal time and the Sun and Moon terms of deep-space orbits: half a
- * millisecond moves those by about 4e-8 rad, which measured at most a few micrometres on the
- * AIAA 2006-6753 deep-space cases (satrec.spec.ts keeps that bound). Propagate with
- * tsince = (t - es.epochMs) / 60000 minutes to keep the microseconds.
+ * millisecond moves those by about 4e-8 rad, which measured under 0.05 mm over three days on
+ * the AIAA 2006-6753 deep-space cases and nothing on the near-earth ones (satrec.spec.ts holds
+ * it below 1e-6 km). Propagate with tsince = (t - es.epochMs) / 60000 minutes to keep the
+ * microseconds: satrec.jdsatepoch, one double near 2.45e6, resolves only about 40 us.
  */
 import { json2satrec } from 'satellite.js';
 import type { OMMJsonObject, SatRec } from 'satellite.js';
