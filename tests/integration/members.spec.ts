@@ -192,8 +192,14 @@ describe('organizations', () => {
     expect((await person.browser.get(`/api/orgs/${id}`)).body.role).toBe('owner');
     const renamed = await person.browser.patch(`/api/orgs/${id}`, { name: 'Second Light Laboratory' });
     expect(renamed.body.organization.name).toBe('Second Light Laboratory');
+    await person.browser.post(`/api/orgs/${id}/keys`, { kind: 'server', name: 'Doomed key' }).expect(201);
+    await person.browser.post(`/api/orgs/${id}/satellites`, { name: 'Doomed satellite' }).expect(201);
     await person.browser.delete(`/api/orgs/${id}`).expect(204);
     expect((await person.browser.get(`/api/orgs/${id}`)).status).toBe(404);
+    // Everything the organization held went with it.
+    for (const model of ['Membership', 'ApiKey', 'Satellite', 'AuditEvent']) {
+      expect([model, await t.context.sequelize.models[model]!.count({ where: { organizationId: id } })]).toEqual([model, 0]);
+    }
     expect((await person.browser.session()).body.memberships.map((m: { organization: { id: string } }) => m.organization.id)).not.toContain(id);
   });
 
