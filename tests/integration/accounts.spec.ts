@@ -257,3 +257,19 @@ describe('headers and the mailbox page', () => {
     expect(res.headers['content-security-policy']).toContain("script-src 'self'");
   });
 });
+
+describe('in production', () => {
+  it('has no development mailbox, starts no fake SMTP server and sets a Secure session cookie behind HTTPS', async () => {
+    const prod = await startTestApp({ NODE_ENV: 'production', SESSION_SECRET: 'a-long-enough-production-secret', SMTP_URL: 'smtp://127.0.0.1:9' });
+    try {
+      expect(prod.context.services.mail?.mailbox).toBeNull();
+      const res = await prod.browser().get('/dev/mailbox.json');
+      expect(res.status).toBe(404);
+      const session = await prod.browser().agent.get('/api/session').set('X-Forwarded-Proto', 'https');
+      expect(String(session.headers['set-cookie'])).toMatch(/nadir\.sid=.*; Secure/i);
+      expect(session.headers['strict-transport-security']).toMatch(/max-age=\d+/);
+    } finally {
+      await prod.close();
+    }
+  });
+});

@@ -60,7 +60,6 @@ function hashToken(token: string): string {
   return crypto.createHash('sha256').update(token).digest('hex');
 }
 
-
 export async function createOrganization(ctx: AppContext, user: User, name: string, transaction?: Transaction): Promise<Organization> {
   const run = async (t: Transaction) => {
     const org = await Organization.create({ id: nanoid(), name }, { transaction: t });
