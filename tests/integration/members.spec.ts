@@ -118,12 +118,15 @@ describe('invitations', () => {
     expect(asOwner.body.errors[0].field).toBe('role');
   });
 
-  it('refuses an expired invitation', async () => {
+  it('refuses an expired invitation, also when signing up from it', async () => {
     const email = uniqueEmail('late');
     const { id, token } = await invite(email, 'viewer');
     await t.context.sequelize.models['Invitation']!.update({ expiresAt: new Date(Date.now() - 1000) }, { where: { id } });
     const res = await t.browser().get(`/api/invitations/${token}`);
     expect(res.body).toMatchObject({ code: 'invalid-token', reason: 'expired' });
+    const signup = await t.browser().post('/api/auth/signup', { email, name: 'Late', password: PASSWORD, invitationToken: token });
+    expect(signup.status).toBe(400);
+    expect(signup.body).toMatchObject({ code: 'invalid-token', reason: 'expired' });
   });
 });
 

@@ -22,7 +22,7 @@ import { HttpError } from '../http/problem.ts';
 import { destroyUserSessions } from '../http/session.ts';
 import { EmailToken, Membership, Organization, User, type Plan, type Role } from '../models/index.ts';
 import { getMailService, resetPasswordMail, verificationMail } from './mail.ts';
-import { acceptInvitationForUser, createOrganization, findUsableInvitation } from './orgs.ts';
+import { acceptInvitationForUser, createOrganization, invitationOrThrow } from './orgs.ts';
 
 export const VERIFY_TOKEN_TTL_MS = 48 * 3600 * 1000;
 export const RESET_TOKEN_TTL_MS = 3600 * 1000;
@@ -139,8 +139,9 @@ export async function signUp(ctx: AppContext, input: SignUpInput): Promise<{ use
     });
   }
   const passwordHash = await hashPassword(ctx, input.password);
-  const invitation = input.invitationToken ? await findUsableInvitation(input.invitationToken) : null;
-  if (input.invitationToken && invitation && normalizeEmail(invitation.email) !== email) {
+  // An invitation that no longer works is said so, rather than silently making a plain account.
+  const invitation = input.invitationToken ? await invitationOrThrow(input.invitationToken) : null;
+  if (invitation && normalizeEmail(invitation.email) !== email) {
     throw new HttpError('email-mismatch', `This invitation was sent to ${invitation.email}; sign up with that address to accept it.`);
   }
   // Signing up from an invitation link proves the address: the invitation went to it.

@@ -160,14 +160,8 @@ export async function revokeInvitation(ctx: AppContext, auth: OrgAuth, invitatio
   await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'member.invite-revoke', targetType: 'invitation', targetId: invitation.id, detail: { email: invitation.email } });
 }
 
-/** A pending, unexpired invitation for this token, or null. */
-export async function findUsableInvitation(token: string): Promise<Invitation | null> {
-  const invitation = await Invitation.findOne({ where: { tokenHash: hashToken(token) } });
-  if (!invitation || invitation.acceptedAt || invitation.expiresAt.getTime() < Date.now()) return null;
-  return invitation;
-}
-
-async function invitationOrThrow(token: string): Promise<Invitation> {
+/** The pending invitation for this token; 400 invalid-token (reason unknown / used / expired) otherwise. */
+export async function invitationOrThrow(token: string): Promise<Invitation> {
   const invitation = await Invitation.findOne({ where: { tokenHash: hashToken(token) } });
   if (!invitation) throw new HttpError('invalid-token', 'This invitation link is not valid (it may have been withdrawn or replaced by a newer one).', { reason: 'unknown' });
   if (invitation.acceptedAt) throw new HttpError('invalid-token', 'This invitation was already accepted.', { reason: 'used' });
