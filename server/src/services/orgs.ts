@@ -9,6 +9,7 @@
  *   inviteMember(ctx, auth, email, role) -> InvitationJson            (sends the e-mail)
  *   revokeInvitation(ctx, auth, invitationId)
  *   describeInvitation(token) -> { organization: { name }, email, role, expiresAt }
+ *   invitationOrThrow(token) -> Invitation                             (400 invalid-token with reason)
  *   acceptInvitation(ctx, user, token) -> MembershipJson
  *   changeMemberRole(ctx, auth, userId, role) -> MemberJson
  *   removeMember(ctx, auth, userId)
