@@ -60,8 +60,8 @@ export const useSatellitesStore = defineStore('satellites', () => {
   async function addElementSets(org: string, id: string, input: ElementSetInput): Promise<UploadReport> {
     lastReport.value = null;
     const report = await api.addElementSets(org, id, input);
-    lastReport.value = report;
     if (report.accepted > 0) await loadDetail(org, id);
+    lastReport.value = report;
     return report;
   }
 

@@ -1,0 +1,97 @@
+import { flushPromises } from '@vue/test-utils';
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import type { Role } from '../api/types.ts';
+import { useKeysStore } from '../stores/keys.ts';
+import { mockFetch } from '../testing/fetch-mock.ts';
+import { key, session } from '../testing/fixtures.ts';
+import { mountAt } from '../testing/mount.ts';
+import KeysPage from './KeysPage.vue';
+
+afterEach(() => {
+  vi.unstubAllGlobals();
+  document.body.innerHTML = '';
+});
+
+const SECRET = 'nlb_Q2hvb3NlIGFuIG9yaWdpbmFsIGtleQ';
+
+function serve(role: Role) {
+  return mockFetch([
+    { path: '/api/session', body: session(role) },
+    { path: '/api/orgs/org1/keys', body: { keys: [key(), key({ id: 'k2', kind: 'server', name: 'Uploader', lastFour: 'c91Z', origins: [], scopes: ['read', 'element-sets:write'] })] } },
+    {
+      method: 'POST',
+      path: '/api/orgs/org1/keys',
+      status: 201,
+      body: { key: key({ id: 'k3', name: 'Museum kiosk', lastFour: 'igIQ', origins: ['https://kiosk.kestrel.example'] }), secret: SECRET },
+    },
+  ]);
+}
+
+async function open(role: Role) {
+  serve(role);
+  return mountAt(KeysPage, '/o/org1/keys', { org: 'org1' });
+}
+
+describe('the keys page', () => {
+  it('lists keys with kind, last four, origins, limit and state', async () => {
+    const { wrapper } = await open('viewer');
+    const text = wrapper.text();
+    expect(text).toContain('Public website');
+    expect(text).toContain('nlb_…x7Qa');
+    expect(text).toContain('nls_…c91Z');
+    expect(text).toContain('https://www.kestrel.example');
+    expect(text).toContain('600/min');
+    expect(text).toContain('Active');
+    wrapper.unmount();
+  });
+
+  it('offers a viewer no way to create, rotate or revoke keys', async () => {
+    const { wrapper } = await open('viewer');
+    const buttons = wrapper.findAll('button').map((b) => b.text());
+    expect(buttons.some((t) => /create a key/i.test(t))).toBe(false);
+    expect(buttons.some((t) => /manage/i.test(t))).toBe(false);
+    expect(wrapper.text()).toMatch(/can see keys but not change them/);
+    wrapper.unmount();
+  });
+
+  it('offers an editor no key actions either', async () => {
+    const { wrapper } = await open('editor');
+    expect(wrapper.findAll('button').some((b) => /create a key|manage/i.test(b.text()))).toBe(false);
+    wrapper.unmount();
+  });
+
+  it('offers an admin creation and per-key management', async () => {
+    const { wrapper } = await open('admin');
+    const buttons = wrapper.findAll('button').map((b) => b.text());
+    expect(buttons.some((t) => /create a key/i.test(t))).toBe(true);
+    expect(buttons.filter((t) => /^manage/i.test(t))).toHaveLength(2);
+    wrapper.unmount();
+  });
+
+  it('shows the full text of a new key once, and never again after the dialog closes', async () => {
+    const { wrapper } = await open('owner');
+    await wrapper.findAll('button').find((b) => /create a key/i.test(b.text()))!.trigger('click');
+    await flushPromises();
+    const name = document.body.querySelector<HTMLInputElement>('input[type="text"][maxlength="200"]')!;
+    name.value = 'Museum kiosk';
+    name.dispatchEvent(new Event('input'));
+    await flushPromises();
+    const submit = [...document.body.querySelectorAll<HTMLButtonElement>('button[type="submit"]')].find((b) => /create key/i.test(b.textContent ?? ''))!;
+    submit.click();
+    await flushPromises();
+
+    expect(document.body.textContent).toContain(SECRET);
+    expect(document.body.textContent).toMatch(/only time the full key is shown/);
+    const secretCount = () => (document.body.textContent ?? '').split(SECRET).length - 1;
+    expect(secretCount()).toBe(1);
+
+    const done = [...document.body.querySelectorAll('button')].find((b) => /i have stored the key/i.test(b.textContent ?? ''))!;
+    done.click();
+    await flushPromises();
+    expect(secretCount()).toBe(0);
+    expect(useKeysStore().revealed).toBeNull();
+    expect(wrapper.text()).toContain('Museum kiosk');
+    expect(wrapper.text()).toContain('nlb_…igIQ');
+    wrapper.unmount();
+  });
+});
