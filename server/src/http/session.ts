@@ -85,8 +85,18 @@ export async function signOut(req: Request, res: Response): Promise<void> {
 export async function destroyUserSessions(ctx: AppContext, userId: string, exceptSid?: string): Promise<number> {
   const model = ctx.sequelize.models[SESSION_MODEL];
   if (!model) return 0;
-  // The session data is JSON text; match the serialized field (LIKE is portable SQL).
-  const where: Record<string | symbol, unknown> = { data: { [Op.like]: `%"userId":"${userId.replace(/[%_"\\]/g, '')}"%` } };
+  // The session data is JSON text. LIKE (portable SQL) narrows the rows; `_` in an id is a LIKE
+  // wildcard that also matches itself, so the exact check on the parsed data follows.
+  const where: Record<string | symbol, unknown> = { data: { [Op.like]: `%"userId":"${userId.replace(/[%\\"]/g, '')}"%` } };
   if (exceptSid) where['sid'] = { [Op.ne]: exceptSid };
-  return model.destroy({ where });
+  const rows = (await model.findAll({ where, attributes: ['sid', 'data'] })) as unknown as Array<{ sid: string; data: string | null }>;
+  const sids = rows.filter((r) => {
+    try {
+      return (JSON.parse(r.data ?? '{}') as { userId?: unknown }).userId === userId;
+    } catch {
+      return false;
+    }
+  }).map((r) => r.sid);
+  if (sids.length === 0) return 0;
+  return model.destroy({ where: { sid: sids } });
 }
