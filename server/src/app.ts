@@ -46,7 +46,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
-  app.use(
+  // Request lines are logged at info; below that level the middleware would only cost time.
+  if (logger.isLevelEnabled('info')) app.use(
     pinoHttp({
       logger,
       // Keep logs to the request line and outcome; never log keys or cookies.

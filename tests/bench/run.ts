@@ -10,7 +10,10 @@ interface BenchModule {
   load: () => Promise<{ run: () => Promise<void> }>;
 }
 
-const modules: BenchModule[] = [{ name: 'orbit engine', load: () => import('./orbit.bench.ts') }];
+const modules: BenchModule[] = [
+  { name: 'orbit engine', load: () => import('./orbit.bench.ts') },
+  { name: 'server', load: () => import('./server.bench.ts') },
+];
 
 console.log(`Nadirline benchmarks, Node ${process.version}, ${new Date().toISOString()}`);
 let failed = 0;

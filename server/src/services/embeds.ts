@@ -11,7 +11,8 @@
  *   deleteEmbed(orgId, id) -> Promise<void>
  *   serializeEmbed(embed) -> { id, name, satelliteIds, options, apiKeyId, updatedAt }
  *   publicEmbed(embed) -> { id, name, satellites, options }      (the GET /v1/embeds/{id} answer)
- *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; 404 / key problems)
+ *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; invalid-key / key problems)
+ *   resolveForReadCached(id) -> the same or undefined, without waiting (request fast path)
  *   embedOptionsSchema, embedInputSchema (zod)
  */
 import { customAlphabet } from 'nanoid';
@@ -175,6 +176,16 @@ export class EmbedService {
     if (!key) throw new HttpError('invalid-key', `The key of embed ${id} no longer exists; choose another browser key in the console.`);
     assertKeyWorks(key, now);
     return { embed, key };
+  }
+
+  /** resolveForRead from the caches only: undefined when something must be loaded first. */
+  resolveForReadCached(id: string, now: Date = new Date()): { embed: EmbedRecord; key: KeyRecord } | undefined {
+    const hit = this.cache.get(id);
+    if (!hit?.record?.apiKeyId || Date.now() - hit.at >= EMBED_CACHE_TTL_MS) return undefined;
+    const key = this.keys.cachedById(hit.record.apiKeyId);
+    if (!key) return undefined;
+    assertKeyWorks(key, now);
+    return { embed: hit.record, key };
   }
 
   invalidate(id: string): void {

@@ -5,6 +5,7 @@
  * Exported API:
  *   class OrbitCache
  *     get(satelliteId) -> Promise<CachedSatellite | null>   (null: no such satellite)
+ *     peek(satelliteId) -> CachedSatellite | null | undefined (no wait; undefined: not cached)
  *     invalidate(satelliteId)                               (after an upload, edit or delete)
  *     clear()
  *   CachedSatellite = { satellite: SatelliteRecord, current: CurrentSet | null }
@@ -92,6 +93,13 @@ export function currentSetOf(r: ElementSetRecord): CurrentSet {
 export class OrbitCache {
   private readonly entries = new Map<string, { value: CachedSatellite | null; at: number }>();
   private readonly loading = new Map<string, Promise<CachedSatellite | null>>();
+
+  /** The cached entry without waiting: undefined when it must be loaded (call get). */
+  peek(satelliteId: string): CachedSatellite | null | undefined {
+    const hit = this.entries.get(satelliteId);
+    if (hit && Date.now() - hit.at < (hit.value ? ORBIT_CACHE_TTL_MS : 5_000)) return hit.value;
+    return undefined;
+  }
 
   async get(satelliteId: string): Promise<CachedSatellite | null> {
     const hit = this.entries.get(satelliteId);

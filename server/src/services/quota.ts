@@ -18,7 +18,7 @@ import { Op } from 'sequelize';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { Organization, UsageDaily, type Plan } from '../models/index.ts';
-import { getUsageRecorder, type UsageRecorder } from './usage.ts';
+import { getUsageRecorder, utcDay, type UsageRecorder } from './usage.ts';
 
 export interface PlanInfo {
   id: Plan;
@@ -52,7 +52,7 @@ export function nextMonthStart(now: Date): Date {
 }
 /** YYYY-MM of a date, UTC. */
 export function monthKey(now: Date): string {
-  return now.toISOString().slice(0, 7);
+  return utcDay(now).slice(0, 7);
 }
 
 export interface QuotaStatus {
@@ -111,6 +111,20 @@ export class QuotaService {
       usedThisMonth: await this.usedThisMonth(orgId, now),
       resetsAt: nextMonthStart(now).toISOString(),
     };
+  }
+
+  /**
+   * Fast path for the request path: true when under quota, false when spent, null when the plan
+   * or the month total is not cached (then call check()). No promise, no allocation.
+   */
+  underQuota(orgId: string, nowMs: number): boolean | null {
+    const plan = this.plans.get(orgId);
+    const c = this.months.get(orgId);
+    const t = Date.now();
+    if (!plan || t - plan.at >= QUOTA_CACHE_TTL_MS || !c || t - c.at >= QUOTA_CACHE_TTL_MS) return null;
+    const month = monthKey(new Date(nowMs));
+    if (c.month !== month) return null;
+    return c.dbTotal + this.usage.processCount(orgId, month) - c.flushedAtRead < planOf(plan.plan).monthlyRequests;
   }
 
   /** Throws quota-exceeded when the organization has used its month; returns the status otherwise. */

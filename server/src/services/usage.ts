@@ -33,8 +33,13 @@ export interface UsageReport {
   rows: UsageRow[];
 }
 
+let dayCache = { index: Number.NaN, text: '' };
+/** UTC day YYYY-MM-DD of a time (the last answer is kept: the request path asks many times a day). */
 export function utcDay(at: Date | number): string {
-  return new Date(at).toISOString().slice(0, 10);
+  const ms = typeof at === 'number' ? at : at.getTime();
+  const index = Math.floor(ms / 86_400_000);
+  if (index !== dayCache.index) dayCache = { index, text: new Date(index * 86_400_000).toISOString().slice(0, 10) };
+  return dayCache.text;
 }
 
 /** Every UTC day from `from` to `to` inclusive (YYYY-MM-DD). */

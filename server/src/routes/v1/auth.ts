@@ -76,18 +76,18 @@ function refererOrigin(req: Request): string | null {
 
 /** Reflect the Origin on every /v1 answer (the credential check decides what is served). */
 export const corsHeaders: RequestHandler = (req, res, next) => {
-  const origin = req.get('origin');
+  const origin = req.headers.origin;
   if (origin) {
     res.setHeader('Access-Control-Allow-Origin', origin);
     res.setHeader('Access-Control-Expose-Headers', EXPOSED_HEADERS);
   }
-  res.vary('Origin');
+  // Set directly: express's res.vary() parses and merges on every call (routes add to it).
+  res.setHeader('Vary', 'Origin');
   next();
 };
 
 function checkOrigin(ctx: AppContext, req: Request, key: KeyRecord, embed: EmbedRecord | null): string | null {
-  const header = req.get('origin');
-  const self = selfOrigins(ctx, req);
+  const header = req.headers.origin;
   if (key.kind === 'server') {
     if (!header) return null;
     if (originAllowed(key.origins, header)) return header;
@@ -96,6 +96,7 @@ function checkOrigin(ctx: AppContext, req: Request, key: KeyRecord, embed: Embed
       `This is a server key, which is secret and belongs on a backend; this request came from a web page (${header}). Use a browser key in pages, and rotate this key if it was published.`,
     );
   }
+  const self = selfOrigins(ctx, req);
   let origin = header ?? refererOrigin(req);
   if (!origin && req.get('sec-fetch-site') === 'same-origin') origin = self[self.length - 1] ?? null;
   if (!origin) {
@@ -113,30 +114,42 @@ function checkOrigin(ctx: AppContext, req: Request, key: KeyRecord, embed: Embed
   );
 }
 
-/** Resolve the credential of a request: throws unauthenticated / invalid-key / key-* problems. */
-export async function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath?: string): Promise<Omit<V1Auth, 'origin'>> {
+type Credential = Omit<V1Auth, 'origin'>;
+
+/**
+ * Resolve the credential of a request: throws unauthenticated / invalid-key / key-* problems.
+ * Answers synchronously when the key (or embed) is cached, so the hot path awaits nothing.
+ */
+export function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath?: string): Credential | Promise<Credential> {
   const keys = getKeyService(ctx);
   const read = req.method === 'GET' || req.method === 'HEAD' || req.method === 'OPTIONS';
-  const header = req.get('authorization');
-  const q = req.query as Record<string, unknown>;
+  const header = req.headers.authorization;
+  const byKey = (text: string, via: 'bearer' | 'query-key'): Credential | Promise<Credential> => {
+    const hit = keys.authenticateCached(text);
+    if (hit) return { key: hit, embed: null, via };
+    return keys.authenticate(text).then((key) => ({ key, embed: null, via }));
+  };
   if (header) {
     const m = /^Bearer\s+(\S+)\s*$/i.exec(header);
     if (!m?.[1]) throw new HttpError('unauthenticated', 'Send the key as "Authorization: Bearer <key>".', {}, { 'WWW-Authenticate': 'Bearer' });
-    return { key: await keys.authenticate(m[1]), embed: null, via: 'bearer' };
+    return byKey(m[1], 'bearer');
   }
+  const q = req.query as Record<string, unknown>;
   const keyParam = typeof q.key === 'string' ? q.key : undefined;
   if (keyParam !== undefined) {
     if (kindOfKeyText(keyParam) === 'server') {
       throw new HttpError('invalid-key', 'Server keys are secret and never go in a URL; send them as "Authorization: Bearer <key>". Rotate this key if the URL was shared or logged.');
     }
     if (!read) throw new HttpError('unauthenticated', 'Keys in the query string work only for GET requests; send "Authorization: Bearer <key>".', {}, { 'WWW-Authenticate': 'Bearer' });
-    return { key: await keys.authenticate(keyParam), embed: null, via: 'query-key' };
+    return byKey(keyParam, 'query-key');
   }
   const embedId = embedIdFromPath ?? (typeof q.embed === 'string' ? q.embed : undefined);
   if (embedId !== undefined) {
     if (!read) throw new HttpError('browser-key-read-only', 'An embed reads only; writes need a server key with the element-sets:write scope.');
-    const { embed, key } = await getEmbedService(ctx).resolveForRead(embedId);
-    return { key, embed, via: 'embed' };
+    const embeds = getEmbedService(ctx);
+    const hit = embeds.resolveForReadCached(embedId);
+    if (hit) return { key: hit.key, embed: hit.embed, via: 'embed' };
+    return embeds.resolveForRead(embedId).then(({ embed, key }) => ({ key, embed, via: 'embed' as const }));
   }
   throw new HttpError(
     'unauthenticated',
@@ -148,9 +161,7 @@ export async function resolveCredential(ctx: AppContext, req: Request, embedIdFr
 
 /** Credential + origin + scope for one route. */
 export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>, opts: { embedFromPath?: string } = {}): RequestHandler {
-  return async (req: Request, res: Response, next: NextFunction) => {
-    const embedId = opts.embedFromPath ? String(req.params[opts.embedFromPath] ?? '') : undefined;
-    const cred = await resolveCredential(ctx, req, embedId);
+  const finish = (req: Request, res: Response, next: NextFunction, cred: Credential) => {
     const origin = checkOrigin(ctx, req, cred.key, cred.embed);
     if (access === 'write') {
       if (cred.key.kind === 'browser' || cred.via === 'embed') {
@@ -160,8 +171,15 @@ export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>,
         throw new HttpError('scope-missing', `This server key (…${cred.key.lastFour}) lacks the element-sets:write scope. An admin can add it in the console.`, { scope: 'element-sets:write' });
       }
     }
-    res.locals.v1auth = { ...cred, origin } satisfies V1Auth;
+    res.locals.v1auth = { key: cred.key, embed: cred.embed, via: cred.via, origin } satisfies V1Auth;
     next();
+  };
+  return (req: Request, res: Response, next: NextFunction) => {
+    const embedId = opts.embedFromPath ? String(req.params[opts.embedFromPath] ?? '') : undefined;
+    const cred = resolveCredential(ctx, req, embedId);
+    if (cred instanceof Promise) return cred.then((c) => finish(req, res, next, c));
+    finish(req, res, next, cred);
+    return undefined;
   };
 }
 
@@ -194,13 +212,24 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
   const quota = getQuotaService(ctx);
   const usage = getUsageRecorder(ctx);
   const keys = getKeyService(ctx);
-  return async (_req, res, next) => {
-    const { key } = authOf(res);
-    const now = new Date();
-    await quota.check(key.organizationId, now);
+  const count = (key: KeyRecord, now: number) => {
     usage.record(key.organizationId, key.id, template, now);
     keys.touch(key.id, now);
-    next();
+  };
+  return (_req, res, next) => {
+    const { key } = authOf(res);
+    const now = Date.now();
+    const under = quota.underQuota(key.organizationId, now);
+    if (under === true) {
+      count(key, now);
+      next();
+      return;
+    }
+    // Not cached yet, or spent: the full check reads what it needs and throws quota-exceeded.
+    return quota.check(key.organizationId, new Date(now)).then(() => {
+      count(key, now);
+      next();
+    });
   };
 }
 

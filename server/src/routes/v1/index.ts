@@ -79,9 +79,50 @@ function engineProblem(code: string, message: string, satName: string): HttpErro
 
 async function visibleSatellite(sats: SatelliteService, auth: V1Auth, rawId: unknown): Promise<CachedSatellite> {
   const id = checkId(rawId);
-  const cached = await sats.current(id);
+  return seen(auth, id, sats.cache.peek(id) ?? (await sats.current(id)));
+}
+
+/** visibleSatellite without waiting when the satellite is cached (the hot path). */
+function visibleSatelliteNow(sats: SatelliteService, auth: V1Auth, rawId: unknown): CachedSatellite | Promise<CachedSatellite> {
+  const id = checkId(rawId);
+  const hit = sats.cache.peek(id);
+  if (hit === undefined) return sats.current(id).then((c) => seen(auth, id, c));
+  return seen(auth, id, hit);
+}
+
+function seen(auth: V1Auth, id: string, cached: CachedSatellite | null): CachedSatellite {
   if (!cached || !canSee(auth, cached.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
   return cached;
+}
+
+/** JSON straight to the socket: the hot routes set their own caching headers, so express's ETag hashing is skipped. */
+function sendJson(res: Response, body: unknown, type = 'application/json; charset=utf-8'): void {
+  const text = typeof body === 'string' ? body : JSON.stringify(body);
+  res.setHeader('Content-Type', type);
+  res.setHeader('Content-Length', Buffer.byteLength(text));
+  res.end(text);
+}
+
+/** Finished track answers by ETag (bounded): the same window asked again costs no propagation. */
+class TrackAnswerCache {
+  private readonly entries = new Map<string, { body: string; type: string }>();
+  constructor(private readonly maxEntries = 512, private readonly maxBodyChars = 1_000_000) {}
+  get(etag: string) {
+    const hit = this.entries.get(etag);
+    if (hit) {
+      this.entries.delete(etag);
+      this.entries.set(etag, hit);
+    }
+    return hit;
+  }
+  set(etag: string, body: string, type: string): void {
+    if (body.length > this.maxBodyChars) return;
+    this.entries.set(etag, { body, type });
+    if (this.entries.size > this.maxEntries) {
+      const oldest = this.entries.keys().next().value;
+      if (oldest !== undefined) this.entries.delete(oldest);
+    }
+  }
 }
 
 function requireSet(c: CachedSatellite): CurrentSet {
@@ -117,6 +158,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   const sats = getSatelliteService(ctx);
   const embeds = getEmbedService(ctx);
   const limiter = keyRateLimit();
+  const trackAnswers = new TrackAnswerCache();
   const openapi = buildOpenApi(ctx.config.publicUrl);
   const openapiText = JSON.stringify(openapi, null, 2);
   const openapiEtag = `"${crypto.createHash('sha1').update(openapiText).digest('base64url').slice(0, 20)}"`;
@@ -160,15 +202,20 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     res.json(sats.derived(cur.elementSet));
   });
 
-  keyed('get', '/satellites/:id/position', async (req, res) => {
+  keyed('get', '/satellites/:id/position', (req, res) => {
     const q = parseQuery(positionQuery, req);
-    const c = await visibleSatellite(sats, authOf(res), req.params.id);
-    const cur = requireSet(c);
-    const at = q.at ?? Date.now();
-    const p = positionOf(cur, at, c.satellite.name);
-    if (!p.ok) throw p.error;
-    res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
-    res.json({ satelliteId: c.satellite.id, ...p.value });
+    const answer = (c: CachedSatellite) => {
+      const cur = requireSet(c);
+      const at = q.at ?? Date.now();
+      const p = positionOf(cur, at, c.satellite.name);
+      if (!p.ok) throw p.error;
+      res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
+      sendJson(res, { satelliteId: c.satellite.id, ...p.value });
+    };
+    const c = visibleSatelliteNow(sats, authOf(res), req.params.id);
+    if (c instanceof Promise) return c.then(answer);
+    answer(c);
+    return undefined;
   });
 
   keyed('get', '/positions', async (req, res) => {
@@ -217,13 +264,18 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     const quantum = CAPS.trackCacheQuantumS * 1000;
     const explicit = q.start !== undefined && q.end !== undefined;
     res.setHeader('ETag', etag);
-    res.vary('Authorization');
+    res.setHeader('Vary', 'Origin, Authorization');
     res.setHeader(
       'Cache-Control',
       explicit && start % quantum === 0 && end % quantum === 0 ? 'public, max-age=600, stale-while-revalidate=60' : explicit ? 'private, max-age=60' : 'private, max-age=30',
     );
     if (req.fresh) {
       res.status(304).end();
+      return;
+    }
+    const cachedAnswer = trackAnswers.get(etag);
+    if (cachedAnswer) {
+      sendJson(res, cachedAnswer.body, cachedAnswer.type);
       return;
     }
     const r = sampleTrack(cur.satrec, { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
@@ -237,10 +289,12 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
         end: iso(end),
         stepS,
       });
-      res.type('application/geo+json').send(JSON.stringify(fc));
+      const body = JSON.stringify(fc);
+      trackAnswers.set(etag, body, 'application/geo+json; charset=utf-8');
+      sendJson(res, body, 'application/geo+json; charset=utf-8');
       return;
     }
-    res.json({
+    const body = JSON.stringify({
       satelliteId: c.satellite.id,
       elementSetId: cur.record.id,
       start: iso(start),
@@ -249,6 +303,8 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       count: r.samples.length,
       points: r.samples.map(pointJson),
     });
+    trackAnswers.set(etag, body, 'application/json; charset=utf-8');
+    sendJson(res, body);
   });
 
   keyed('get', '/satellites/:id/passes', async (req, res) => {
