@@ -292,7 +292,11 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
     }
     return demoCreds.value;
   };
-  router.get('/examples', (_req, res) => res.redirect(301, '/examples/'));
+  router.get('/examples', (req, res, next) => {
+    // Non-strict routing also matches "/examples/" here: redirect only the bare path.
+    if (req.path.endsWith('/')) return next();
+    res.redirect(301, '/examples/');
+  });
   router.use('/examples', async (req, res, next) => {
     if (req.method !== 'GET' && req.method !== 'HEAD') return next();
     let rel = decodeURIComponent(req.path);
