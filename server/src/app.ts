@@ -18,6 +18,13 @@ import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
 
+/** Keys and one-time tokens never reach the logs. */
+function redactUrl(url: string): string {
+  return url
+    .replace(/([?&](?:key|token)=)[^&]+/g, '$1[hidden]')
+    .replace(/(\/api\/invitations\/)[^/?]+/, '$1[hidden]');
+}
+
 export interface NadirlineApp {
   app: express.Express;
   context: AppContext;
@@ -52,7 +59,7 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
       logger,
       // Keep logs to the request line and outcome; never log keys or cookies.
       serializers: {
-        req: (req: { method: string; url: string }) => ({ method: req.method, url: req.url.replace(/([?&]key=)[^&]+/, '$1[hidden]') }),
+        req: (req: { method: string; url: string }) => ({ method: req.method, url: redactUrl(req.url) }),
         res: (res: { statusCode: number }) => ({ statusCode: res.statusCode }),
       },
     }),
