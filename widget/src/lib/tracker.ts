@@ -93,6 +93,7 @@ export class Tracker {
   private running = false;
   private generation = 0;
   private attempt = 0;
+  private bumped = false;
   private loadedOnce = false;
   private embed: EmbedConfig | null = null;
   private lastErrorKey = '';
@@ -203,87 +204,16 @@ export class Tracker {
     }
     this.state.fatal = null;
 
-    // metadata of satellites not yet known: /v1/satellites/{id} carries the derived elements;
-    // /elements is asked only when the answer has none of its own
-    for (const sat of this.state.sats) {
-      if (sat.dead || sat.elements) continue;
-      const meta = await this.api.satellite(sat.id, signal);
-      if (signal.aborted) return undefined;
-      if (!meta.ok) {
-        const stop = this.problem(meta, sat);
-        if (stop !== null) return stop;
-        continue;
-      }
-      if (typeof meta.value.name === 'string' && meta.value.name) sat.name = meta.value.name;
-      let el: ElementsInfo | null | undefined = meta.value.derived;
-      if (el === undefined) {
-        const r = await this.api.elements(sat.id, signal);
-        if (signal.aborted) return undefined;
-        if (!r.ok) {
-          const stop = this.problem(r, sat);
-          if (stop !== null) return stop;
-          continue;
-        }
-        el = r.value;
-      }
-      if (!el || !Number.isFinite(el.periodMin)) {
-        sat.dead = true;
-        sat.notice = noticeFor({ code: 'no-elements', status: 200 }, { satellite: sat.name });
-        this.report(sat.notice, { code: 'no-elements', status: 200 }, sat.id);
-        continue;
-      }
-      sat.elements = markRaw(el);
-      sat.notice = el.stale
-        ? noticeFor({ code: 'stale-element-set', status: 200 }, { satellite: sat.name, ageDays: el.ageDays })
-        : null;
-    }
-
-    // track windows
+    // every satellite on its own: metadata, then its track windows, then its passes, all
+    // satellites at once so the first track is drawn after as few round trips as possible
     const now = this.now();
-    for (const sat of this.state.sats) {
-      if (sat.dead || !sat.elements) continue;
-      const s = this.state.settings;
-      const plan = planWindows(now, sat.elements.periodMin || FALLBACK_PERIOD_MIN, s.orbitsBehind, s.orbitsAhead);
-      let held = this.windows.get(sat.id);
-      if (!held || (sat.plan && sat.plan.spanMs !== plan.spanMs)) {
-        held = new Map();
-        this.windows.set(sat.id, held);
-      }
-      for (const start of plan.starts) {
-        if (held.has(start)) continue;
-        const r = await this.api.track(sat.id, start, start + plan.spanMs, plan.stepS, signal);
-        if (signal.aborted) return undefined;
-        if (!r.ok) {
-          const stop = this.problem(r, sat);
-          if (stop !== null) return stop;
-          break;
-        }
-        held.set(start, r.value);
-      }
-      for (const start of [...held.keys()]) if (!plan.starts.includes(start)) held.delete(start);
-      sat.plan = plan;
-      sat.samples = markRaw(mergeSamples([...held.values()]));
-    }
-
-    // passes over the observer
-    const obs = this.state.observer;
-    if (obs && this.state.settings.layers.has('passes')) {
-      const start = Math.floor(now / PASS_ALIGN_MS) * PASS_ALIGN_MS;
-      const key = `${obs.lat},${obs.lon},${obs.altM},${start}`;
-      for (const sat of this.state.sats) {
-        if (sat.dead || !sat.elements || this.passKey.get(sat.id) === key) continue;
-        const r = await this.api.passes(sat.id, obs, start, PASS_DAYS, signal);
-        if (signal.aborted) return undefined;
-        if (!r.ok) {
-          const stop = this.problem(r, sat);
-          if (stop !== null) return stop;
-          continue;
-        }
-        sat.passes = markRaw(Array.isArray(r.value.passes) ? r.value.passes : []);
-        sat.alwaysUp = r.value.alwaysUp === true;
-        this.passKey.set(sat.id, key);
-      }
-    }
+    this.bumped = false;
+    const results = await Promise.all(this.state.sats.map((sat) => this.satRound(sat, now, signal)));
+    if (signal.aborted) return undefined;
+    const fatal = this.state.fatal as Notice | null; // set again by satRound when the key is refused
+    if (fatal) return fatal.retryMs;
+    const stops = results.filter((r) => r !== null);
+    if (stops.length > 0) return stops.includes(undefined) ? undefined : Math.min(...(stops as number[]));
 
     this.attempt = 0;
     this.state.transient = null;
@@ -309,6 +239,70 @@ export class Tracker {
     const liveSats = this.state.sats.filter((s) => !s.dead);
     if (this.state.sats.length > 0 && liveSats.length === 0) return undefined;
     return REFRESH_MS;
+  }
+
+  /** One satellite's share of a round. Returns null when all went well, else what problem() said. */
+  private async satRound(sat: SatState, now: number, signal: AbortSignal): Promise<number | undefined | null> {
+    if (sat.dead) return null;
+    // metadata: /v1/satellites/{id} carries the derived elements; /elements only when it has none
+    if (!sat.elements) {
+      const meta = await this.api.satellite(sat.id, signal);
+      if (signal.aborted) return undefined;
+      if (!meta.ok) return this.problem(meta, sat);
+      if (typeof meta.value.name === 'string' && meta.value.name) sat.name = meta.value.name;
+      let el: ElementsInfo | null | undefined = meta.value.derived;
+      if (el === undefined) {
+        const r = await this.api.elements(sat.id, signal);
+        if (signal.aborted) return undefined;
+        if (!r.ok) return this.problem(r, sat);
+        el = r.value;
+      }
+      if (!el || !Number.isFinite(el.periodMin)) {
+        sat.dead = true;
+        sat.notice = noticeFor({ code: 'no-elements', status: 200 }, { satellite: sat.name });
+        this.report(sat.notice, { code: 'no-elements', status: 200 }, sat.id);
+        return null;
+      }
+      sat.elements = markRaw(el);
+      sat.notice = el.stale ? noticeFor({ code: 'stale-element-set', status: 200 }, { satellite: sat.name, ageDays: el.ageDays }) : null;
+    }
+
+    // track windows not yet held, all at once
+    const s = this.state.settings;
+    const plan = planWindows(now, sat.elements.periodMin || FALLBACK_PERIOD_MIN, s.orbitsBehind, s.orbitsAhead);
+    let held = this.windows.get(sat.id);
+    if (!held || (sat.plan && sat.plan.spanMs !== plan.spanMs)) {
+      held = new Map();
+      this.windows.set(sat.id, held);
+    }
+    const missing = plan.starts.filter((start) => !held.has(start));
+    const answers = await Promise.all(missing.map((start) => this.api.track(sat.id, start, start + plan.spanMs, plan.stepS, signal)));
+    if (signal.aborted) return undefined;
+    let stop: number | undefined | null = null;
+    answers.forEach((r, i) => {
+      if (r.ok) held.set(missing[i]!, r.value);
+      else if (stop === null) stop = this.problem(r, sat);
+    });
+    for (const start of [...held.keys()]) if (!plan.starts.includes(start)) held.delete(start);
+    sat.plan = plan;
+    if (missing.length > 0) sat.samples = markRaw(mergeSamples([...held.values()]));
+    if (stop !== null || sat.dead) return stop;
+
+    // passes over the observer
+    const obs = this.state.observer;
+    if (obs && s.layers.has('passes')) {
+      const start = Math.floor(now / PASS_ALIGN_MS) * PASS_ALIGN_MS;
+      const key = `${obs.lat},${obs.lon},${obs.altM},${start}`;
+      if (this.passKey.get(sat.id) !== key) {
+        const r = await this.api.passes(sat.id, obs, start, PASS_DAYS, signal);
+        if (signal.aborted) return undefined;
+        if (!r.ok) return this.problem(r, sat);
+        sat.passes = markRaw(Array.isArray(r.value.passes) ? r.value.passes : []);
+        sat.alwaysUp = r.value.alwaysUp === true;
+        this.passKey.set(sat.id, key);
+      }
+    }
+    return null;
   }
 
   /**
@@ -342,7 +336,9 @@ export class Tracker {
   }
 
   private transientProblem(p: ApiProblem, satId: string | null = null): number {
-    this.attempt++;
+    // one step of backoff per round, however many requests of the round failed
+    if (!this.bumped) this.attempt++;
+    this.bumped = true;
     const fmt = this.opts.formatTime;
     const n = noticeFor(p, {
       attempt: this.attempt,

@@ -1,0 +1,212 @@
+/**
+ * <nadir-track> in Debian's Chromium against the real Nadirline server (demo data).
+ * Screenshots land in tests/artifacts/widget/ (kept by CI as artifacts, ignored by git).
+ */
+import { execFileSync } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { launchChromium } from '../support/chromium.ts';
+import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
+
+const ARTIFACTS = path.join(repoRoot, 'tests', 'artifacts', 'widget');
+const ZONE = 'Europe/London';
+
+let server: StartedServer;
+let browser: Browser;
+
+function ensureWidgetBuilt() {
+  if (fs.existsSync(path.join(repoRoot, 'widget', 'dist', 'nadir-track.js'))) return;
+  execFileSync(process.execPath, [path.join(repoRoot, 'node_modules', 'vite', 'bin', 'vite.js'), 'build'], { cwd: path.join(repoRoot, 'widget'), stdio: 'ignore' });
+}
+
+beforeAll(async () => {
+  ensureWidgetBuilt();
+  fs.mkdirSync(ARTIFACTS, { recursive: true });
+  server = await startServer();
+  // Pages of one loopback origin load the widget from another in the wrong-origin test; Chromium's
+  // local-network-access checks would block that before the server could answer.
+  browser = await launchChromium({ args: ['--disable-features=LocalNetworkAccessChecks'] });
+});
+afterAll(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+interface Watched {
+  ctx: BrowserContext;
+  page: Page;
+  pageErrors: string[];
+  consoleErrors: string[];
+  v1: string[];
+}
+
+async function open(url: string, opts: { width?: number; scheme?: 'light' | 'dark'; before?: (p: Page) => Promise<unknown> } = {}): Promise<Watched> {
+  const ctx = await browser.newContext({ viewport: { width: opts.width ?? 1280, height: 900 }, colorScheme: opts.scheme ?? 'light', timezoneId: ZONE, locale: 'en-GB' });
+  const page = await ctx.newPage();
+  const w: Watched = { ctx, page, pageErrors: [], consoleErrors: [], v1: [] };
+  page.on('pageerror', (e) => w.pageErrors.push(e.message));
+  page.on('console', (m) => {
+    if (m.type() === 'error' && !m.text().startsWith('Failed to load resource')) w.consoleErrors.push(m.text());
+  });
+  // failed loads are listed by URL (the browser's own console line does not say which); no favicon here
+  page.on('response', (r) => {
+    if (r.status() >= 400 && !r.url().endsWith('/favicon.ico')) w.consoleErrors.push(`${r.status()} ${r.url()}`);
+  });
+  page.on('request', (r) => {
+    if (new URL(r.url()).pathname.startsWith('/v1/')) w.v1.push(r.url());
+  });
+  await opts.before?.(page);
+  await page.goto(url);
+  return w;
+}
+
+/** The text of the message card inside the first widget, once there is one. */
+async function cardText(page: Page): Promise<string> {
+  const h = await page.waitForFunction(() => document.querySelector('nadir-track')?.shadowRoot?.querySelector('.card')?.textContent ?? null, undefined, { timeout: 15_000 });
+  return String(await h.jsonValue());
+}
+/** Whether the first widget has drawn a marker (read from Node, so it works under a fake page clock). */
+const hasMarker = (page: Page) => page.evaluate(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.mark'));
+const markerAt = (page: Page) => page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.mark')?.getAttribute('transform') ?? null);
+
+describe('<nadir-track> on the science centre example', () => {
+  it('draws a track in its shadow root within seconds, with no page errors', async () => {
+    const started = Date.now();
+    const w = await open(`${server.url}/examples/science-centre.html`);
+    const d = await w.page.waitForFunction(() => {
+      const p = document.querySelector('nadir-track')?.shadowRoot?.querySelector('path.past')?.getAttribute('d') ?? '';
+      return p.length > 20 ? p : null;
+    });
+    expect(String(await d.jsonValue())).toMatch(/^M[\d.-]+,[\d.-]+L/);
+    expect(Date.now() - started).toBeLessThan(10_000);
+    expect(await w.page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll('.chip').length)).toBe(server.credentials.satellites.length);
+    await w.page.waitForTimeout(500);
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'science-centre-1280-light.png'), fullPage: true });
+    expect(w.pageErrors).toEqual([]);
+    expect(w.consoleErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
+  it('moves the marker as time passes, without a request per frame', async () => {
+    const w = await open(`${server.url}/examples/science-centre.html`);
+    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.mark'));
+    await w.page.waitForTimeout(1500);
+    const first = await markerAt(w.page);
+    const requests = w.v1.length;
+    await w.page.waitForTimeout(3500);
+    const later = await markerAt(w.page);
+    expect(later).not.toBe(first);
+    expect(w.v1.length).toBe(requests);
+    await w.ctx.close();
+  });
+
+  it('lists the same passes as /v1/passes, in the reader’s time zone', async () => {
+    const w = await open(`${server.url}/examples/science-centre.html`);
+    await expect.poll(() => w.v1.some((u) => u.includes('/passes?')), { timeout: 15_000 }).toBe(true);
+    const passUrl = new URL(w.v1.find((u) => u.includes('/passes?'))!);
+    await w.page.waitForFunction(() => (document.querySelector('nadir-track')?.shadowRoot?.querySelectorAll('[part="passes"] .row').length ?? 0) > 0);
+    const shown = await w.page.evaluate(() =>
+      Array.from(document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll('[part="passes"] .row .when strong')).map((e) => e.textContent!.trim()),
+    );
+    // ask the API ourselves, with the server key, for the same satellite, place and start
+    const q = new URLSearchParams(passUrl.search);
+    q.delete('key');
+    const res = await fetch(`${server.url}${passUrl.pathname}?${q}`, { headers: { authorization: `Bearer ${server.credentials.serverKey}` } });
+    expect(res.status).toBe(200);
+    const body = (await res.json()) as { passes: { rise: { t: string }; set: { t: string } }[] };
+    const fmt = new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit', timeZone: ZONE });
+    const now = Date.now();
+    const expected = body.passes.filter((p) => Date.parse(p.set.t) > now).slice(0, 4).map((p) => fmt.format(Date.parse(p.rise.t)));
+    expect(shown.length).toBeGreaterThan(0);
+    expect(shown).toEqual(expected.slice(0, shown.length));
+    await w.ctx.close();
+  });
+
+  it('shows a wrong key in words inside the element', async () => {
+    const pageUrl = `${server.url}/e2e-wrong-key.html`;
+    const w = await open(pageUrl, {
+      before: (p) =>
+        p.route(pageUrl, (r) =>
+          r.fulfill({
+            contentType: 'text/html',
+            body: `<!doctype html><script type="module" src="/widget/nadir-track.js"></script><nadir-track satellites="${server.credentials.satellites[0]!.id}" api-key="nlb_not-a-real-key-at-all"></nadir-track>`,
+          }),
+        ),
+    });
+    expect(await cardText(w.page)).toContain('Map key not accepted');
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'wrong-key-1280.png') });
+    expect(w.pageErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
+  it('shows a wrong origin in words inside the element', async () => {
+    // another loopback origin that the demo browser key does not list
+    const other = `http://localhost:${server.port === 5999 ? 5998 : 5999}`;
+    const pageUrl = `${other}/museum.html`;
+    const w = await open(pageUrl, {
+      width: 320,
+      before: (p) =>
+        p.route(pageUrl, (r) =>
+          r.fulfill({
+            contentType: 'text/html',
+            body: `<!doctype html><meta name="viewport" content="width=device-width"><script type="module" src="${server.url}/widget/nadir-track.js"></script><nadir-track satellites="${server.credentials.satellites[0]!.id}" api-key="${server.credentials.browserKey}"></nadir-track>`,
+          }),
+        ),
+    });
+    const text = await cardText(w.page);
+    expect(text).toContain('Not allowed on this site');
+    expect(text).toContain(other);
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'wrong-origin-320.png'), fullPage: true });
+    expect(w.pageErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
+  it('makes no request while hidden or off-screen and catches up when seen again', async () => {
+    const w = await open(`${server.url}/examples/science-centre.html`, { before: (p) => p.clock.install() });
+    await expect.poll(() => hasMarker(w.page), { timeout: 15_000 }).toBe(true);
+    await w.page.clock.runFor(2000);
+    // hidden tab
+    await w.page.evaluate(() => {
+      Object.defineProperty(document, 'visibilityState', { configurable: true, get: () => 'hidden' });
+      document.dispatchEvent(new Event('visibilitychange'));
+    });
+    const before = w.v1.length;
+    await w.page.clock.runFor(3 * 3600_000); // three hours: every track window would need refreshing
+    expect(w.v1.length).toBe(before);
+    // off-screen in a visible tab
+    await w.page.evaluate(() => {
+      Object.defineProperty(document, 'visibilityState', { configurable: true, get: () => 'visible' });
+      document.body.style.paddingBottom = '6000px';
+      window.scrollTo(0, 6000);
+    });
+    await w.page.clock.runFor(100);
+    await w.page.evaluate(() => document.dispatchEvent(new Event('visibilitychange')));
+    await w.page.waitForTimeout(300);
+    const offscreen = w.v1.length;
+    await w.page.clock.runFor(3 * 3600_000);
+    expect(w.v1.length).toBe(offscreen);
+    // back in view: fresh windows are fetched
+    await w.page.evaluate(() => window.scrollTo(0, 0));
+    await w.page.waitForTimeout(300);
+    await w.page.clock.runFor(1000);
+    await expect.poll(() => w.v1.length, { timeout: 10_000 }).toBeGreaterThan(offscreen);
+    await w.ctx.close();
+  });
+
+  it('looks right in light and dark at 320 and 1280 px (screenshots kept)', async () => {
+    for (const width of [320, 1280]) {
+      for (const scheme of ['light', 'dark'] as const) {
+        const w = await open(`${server.url}/examples/side-by-side.html`, { width, scheme });
+        await w.page.waitForFunction(() => Array.from(document.querySelectorAll('nadir-track')).every((e) => !!e.shadowRoot?.querySelector('path.past')?.getAttribute('d')));
+        await w.page.waitForTimeout(700);
+        await w.page.screenshot({ path: path.join(ARTIFACTS, `side-by-side-${width}-${scheme}.png`), fullPage: true });
+        const overflow = await w.page.evaluate(() => document.documentElement.scrollWidth > window.innerWidth);
+        expect(overflow).toBe(false);
+        expect(w.pageErrors).toEqual([]);
+        await w.ctx.close();
+      }
+    }
+  });
+});
