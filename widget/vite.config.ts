@@ -52,7 +52,11 @@ export default defineConfig({
     copyPublicDir: false,
     reportCompressedSize: true,
     // the ES module is a finished script for pages, not a library to bundle again: minify it fully
-    rolldownOptions: { output: { minify: true, comments: { annotation: false, legal: false, jsdoc: false } } },
+    rolldownOptions: {
+      output: { minify: true, comments: { annotation: false, legal: false, jsdoc: false } },
+      // assets.ts reads import.meta.url only after document.currentScript, which the classic script has
+      checks: { emptyImportMeta: false },
+    },
     lib: {
       entry: 'src/auto.ts',
       name: 'NadirTrack',

@@ -195,6 +195,31 @@ describe('<nadir-track> on the science centre example', () => {
     await w.ctx.close();
   });
 
+  it('asks for the reader’s location only when the button is pressed, then lists passes over it', async () => {
+    const pageUrl = `${server.url}/e2e-auto-observer.html`;
+    const w = await open(pageUrl, {
+      width: 320,
+      before: async (p) => {
+        await p.context().grantPermissions(['geolocation']);
+        await p.context().setGeolocation({ latitude: 51.29, longitude: -2.43 });
+        await p.route(pageUrl, (r) =>
+          r.fulfill({
+            contentType: 'text/html',
+            body: `<!doctype html><meta name="viewport" content="width=device-width"><script type="module" src="/widget/nadir-track.js"></script><nadir-track satellites="${server.credentials.satellites[0]!.id}" api-key="${server.credentials.browserKey}" observer="auto"></nadir-track>`,
+          }),
+        );
+      },
+    });
+    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.ask button'));
+    expect(w.v1.some((u) => u.includes('/passes?'))).toBe(false);
+    await w.page.locator('nadir-track .ask button').click();
+    await expect.poll(() => w.v1.find((u) => u.includes('/passes?')) ?? null, { timeout: 15_000 }).toMatch(/lat=51\.29&lon=-2\.43/);
+    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('[part="passes"]'));
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'auto-observer-320.png'), fullPage: true });
+    expect(w.pageErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
   it('looks right in light and dark at 320 and 1280 px (screenshots kept)', async () => {
     for (const width of [320, 1280]) {
       for (const scheme of ['light', 'dark'] as const) {

@@ -94,6 +94,31 @@ describe('<nadir-track>', () => {
     expect(events.find((e) => e.type === 'nadir-error')?.detail).toMatchObject({ code: 'origin-not-allowed', fatal: true });
   });
 
+  it('says in words where the satellite is in a polite live region', async () => {
+    installFetch();
+    const { root } = mount({ satellites: 'a', 'api-base': 'https://api.test', 'api-key': 'k' });
+    await settle(200);
+    const live = root().querySelector('[aria-live="polite"]')!;
+    expect(live.textContent).toMatch(/^Sat a is over the (North|South) (Atlantic|Pacific)|^Sat a is over the (Indian|Arctic|Southern) Ocean|^Sat a is over the Mediterranean Sea/);
+    expect(live.textContent).toMatch(/\d+\.\d degrees (north|south|the equator)/);
+    expect(live.textContent).toContain('420 kilometres up');
+  });
+
+  it('turns the map with the arrow keys and resets it with Home', async () => {
+    installFetch();
+    const { root } = mount({ satellites: 'a', 'api-base': 'https://api.test', 'api-key': 'k' });
+    await settle(200);
+    const map = root().querySelector('svg.map')!;
+    const grid = () => root().querySelector('path.graticule')!.getAttribute('d');
+    const before = grid();
+    map.dispatchEvent(new KeyboardEvent('keydown', { key: 'ArrowLeft', bubbles: true }));
+    await settle(20);
+    expect(grid()).not.toBe(before);
+    map.dispatchEvent(new KeyboardEvent('keydown', { key: 'Home', bubbles: true }));
+    await settle(20);
+    expect(grid()).toBe(before);
+  });
+
   it('keeps the about-these-positions caution in the element', () => {
     installFetch();
     const { root } = mount({ satellites: 'a', 'api-base': 'https://api.test' });
