@@ -33,6 +33,11 @@ export function esc(s: string): string {
   return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c);
 }
 
+/** Escaped text with `backticks` shown as code. */
+function prose(s: string): string {
+  return esc(s).replace(/`([^`]+)`/g, '<code>$1</code>');
+}
+
 function fontDir(): string | null {
   try {
     const require = createRequire(import.meta.url);
@@ -88,7 +93,8 @@ function schemaText(schema: Json | undefined): string {
   parts.push(String(type));
   if (Array.isArray(schema.enum)) parts.push(`(${schema.enum.map((v) => `<code>${esc(String(v))}</code>`).join(' | ')})`);
   if (schema.format) parts.push(`<span class="muted">${esc(String(schema.format))}</span>`);
-  if (schema.minimum !== undefined || schema.maximum !== undefined) parts.push(`<span class="muted">${schema.minimum ?? '…'} to ${schema.maximum ?? '…'}</span>`);
+  const bounded = (v: unknown) => v !== undefined && Math.abs(Number(v)) < Number.MAX_SAFE_INTEGER;
+  if (bounded(schema.minimum) || bounded(schema.maximum)) parts.push(`<span class="muted">${bounded(schema.minimum) ? schema.minimum : '…'} to ${bounded(schema.maximum) ? schema.maximum : '…'}</span>`);
   if (schema.default !== undefined) parts.push(`<span class="muted">default ${esc(JSON.stringify(schema.default))}</span>`);
   return parts.join(' ');
 }
@@ -106,7 +112,7 @@ function fieldsTable(schema: Json | undefined): string {
   return `<table><tr><th>field</th><th>type</th><th>meaning</th></tr>${rows}</table>`;
 }
 
-export function renderApiReference(doc: ReturnType<typeof buildOpenApi>): string {
+export function renderApiReference(doc: ReturnType<typeof buildOpenApi>, baseUrl: string): string {
   const info = doc.info as Json;
   const sections: string[] = [];
   const index: string[] = [];
@@ -117,13 +123,13 @@ export function renderApiReference(doc: ReturnType<typeof buildOpenApi>): string
       index.push(`<li><a href="#${esc(anchor)}"><span class="method">${method.toUpperCase()}</span> <code>${esc(p)}</code></a> <span class="muted">${esc(String(op.summary))}</span></li>`);
       const params = (op.parameters as Json[]).filter((x) => x.in !== 'query' || (x.name !== 'key' && x.name !== 'embed'));
       const paramRows = params
-        .map((x) => `<tr><td><code>${esc(String(x.name))}</code></td><td>${esc(String(x.in))}${x.required ? ', required' : ''}</td><td>${schemaText(x.schema as Json)}</td><td>${esc(String(x.description ?? ''))}</td></tr>`)
+        .map((x) => `<tr><td><code>${esc(String(x.name))}</code></td><td>${esc(String(x.in))}${x.required ? ', required' : ''}</td><td>${schemaText(x.schema as Json)}</td><td>${prose(String(x.description ?? ''))}</td></tr>`)
         .join('');
       const responses = Object.entries(op.responses as Record<string, Json>)
         .map(([status, r]) => {
           const content = r.content as Record<string, Json> | undefined;
           const json = content?.['application/json']?.schema as Json | undefined;
-          return `<h3>${esc(status)} <span class="muted">${esc(String(r.description ?? ''))}</span></h3>${status.startsWith('2') ? fieldsTable(json) : ''}`;
+          return `<h3>${esc(status)} <span class="muted">${prose(String(r.description ?? ''))}</span></h3>${status.startsWith('2') ? fieldsTable(json) : ''}`;
         })
         .join('');
       const body = op.requestBody as Json | undefined;
@@ -132,7 +138,7 @@ export function renderApiReference(doc: ReturnType<typeof buildOpenApi>): string
       sections.push(`<section id="${esc(anchor)}">
 <h2><span class="method">${method.toUpperCase()}</span> <code>${esc(p)}</code></h2>
 <p>${esc(String(op.summary))}</p>
-${op.description ? `<p class="muted">${esc(String(op.description))}</p>` : ''}
+${op.description ? `<p class="muted">${prose(String(op.description))}</p>` : ''}
 <p class="muted">Credential: ${(op.security as unknown[]).length === 0 ? 'none' : method === 'post' ? 'server key with <code>element-sets:write</code> (Authorization: Bearer)' : 'any key (Authorization: Bearer), or <code>?key=</code> with a browser key, or <code>?embed=</code>'}</p>
 ${paramRows ? `<table><tr><th>parameter</th><th>in</th><th>type</th><th>meaning</th></tr>${paramRows}</table>` : ''}
 ${bodyTypes.length ? `<h3>Body</h3><p>${bodyTypes.map((t) => `<code>${esc(t)}</code>`).join(', ')}</p>${fieldsTable(bodyJson)}` : ''}
@@ -145,8 +151,8 @@ ${responses}
     'API reference',
     `<nav class="top"><a href="/">Console</a><a href="/docs/problems">Problem codes</a><a href="/v1/openapi.json">openapi.json</a></nav>
 <h1>${esc(String(info.title))}</h1>
-<p class="muted">Version ${esc(String(info.version))} · base URL <code>${esc(String((doc.servers as Json[])[0]?.url ?? ''))}/v1</code></p>
-<p>${esc(String(info.description))}</p>
+<p class="muted">Version ${esc(String(info.version))} · base URL <code>${esc(baseUrl)}/v1</code></p>
+<p>${prose(String(info.description))}</p>
 <h2>Keys</h2>
 <p><strong>Browser keys</strong> (<code>nlb_…</code>) are read-only and work only from web pages of the origins they list (exact, like <code>https://www.example.org</code>, or a wildcard subdomain, like <code>https://*.example.org</code>); they may go in page source and in <code>?key=</code> on GET. A request with a browser key that names no origin (no Origin or Referer header, as from curl) is refused. <strong>Server keys</strong> (<code>nls_…</code>) are secret and belong on your backend, in the <code>Authorization: Bearer</code> header only; with the <code>element-sets:write</code> scope they may upload element sets. A rotated key keeps working until its grace period ends; a revoked key stops at once.</p>
 <h2>Limits</h2>
@@ -167,7 +173,7 @@ ${sections.join('\n')}`,
 
 export function renderProblems(): string {
   const rows = PROBLEM_DOCS.map(
-    (p) => `<tr id="${esc(p.code)}"><td><code>${esc(p.code)}</code></td><td>${p.status}</td><td>${esc(p.title)}</td><td>${esc(p.meaning)}</td></tr>`,
+    (p) => `<tr id="${esc(p.code)}"><td><code>${esc(p.code)}</code></td><td>${p.status}</td><td>${esc(p.title)}</td><td>${prose(p.meaning)}</td></tr>`,
   ).join('');
   return page(
     'Problem codes',
@@ -328,12 +334,21 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
   });
 
   // -- docs ------------------------------------------------------------------------------------
-  const reference = renderApiReference(buildOpenApi(config.publicUrl));
+  const doc = buildOpenApi(config.PUBLIC_URL ? config.publicUrl : '/');
+  const references = new Map<string, string>();
   const problems = renderProblems();
   router.get('/docs', (_req, res) => res.redirect(302, '/docs/api'));
-  router.get('/docs/api', consoleHeaders, (_req, res) => {
+  router.get('/docs/api', consoleHeaders, (req, res) => {
+    const host = req.get('host');
+    const base = config.PUBLIC_URL || !host ? config.publicUrl : `${req.protocol}://${host}`;
+    let html = references.get(base);
+    if (!html) {
+      html = renderApiReference(doc, base);
+      if (references.size > 20) references.clear();
+      references.set(base, html);
+    }
     res.setHeader('Cache-Control', 'public, max-age=300');
-    res.type('html').send(reference);
+    res.type('html').send(html);
   });
   router.get('/docs/problems', consoleHeaders, (_req, res) => {
     res.setHeader('Cache-Control', 'public, max-age=300');

@@ -119,8 +119,11 @@ export function synthesizeElementSet(sat: DemoSatellite, epochMs: number): Eleme
   return r.elementSet;
 }
 
-function localOrigins(port: number): string[] {
-  return [`http://localhost:${port}`, `http://127.0.0.1:${port}`].map((o) => normalizeOrigin(o) as string);
+/** Origins of the demo pages: this machine on this run's port, and PUBLIC_URL when set. */
+function demoOrigins(ctx: AppContext, port: number): string[] {
+  const list = [`http://localhost:${port}`, `http://127.0.0.1:${port}`];
+  if (ctx.config.PUBLIC_URL) list.push(new URL(ctx.config.publicUrl).origin);
+  return [...new Set(list.map((o) => normalizeOrigin(o)).filter((o): o is string => o !== null))];
 }
 
 export async function seedDemo(
@@ -185,7 +188,7 @@ export async function seedDemo(
   }
 
   // -- keys ------------------------------------------------------------------------------------
-  const origins = localOrigins(opts.port);
+  const origins = demoOrigins(ctx, opts.port);
   const findWorking = async (text: string | undefined, kind: 'browser' | 'server') => {
     if (!text) return null;
     try {

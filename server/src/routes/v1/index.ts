@@ -159,7 +159,8 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   const embeds = getEmbedService(ctx);
   const limiter = keyRateLimit();
   const trackAnswers = new TrackAnswerCache();
-  const openapi = buildOpenApi(ctx.config.publicUrl);
+  // Without PUBLIC_URL the server URL is relative: the document is right on any host and port.
+  const openapi = buildOpenApi(ctx.config.PUBLIC_URL ? ctx.config.publicUrl : '/');
   const openapiText = JSON.stringify(openapi, null, 2);
   const openapiEtag = `"${crypto.createHash('sha1').update(openapiText).digest('base64url').slice(0, 20)}"`;
 
