@@ -57,8 +57,8 @@ const bare = { public: true, guest: true, bare: true } as const;
 
 export const routes: RouteRecordRaw[] = [
   { path: '/', name: 'home', component: () => import('../pages/HomePage.vue'), meta: { title: 'Nadirline' } },
-  { path: '/sign-in', name: 'sign-in', component: () => import('../pages/SignInPage.vue'), meta: { ...bare, title: 'Sign in' } },
-  { path: '/sign-up', name: 'sign-up', component: () => import('../pages/SignUpPage.vue'), meta: { ...bare, title: 'Create an account' } },
+  { path: '/sign-in', alias: ['/signin', '/login'], name: 'sign-in', component: () => import('../pages/SignInPage.vue'), meta: { ...bare, title: 'Sign in' } },
+  { path: '/sign-up', alias: ['/signup'], name: 'sign-up', component: () => import('../pages/SignUpPage.vue'), meta: { ...bare, title: 'Create an account' } },
   { path: '/verify-email', name: 'verify-email', component: () => import('../pages/VerifyEmailPage.vue'), meta: { public: true, bare: true, title: 'Confirm your e-mail' } },
   { path: '/forgot-password', name: 'forgot-password', component: () => import('../pages/ForgotPasswordPage.vue'), meta: { ...bare, title: 'Forgotten password' } },
   { path: '/reset-password', name: 'reset-password', component: () => import('../pages/ResetPasswordPage.vue'), meta: { public: true, bare: true, title: 'Choose a new password' } },
