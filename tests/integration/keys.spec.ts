@@ -54,6 +54,11 @@ describe('browser keys and origins', () => {
     expect(bare.body.detail).toMatch(/server key/);
   });
 
+  it('serves a browser key on pages of this server itself (console preview, hosted embeds, examples)', async () => {
+    await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Origin', 'http://nadirline.test').expect(200);
+    await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Sec-Fetch-Site', 'same-origin').expect(200);
+  });
+
   it('refuses writes with a browser key', async () => {
     const res = await request(t.app)
       .post(`${sat()}/element-sets`)

@@ -13,7 +13,8 @@
  *     The origin is the Origin header, else the origin of the Referer header; a same-origin GET
  *     (Sec-Fetch-Site: same-origin) counts as this server's own origin. A request naming no
  *     origin at all (curl, a backend) is refused: browser keys are for pages, backends use server
- *     keys. An embed's reads are also allowed from this server's own origin (the hosted /embed/:id page).
+ *     keys. Reads from this server's own origin are also allowed (the hosted /embed/:id page, the
+ *     console's live preview, the examples): only pages Nadirline itself serves run there.
  *   - server key: meant for backends, which send no Origin. A request that carries an Origin
  *     header (a web page) is refused unless the key lists that origin.
  *   - Every /v1 answer to a request with an Origin header reflects that origin in
@@ -106,7 +107,7 @@ function checkOrigin(ctx: AppContext, req: Request, key: KeyRecord, embed: Embed
     );
   }
   const o = origin.toLowerCase();
-  if (o !== 'null' && (originAllowed(key.origins, o) || (embed && self.includes(o)))) return origin;
+  if (o !== 'null' && (originAllowed(key.origins, o) || self.includes(o))) return origin;
   throw new HttpError(
     'origin-not-allowed',
     `The origin ${origin} is not allowed for this ${embed ? `embed's key` : 'browser key'} (…${key.lastFour}). Allowed: ${key.origins.join(', ') || 'none'}. Add the origin to the key in the console.`,
