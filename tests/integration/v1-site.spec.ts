@@ -76,6 +76,8 @@ describe('widget files', () => {
     const asset = fs.readdirSync(path.join(repoRoot, 'widget', 'dist', 'assets'))[0] as string;
     const a = await request(t.app).get(`/widget/assets/${asset}`).expect(200);
     expect(a.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    const font = await request(t.app).get('/fonts/no-such-font.woff2');
+    expect(font.status).toBe(404);
     const missing = await request(t.app).get('/widget/nope.js');
     expect(missing.status).toBe(404);
     expect(missing.headers['content-type']).toMatch(/problem\+json/);

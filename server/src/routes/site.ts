@@ -222,7 +222,7 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
   // -- fonts for the server's own pages --------------------------------------------------------
   const fonts = fontDir();
   if (fonts) {
-    router.use('/fonts', express.static(fonts, { immutable: true, maxAge: YEAR_S * 1000, index: false, fallthrough: false }));
+    router.use('/fonts', express.static(fonts, { immutable: true, maxAge: YEAR_S * 1000, index: false }));
   }
 
   // -- widget ----------------------------------------------------------------------------------
