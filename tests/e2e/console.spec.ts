@@ -1,0 +1,261 @@
+/**
+ * The console in Debian's Chromium against the real Nadirline server (demo data): accounts,
+ * satellites, keys, embeds and the role matrix, each through the pages a person would use.
+ * Screenshots of failures land in tests/artifacts/console/.
+ */
+import { execFileSync } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { launchChromium } from '../support/chromium.ts';
+import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
+
+const ARTIFACTS = path.join(repoRoot, 'tests', 'artifacts', 'console');
+type Role = 'owner' | 'admin' | 'editor' | 'viewer';
+
+let server: StartedServer;
+let browser: Browser;
+const contexts: BrowserContext[] = [];
+
+function build(workspace: 'console' | 'widget', entry: string) {
+  if (fs.existsSync(path.join(repoRoot, workspace, 'dist', entry))) return;
+  execFileSync(process.execPath, [path.join(repoRoot, 'node_modules', 'vite', 'bin', 'vite.js'), 'build'], { cwd: path.join(repoRoot, workspace), stdio: 'ignore' });
+}
+
+beforeAll(async () => {
+  build('console', 'index.html');
+  build('widget', 'nadir-track.js');
+  fs.mkdirSync(ARTIFACTS, { recursive: true });
+  server = await startServer();
+  browser = await launchChromium();
+});
+afterAll(async () => {
+  for (const c of contexts) await c.close().catch(() => undefined);
+  await browser?.close();
+  await server?.stop();
+});
+
+async function newPage(): Promise<Page> {
+  const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 }, locale: 'en-GB', timezoneId: 'UTC' });
+  contexts.push(ctx);
+  const page = await ctx.newPage();
+  page.setDefaultTimeout(15_000);
+  return page;
+}
+
+async function signIn(page: Page, email: string, password: string) {
+  await page.goto(`${server.url}/sign-in`);
+  await page.getByLabel('E-mail').fill(email);
+  await page.getByLabel('Password').fill(password);
+  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+  await page.waitForURL(/\/o\/[^/]+\/satellites$/);
+}
+
+async function signInAs(role: Role): Promise<{ page: Page; org: string }> {
+  const page = await newPage();
+  const u = server.credentials.users.find((x) => x.role === role)!;
+  await signIn(page, u.email, u.password);
+  return { page, org: server.credentials.organizationId };
+}
+
+async function shot(page: Page, name: string) {
+  await page.screenshot({ path: path.join(ARTIFACTS, `${name}.png`), fullPage: true }).catch(() => undefined);
+}
+
+/** TLE line checksum: digits count their value, a minus sign counts 1, modulo 10 (common practice). */
+function withChecksum(line: string): string {
+  const body = line.slice(0, 68);
+  let sum = 0;
+  for (const ch of body) sum += ch === '-' ? 1 : /\d/.test(ch) ? Number(ch) : 0;
+  return body + String(sum % 10);
+}
+
+/** A same-origin GET from the page, as a web page would send it. */
+function pageGet(page: Page, url: string) {
+  return page.evaluate(async (u) => {
+    const r = await fetch(u);
+    let code = '';
+    try {
+      code = ((await r.json()) as { code?: string }).code ?? '';
+    } catch {
+      // not JSON
+    }
+    return { status: r.status, code };
+  }, url);
+}
+
+describe('the console against the real server', () => {
+  it('takes a new person from sign-up through the e-mailed link to a verified sign-in', async () => {
+    const page = await newPage();
+    const email = `e2e.${Date.now()}@ostwick.example.org`;
+    const password = 'lantern-orbit-4471';
+    await page.goto(`${server.url}/sign-up`);
+    await page.getByLabel('Your name').fill('Rosa Vennik');
+    await page.getByLabel('E-mail').fill(email);
+    await page.getByLabel('Password').fill(password);
+    await page.getByLabel('Organization').fill('Vennik Outreach Lab');
+    await page.getByRole('button', { name: 'Create account' }).click();
+    await page.getByRole('heading', { name: 'Check your inbox' }).waitFor();
+
+    // Signing in before the address is confirmed is refused, with a way to get a new link.
+    await page.getByRole('link', { name: 'Go to sign-in' }).click();
+    await page.getByLabel('Password').fill(password);
+    await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+    await page.getByText('Please confirm your e-mail address first.').waitFor();
+
+    const box = (await (await fetch(`${server.url}/dev/mailbox.json`)).json()) as { messages: { to: string | string[]; links: string[] }[] };
+    const mail = box.messages.filter((m) => String(m.to).includes(email)).at(-1);
+    const link = mail?.links.find((l) => l.includes('/verify-email?token='));
+    expect(link, 'the verification e-mail holds a link').toBeTruthy();
+    await page.goto(link!.replace(/^https?:\/\/[^/]+/, server.url));
+    await page.getByText(/is confirmed/).waitFor();
+    await page.getByRole('link', { name: 'Sign in' }).click();
+    await page.getByLabel('Password').fill(password);
+    await page.getByRole('button', { name: 'Sign in', exact: true }).click();
+    await page.waitForURL(/\/o\/[^/]+\/satellites$/);
+    await page.getByRole('heading', { name: 'No satellites yet' }).waitFor();
+    expect(await page.getByRole('button', { name: /Vennik Outreach Lab/ }).count()).toBe(1);
+    await shot(page, 'signed-up-and-in');
+  });
+
+  it('registers a satellite and reports the one bad entry of an uploaded file by line and column', async () => {
+    const { page, org } = await signInAs('editor');
+    // A real element set to start from: the demo satellite's, exported as TLE, renumbered.
+    const demo = server.credentials.satellites[0]!;
+    const info = await page.request.get(`${server.url}/api/orgs/${org}/satellites/${demo.id}`);
+    const current = ((await info.json()) as { current: { id: string } }).current;
+    const tle = await (await page.request.get(`${server.url}/api/orgs/${org}/element-sets/${current.id}/export?format=tle`)).text();
+    const [l1, l2] = tle
+      .split(/\r?\n/)
+      .filter((l) => /^[12] /.test(l))
+      .map((l) => l.padEnd(69));
+    const good1 = withChecksum(`1 99977${l1!.slice(7)}`);
+    const good2 = withChecksum(`2 99977${l2!.slice(7)}`);
+    const bad2 = good2.slice(0, 68) + String((Number(good2[68]) + 1) % 10);
+    const file = ['E2E GOOD', good1, good2, 'E2E BAD', good1, bad2, ''].join('\n');
+
+    await page.getByRole('button', { name: 'Register a satellite' }).first().click();
+    await page.getByLabel('Name', { exact: true }).fill('Ostwick E2E Probe');
+    await page.getByRole('button', { name: 'Register satellite' }).click();
+    await page.waitForURL(/\/satellites\/[^/]+$/);
+    await page.getByRole('tab', { name: 'Upload files' }).click();
+    await page.locator('input[type="file"]').setInputFiles({ name: 'probe.tle', mimeType: 'text/plain', buffer: Buffer.from(file) });
+    await page.getByText('probe.tle').first().waitFor();
+    await page.getByRole('button', { name: 'Check and save' }).click();
+    const report = page.locator('section.report');
+    await report.getByText(/1\s+element set accepted,\s+1\s+rejected/).waitFor();
+    await shot(page, 'upload-report');
+    const rows = report.locator('tbody tr');
+    expect(await rows.count()).toBe(2);
+    expect(await rows.nth(0).textContent()).toContain('Accepted');
+    const bad = (await rows.nth(1).textContent()) ?? '';
+    expect(bad).toContain('Rejected');
+    expect(bad).toMatch(/line 6, column 69/);
+    // The accepted set is now current: the orbit is derived and shown.
+    await page.getByRole('heading', { name: 'Derived orbit' }).waitFor();
+  });
+
+  it('creates a browser key, rotates it, and the old key answers until its grace ends', async () => {
+    const { page, org } = await signInAs('admin');
+    await page.goto(`${server.url}/o/${org}/keys`);
+    await page.getByRole('button', { name: 'Create a key' }).first().click();
+    await page.getByLabel('Name', { exact: true }).fill('E2E site');
+    await page.getByRole('button', { name: 'Create key' }).click();
+    const dialog = page.getByRole('dialog', { name: 'Your new key' });
+    const first = ((await dialog.locator('pre').textContent()) ?? '').trim();
+    expect(first).toMatch(/^nlb_/);
+    await dialog.getByRole('button', { name: 'I have stored the key' }).click();
+    await dialog.waitFor({ state: 'detached' });
+    expect(await page.content()).not.toContain(first);
+    expect((await pageGet(page, `/v1/satellites?key=${first}`)).status).toBe(200);
+
+    const row = page.locator('tr', { hasText: 'E2E site' });
+    await row.getByRole('button', { name: /Manage/ }).click();
+    await page.getByRole('menuitem', { name: 'Rotate…' }).click();
+    const rotate = page.getByRole('dialog', { name: /Rotate/ });
+    await rotate.getByText(/The old key stops at about/).waitFor();
+    await rotate.getByRole('button', { name: 'Rotate key' }).click();
+    const rotated = page.getByRole('dialog', { name: 'Key rotated' });
+    const second = ((await rotated.locator('pre').textContent()) ?? '').trim();
+    expect(second).toMatch(/^nlb_/);
+    expect(second).not.toBe(first);
+    await rotated.getByText(/keeps answering until/).waitFor();
+    await shot(page, 'key-rotated');
+    await rotated.getByRole('button', { name: 'I have stored the key' }).click();
+
+    // Both keys answer during the grace period; the list shows the old one in grace.
+    expect((await pageGet(page, `/v1/satellites?key=${second}`)).status).toBe(200);
+    expect((await pageGet(page, `/v1/satellites?key=${first}`)).status).toBe(200);
+    await page.locator('tr', { hasText: 'Grace period' }).first().waitFor();
+
+    // A rotation without grace ends the old key's life at once: it is then refused.
+    await page.locator('tr', { hasText: 'E2E site' }).filter({ hasText: 'Active' }).getByRole('button', { name: /Manage/ }).click();
+    await page.getByRole('menuitem', { name: 'Rotate…' }).click();
+    await page.getByRole('button', { name: /24 hours/ }).click();
+    await page.getByRole('option', { name: /Stop the old key at once/ }).click();
+    await page.getByRole('dialog', { name: /Rotate/ }).getByRole('button', { name: 'Rotate key' }).click();
+    const third = ((await page.getByRole('dialog', { name: 'Key rotated' }).locator('pre').textContent()) ?? '').trim();
+    await page.getByRole('button', { name: 'I have stored the key' }).click();
+    expect((await pageGet(page, `/v1/satellites?key=${third}`)).status).toBe(200);
+    const old = await pageGet(page, `/v1/satellites?key=${second}`);
+    expect(old.status).toBe(401);
+  });
+
+  it('builds an embed whose snippet then works in a separate page', async () => {
+    const { page, org } = await signInAs('editor');
+    await page.goto(`${server.url}/o/${org}/embeds/new`);
+    await page.getByLabel('Name', { exact: true }).fill('E2E lobby map');
+    await page.getByRole('button', { name: 'Save embed' }).click();
+    await page.waitForURL(/\/embeds\/(?!new)[^/]+$/);
+    const id = page.url().split('/').at(-1)!;
+    const snippet = ((await page.getByLabel('Script snippet').textContent()) ?? '').trim();
+    expect(snippet).toContain(`embed="${id}"`);
+    expect(snippet).toContain('/widget/nadir-track.js');
+    await shot(page, 'embed-saved');
+
+    // A host page on an origin the demo browser key lists (this server's), holding only the snippet.
+    const host = await newPage();
+    await host.route(`${server.url}/e2e-host-page.html`, (route) =>
+      route.fulfill({ contentType: 'text/html', body: `<!doctype html><title>Host</title><h1>Our mission</h1>\n${snippet}\n` }),
+    );
+    await host.goto(`${server.url}/e2e-host-page.html`);
+    await host.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.mark'), undefined, { timeout: 20_000 });
+    await shot(host, 'embed-host-page');
+
+    // The hosted iframe form, too.
+    const framed = await newPage();
+    await framed.goto(`${server.url}/embed/${id}`);
+    await framed.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.mark'), undefined, { timeout: 20_000 });
+  });
+
+  it('offers a viewer no key or member actions, and the server refuses them anyway', async () => {
+    const { page, org } = await signInAs('viewer');
+    await page.goto(`${server.url}/o/${org}/keys`);
+    await page.getByText(/can see keys but not change them/).waitFor();
+    expect(await page.getByRole('button', { name: 'Create a key' }).count()).toBe(0);
+    expect(await page.getByRole('button', { name: /Manage/ }).count()).toBe(0);
+    await page.goto(`${server.url}/o/${org}/members`);
+    await page.getByRole('heading', { name: 'What each role may do' }).waitFor();
+    expect(await page.getByRole('button', { name: 'Invite a member' }).count()).toBe(0);
+    expect(await page.locator('select').count()).toBe(0);
+    expect(await page.getByRole('button', { name: /^Remove/ }).count()).toBe(0);
+    await shot(page, 'viewer-members');
+
+    // Trying anyway, with a valid session and CSRF token: 403 forbidden from the server.
+    const tried = await page.evaluate(async (o) => {
+      const { csrfToken } = (await (await fetch('/api/session')).json()) as { csrfToken: string };
+      const post = (url: string, body: unknown) =>
+        fetch(url, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken }, body: JSON.stringify(body) }).then(async (r) => ({
+          status: r.status,
+          code: ((await r.json()) as { code?: string }).code,
+        }));
+      return {
+        key: await post(`/api/orgs/${o}/keys`, { kind: 'browser', name: 'Sneaky', origins: ['https://example.org'] }),
+        invite: await post(`/api/orgs/${o}/invitations`, { email: 'someone@example.org', role: 'admin' }),
+      };
+    }, org);
+    expect(tried.key).toEqual({ status: 403, code: 'forbidden' });
+    expect(tried.invite).toEqual({ status: 403, code: 'forbidden' });
+  });
+});
