@@ -24,7 +24,6 @@ import { securityHeaders } from '../http/security.ts';
 import { getEmbedService } from '../services/embeds.ts';
 import { getKeyService } from '../services/keys.ts';
 import { buildOpenApi, PROBLEM_DOCS } from '../services/openapi.ts';
-import { CAPS } from './v1/schemas.ts';
 
 const YEAR_S = 31_536_000;
 const HASHED = /[.-][A-Za-z0-9_-]{8,}\.[a-z0-9]+$/;

@@ -20,7 +20,7 @@ import {
 import type { AppContext } from '../../context.ts';
 import { HttpError, type ProblemCode } from '../../http/problem.ts';
 import { Satellite } from '../../models/index.ts';
-import { getEmbedService, publicEmbed } from '../../services/embeds.ts';
+import { publicEmbed } from '../../services/embeds.ts';
 import { buildOpenApi } from '../../services/openapi.ts';
 import { parsedOf, type CachedSatellite, type CurrentSet } from '../../services/orbit-cache.ts';
 import { getSatelliteService, unprocessable, type ElementFormat, type SatelliteService } from '../../services/satellites.ts';
@@ -156,7 +156,6 @@ function pointJson(s: TrackSample) {
 export async function createV1Router(ctx: AppContext): Promise<Router> {
   const router = Router();
   const sats = getSatelliteService(ctx);
-  const embeds = getEmbedService(ctx);
   const limiter = keyRateLimit();
   const trackAnswers = new TrackAnswerCache();
   // Without PUBLIC_URL the server URL is relative: the document is right on any host and port.
@@ -418,7 +417,6 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     res.setHeader('Cache-Control', 'private, max-age=30');
     res.json(publicEmbed(embed));
   });
-  void embeds;
 
   router.get('/openapi.json', (req, res) => {
     res.setHeader('Cache-Control', 'public, max-age=300');
