@@ -216,3 +216,24 @@ describe('rate limits and quota', () => {
     expect(status.usedThisMonth).toBeGreaterThanOrEqual(limit);
   });
 });
+
+describe('guessing keys', () => {
+  it('slows down a client that keeps sending unknown keys, without touching working keys', async () => {
+    // Its own app, last in this file (models bind to the newest app's database): the address
+    // stays slowed for the rest of the minute.
+    const own = await startKeyedApp();
+    try {
+      await request(own.app).get('/v1/satellites').set('Authorization', `Bearer ${own.serverKey}`).expect(200);
+      let last: request.Response | undefined;
+      for (let i = 0; i < 301; i++) {
+        last = await request(own.app).get('/v1/satellites').set('Authorization', `Bearer nls_guess${String(i).padStart(28, '0')}`);
+        if (last.status === 429) break;
+      }
+      expectProblem(last!, 429, 'rate-limited');
+      expect(Number(last!.headers['retry-after'])).toBeGreaterThan(0);
+      await request(own.app).get('/v1/satellites').set('Authorization', `Bearer ${own.serverKey}`).expect(200);
+    } finally {
+      await own.close();
+    }
+  });
+});

@@ -121,13 +121,14 @@ type Credential = Omit<V1Auth, 'origin'>;
  * Resolve the credential of a request: throws unauthenticated / invalid-key / key-* problems.
  * Answers synchronously when the key (or embed) is cached, so the hot path awaits nothing.
  */
-export function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath?: string): Credential | Promise<Credential> {
+export function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath?: string, beforeLookup: () => void = () => undefined): Credential | Promise<Credential> {
   const keys = getKeyService(ctx);
   const read = req.method === 'GET' || req.method === 'HEAD' || req.method === 'OPTIONS';
   const header = req.headers.authorization;
   const byKey = (text: string, via: 'bearer' | 'query-key'): Credential | Promise<Credential> => {
     const hit = keys.authenticateCached(text);
     if (hit) return { key: hit, embed: null, via };
+    beforeLookup();
     return keys.authenticate(text).then((key) => ({ key, embed: null, via }));
   };
   if (header) {
@@ -150,6 +151,7 @@ export function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath
     const embeds = getEmbedService(ctx);
     const hit = embeds.resolveForReadCached(embedId);
     if (hit) return { key: hit.key, embed: hit.embed, via: 'embed' };
+    beforeLookup();
     return embeds.resolveForRead(embedId).then(({ embed, key }) => ({ key, embed, via: 'embed' as const }));
   }
   throw new HttpError(
@@ -161,7 +163,7 @@ export function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath
 }
 
 /** Credential + origin + scope for one route. */
-export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>, opts: { embedFromPath?: string } = {}): RequestHandler {
+export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>, opts: { embedFromPath?: string; guard?: FailedAuthGuard } = {}): RequestHandler {
   const finish = (req: Request, res: Response, next: NextFunction, cred: Credential) => {
     const origin = checkOrigin(ctx, req, cred.key, cred.embed);
     if (access === 'write') {
@@ -175,10 +177,25 @@ export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>,
     res.locals.v1auth = { key: cred.key, embed: cred.embed, via: cred.via, origin } satisfies V1Auth;
     next();
   };
+  const guard = opts.guard ?? new FailedAuthGuard();
+  const failed = (req: Request, err: unknown) => {
+    if (err instanceof HttpError && err.status === 401) guard.failed(req.ip ?? 'unknown');
+    throw err;
+  };
   return (req: Request, res: Response, next: NextFunction) => {
     const embedId = opts.embedFromPath ? String(req.params[opts.embedFromPath] ?? '') : undefined;
-    const cred = resolveCredential(ctx, req, embedId);
-    if (cred instanceof Promise) return cred.then((c) => finish(req, res, next, c));
+    let cred: Credential | Promise<Credential>;
+    try {
+      cred = resolveCredential(ctx, req, embedId, () => guard.check(req.ip ?? 'unknown'));
+    } catch (err) {
+      return failed(req, err);
+    }
+    if (cred instanceof Promise) {
+      return cred.then(
+        (c) => finish(req, res, next, c),
+        (err: unknown) => failed(req, err),
+      );
+    }
     finish(req, res, next, cred);
     return undefined;
   };
@@ -206,6 +223,35 @@ export function keyRateLimit(): RequestHandler {
     },
   };
   return rateLimit(options);
+}
+
+/** Failed credentials (401) allowed per client address per minute before unknown keys get 429. */
+export const FAILED_AUTH_LIMIT_PER_MIN = 300;
+
+/**
+ * Guessing keys costs a database read per unknown key. Each client address may have
+ * FAILED_AUTH_LIMIT_PER_MIN failed credentials a minute; past that, credentials that are not
+ * already cached answer 429 until the minute is over. Working (cached) keys are never slowed, so
+ * many readers behind one address are not punished for one bad page.
+ */
+export class FailedAuthGuard {
+  private readonly counts = new Map<string, { n: number; since: number }>();
+
+  check(ip: string, now = Date.now()): void {
+    const c = this.counts.get(ip);
+    if (c && now - c.since < 60_000 && c.n >= FAILED_AUTH_LIMIT_PER_MIN) {
+      const retry = Math.max(1, Math.ceil((c.since + 60_000 - now) / 1000));
+      throw new HttpError('rate-limited', `Too many requests with unknown or unusable keys from this address; wait ${retry} s.`, {}, { 'Retry-After': String(retry) });
+    }
+  }
+
+  failed(ip: string, now = Date.now()): void {
+    const c = this.counts.get(ip);
+    if (!c || now - c.since >= 60_000) {
+      if (this.counts.size > 50_000) this.counts.clear();
+      this.counts.set(ip, { n: 1, since: now });
+    } else c.n++;
+  }
 }
 
 /** Monthly quota, then count the request (memory only) and note the key's last use. */

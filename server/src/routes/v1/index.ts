@@ -24,7 +24,7 @@ import { publicEmbed } from '../../services/embeds.ts';
 import { buildOpenApi } from '../../services/openapi.ts';
 import { parsedOf, type CachedSatellite, type CurrentSet } from '../../services/orbit-cache.ts';
 import { getSatelliteService, unprocessable, type ElementFormat, type SatelliteService } from '../../services/satellites.ts';
-import { authenticate, authOf, canSee, corsHeaders, keyRateLimit, preflight, quotaAndUsage, type V1Auth } from './auth.ts';
+import { authenticate, authOf, canSee, corsHeaders, FailedAuthGuard, keyRateLimit, preflight, quotaAndUsage, type V1Auth } from './auth.ts';
 import {
   CAPS,
   createSatelliteBody,
@@ -165,6 +165,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
 
   router.use(corsHeaders);
   router.options('/*splat', preflight(ctx));
+  const guard = new FailedAuthGuard();
 
   const spec = (method: RouteSpec['method'], path: string): RouteSpec => {
     const s = V1_ROUTES.find((r) => r.method === method && (r.path === path || expressPath(r.path) === path));
@@ -176,7 +177,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   const keyed = (method: RouteSpec['method'], path: string, ...handlers: RequestHandler[]) => {
     const s = spec(method, path);
     if (s.access === 'public') throw new Error('keyed() on a public route');
-    const chain: RequestHandler[] = [authenticate(ctx, s.access), limiter, quotaAndUsage(ctx, routeTemplate(s)), ...handlers];
+    const chain: RequestHandler[] = [authenticate(ctx, s.access, { guard }), limiter, quotaAndUsage(ctx, routeTemplate(s)), ...handlers];
     if (method === 'get') router.get(expressPath(s.path), ...chain);
     else router.post(expressPath(s.path), ...chain);
   };
@@ -411,7 +412,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
 
   // -- public ----------------------------------------------------------------------------------
 
-  router.get('/embeds/:id', authenticate(ctx, 'read', { embedFromPath: 'id' }), limiter, quotaAndUsage(ctx, 'GET /v1/embeds/{id}'), async (req, res) => {
+  router.get('/embeds/:id', authenticate(ctx, 'read', { embedFromPath: 'id', guard }), limiter, quotaAndUsage(ctx, 'GET /v1/embeds/{id}'), async (req, res) => {
     const { embed } = authOf(res);
     if (!embed) throw new HttpError('not-found', 'No such embed.');
     res.setHeader('Cache-Control', 'private, max-age=30');
