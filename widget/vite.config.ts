@@ -53,7 +53,7 @@ export default defineConfig({
     reportCompressedSize: true,
     // the ES module is a finished script for pages, not a library to bundle again: minify it fully
     rolldownOptions: {
-      output: { minify: true, comments: { annotation: false, legal: false, jsdoc: false } },
+      output: { minify: !process.env.NADIR_DEBUG_BUILD, comments: { annotation: false, legal: false, jsdoc: false } },
       // assets.ts reads import.meta.url only after document.currentScript, which the classic script has
       checks: { emptyImportMeta: false },
     },

@@ -33,5 +33,5 @@ export function subsolarPoint(ms: number): { lat: number; lon: number } {
 export function nightBands(ms: number, depressionsDeg: readonly number[] = [0, 6, 12, 18]): Polygon[] {
   const sun = subsolarPoint(ms);
   const anti: [number, number] = [wrapLon(sun.lon + 180), -sun.lat];
-  return depressionsDeg.map((d) => geoCircle().center(anti).radius(90 - d).precision(2)() as Polygon);
+  return depressionsDeg.map((d) => geoCircle().center(anti).radius(90 - d).precision(3)() as Polygon);
 }

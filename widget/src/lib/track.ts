@@ -23,7 +23,7 @@ export interface Interpolated extends Sample {
 export type LonLat = [number, number];
 
 /** Fixed ladder of window sizes: every reader asks for the same URLs, so answers cache well. */
-const LADDER: readonly { spanMs: number; stepS: number }[] = [
+export const LADDER: readonly { spanMs: number; stepS: number }[] = [
   { spanMs: 2 * 3600_000, stepS: 30 }, // low orbits: 241 points a window
   { spanMs: 6 * 3600_000, stepS: 90 },
   { spanMs: 24 * 3600_000, stepS: 360 }, // high orbits

@@ -5,10 +5,10 @@
  * Vue reactivity carries the state to the components; sample arrays are kept raw for speed.
  */
 import { markRaw, reactive } from 'vue';
-import { NadirApi, type ApiProblem, type ElementsInfo, type EmbedConfig, type FetchLike, type Pass } from './api.ts';
+import { NadirApi, type ApiProblem, type ApiResult, type ElementsInfo, type EmbedConfig, type FetchLike, type Pass } from './api.ts';
 import { settle, type Observer, type RawOptions, type Settings } from './config.ts';
 import { noticeFor, type Notice } from './messages.ts';
-import { mergeSamples, planWindows, type Sample, type WindowPlan } from './track.ts';
+import { LADDER, mergeSamples, planWindows, type Sample, type WindowPlan } from './track.ts';
 
 export interface SatState {
   id: string;
@@ -244,8 +244,14 @@ export class Tracker {
   /** One satellite's share of a round. Returns null when all went well, else what problem() said. */
   private async satRound(sat: SatState, now: number, signal: AbortSignal): Promise<number | undefined | null> {
     if (sat.dead) return null;
-    // metadata: /v1/satellites/{id} carries the derived elements; /elements only when it has none
+    // metadata: /v1/satellites/{id} carries the derived elements; /elements only when it has none.
+    // Meanwhile the window around now is asked for on the guess of a low orbit (the common case),
+    // so the first track is drawn one round trip sooner; a high orbit just ignores that answer.
+    const rung0 = LADDER[0]!;
+    let early: { start: number; answer: Promise<ApiResult<Sample[]>> } | null = null;
     if (!sat.elements) {
+      const start = Math.floor(now / rung0.spanMs) * rung0.spanMs;
+      early = { start, answer: this.api.track(sat.id, start, start + rung0.spanMs, rung0.stepS, signal) };
       const meta = await this.api.satellite(sat.id, signal);
       if (signal.aborted) return undefined;
       if (!meta.ok) return this.problem(meta, sat);
@@ -275,17 +281,28 @@ export class Tracker {
       held = new Map();
       this.windows.set(sat.id, held);
     }
-    const missing = plan.starts.filter((start) => !held.has(start));
-    const answers = await Promise.all(missing.map((start) => this.api.track(sat.id, start, start + plan.spanMs, plan.stepS, signal)));
-    if (signal.aborted) return undefined;
+    const useEarly = !!early && plan.spanMs === rung0.spanMs && plan.stepS === rung0.stepS && plan.starts.includes(early.start) && !held.has(early.start);
+    const missing = plan.starts.filter((start) => !held.has(start) && !(useEarly && start === early!.start));
+    const pending = Promise.all(missing.map((start) => this.api.track(sat.id, start, start + plan.spanMs, plan.stepS, signal)));
     let stop: number | undefined | null = null;
+    if (useEarly) {
+      const r = await early!.answer;
+      if (signal.aborted) return undefined;
+      if (r.ok) {
+        held.set(early!.start, r.value);
+        sat.plan = plan;
+        sat.samples = markRaw(mergeSamples([...held.values()])); // draw the part around now at once
+      } else stop = this.problem(r, sat);
+    }
+    const answers = await pending;
+    if (signal.aborted) return undefined;
     answers.forEach((r, i) => {
       if (r.ok) held.set(missing[i]!, r.value);
       else if (stop === null) stop = this.problem(r, sat);
     });
     for (const start of [...held.keys()]) if (!plan.starts.includes(start)) held.delete(start);
     sat.plan = plan;
-    if (missing.length > 0) sat.samples = markRaw(mergeSamples([...held.values()]));
+    if (missing.length > 0 || useEarly) sat.samples = markRaw(mergeSamples([...held.values()]));
     if (stop !== null || sat.dead) return stop;
 
     // passes over the observer
