@@ -10,7 +10,7 @@ interface Call {
 }
 
 /** A fake /v1 that answers from a table; `down` makes every request fail like a lost network. */
-function fakeApi(opts: { key?: string; down?: () => boolean; missing?: string[]; stale?: string[] } = {}) {
+function fakeApi(opts: { key?: string; down?: () => boolean; missing?: string[]; stale?: string[]; periodMin?: number } = {}) {
   const calls: Call[] = [];
   const json = (body: unknown, status = 200, headers: Record<string, string> = {}) =>
     new Response(JSON.stringify(body), { status, headers: { 'content-type': status < 400 ? 'application/json' : 'application/problem+json', ...headers } });
@@ -28,7 +28,7 @@ function fakeApi(opts: { key?: string; down?: () => boolean; missing?: string[];
     if (opts.missing?.includes(id)) return json({ title: 'Not found', status: 404, code: 'not-found' }, 404);
     if (!m[2]) return json({ id, name: `Sat ${id}` });
     if (m[2] === 'elements')
-      return json({ epoch: '2026-03-04T00:00:00Z', periodMin: 90, semiMajorAxisKm: 6780, inclinationDeg: 51.6, ageDays: opts.stale?.includes(id) ? 21 : 0.5, stale: !!opts.stale?.includes(id) });
+      return json({ epoch: '2026-03-04T00:00:00Z', periodMin: opts.periodMin ?? 90, semiMajorAxisKm: 6780, inclinationDeg: 51.6, ageDays: opts.stale?.includes(id) ? 21 : 0.5, stale: !!opts.stale?.includes(id) });
     if (m[2] === 'track') {
       const start = Date.parse(u.searchParams.get('start')!);
       const end = Date.parse(u.searchParams.get('end')!);
@@ -103,6 +103,27 @@ describe('Tracker', () => {
     expect(new Set(starts).size).toBe(starts.length);
     expect(starts).toContain('2026-03-04T16:00:00Z');
     t.dispose();
+  });
+
+  it('asks for the window around now at once on the guess of a low orbit, and drops the guess for a high one', async () => {
+    const low = fakeApi();
+    const a = make(low, { attrs: { satellites: 'a' } });
+    a.t.resume();
+    await advance(10);
+    const lowTracks = low.calls.filter((c) => c.path.endsWith('/track'));
+    expect(lowTracks[0]!.q.get('start')).toBe('2026-03-04T12:00:00Z'); // sent alongside the metadata request
+    expect(low.calls.indexOf(lowTracks[0]!)).toBeLessThan(low.calls.findIndex((c) => c.path.endsWith('/elements')));
+    a.t.dispose();
+
+    const geo = fakeApi({ periodMin: 1436 });
+    const b = make(geo, { attrs: { satellites: 'g' } });
+    b.t.resume();
+    await advance(10);
+    const sat = b.t.state.sats[0]!;
+    expect(sat.plan?.spanMs).toBe(24 * 3600_000);
+    const steps = new Set(sat.samples.slice(1).map((x, i) => x.t - sat.samples[i]!.t));
+    expect([...steps]).toEqual([360_000]); // no 30 s samples from the guess mixed in
+    b.t.dispose();
   });
 
   it('stops for good on a bad key and shows why', async () => {
