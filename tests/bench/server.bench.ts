@@ -17,7 +17,7 @@ import { repoRoot, startServer } from '../support/server.ts';
 
 const WARMUP_S = 2;
 const DURATION_S = Number(process.env.BENCH_SECONDS ?? 5);
-const ROUNDS = 2;
+const ROUNDS = 3;
 const CONNECTIONS = 16;
 
 interface Figures {
