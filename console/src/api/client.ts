@@ -233,7 +233,7 @@ export class ApiClient {
     this.csrfToken = s.csrfToken ?? '';
     return { user: s.user ?? null, memberships: s.memberships ?? [], csrfToken: s.csrfToken ?? '' };
   }
-  signUp(input: { email: string; name: string; password: string; organizationName: string }) {
+  signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }) {
     return this.post<{ user: User }>('/auth/signup', input);
   }
   verifyEmail(token: string) {

@@ -36,4 +36,11 @@ describe('the upload report', () => {
     expect(w.text()).toContain('line 2');
     expect(w.find('.alert').classes()).toContain('error');
   });
+
+  it('does not repeat a field name the message already starts with', () => {
+    const w = mount(ElementSetUploadReport, {
+      props: { report: { accepted: 0, rejected: 1, report: [{ index: 1, line: 1, ok: false, field: 'eccentricity', message: 'eccentricity: 1.5 must be below 1' }] } },
+    });
+    expect(w.find('tbody td:last-child').text()).toBe('eccentricity: 1.5 must be below 1');
+  });
 });

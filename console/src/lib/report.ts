@@ -30,3 +30,12 @@ export function placeOf(e: Pick<UploadReportEntry, 'line' | 'column'>): string {
   if (!e.line) return '';
   return e.column ? `line ${e.line}, column ${e.column}` : `line ${e.line}`;
 }
+
+/** The message without a leading "field:" the server may already have put in front. */
+export function bareMessage(field: string | undefined, message: string): string {
+  if (!field) return message;
+  const prefix = `${field}:`;
+  let m = message.trim();
+  while (m.toLowerCase().startsWith(prefix.toLowerCase())) m = m.slice(prefix.length).trim();
+  return m;
+}

@@ -30,7 +30,7 @@ export const useSessionStore = defineStore('session', () => {
     apply(await api.signIn(email.trim(), password));
   }
 
-  async function signUp(input: { email: string; name: string; password: string; organizationName: string }): Promise<User> {
+  async function signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }): Promise<User> {
     const { user: created } = await api.signUp({ ...input, email: input.email.trim() });
     return created;
   }
