@@ -91,6 +91,13 @@ describe('deriveElements', () => {
     },
   );
 
+  it('keeps a geostationary track in place and sends a 12-hour track to the far side each revolution (common practice)', () => {
+    // One revolution per sidereal day (1.00273791 rev/day) brings the track back to the same longitude.
+    expect(Math.abs(deriveElements(circular(1.00273791, 0.05), 0).westwardShiftPerRevDeg)).toBeLessThan(0.5);
+    // Two revolutions per sidereal day: the next equator crossing lies half a turn away.
+    expect(Math.abs(deriveElements(circular(2.00547582, 63.4), 0).westwardShiftPerRevDeg)).toBeGreaterThan(179);
+  });
+
   it('gives the latitude limit of a retrograde orbit as 180 deg minus the inclination', () => {
     expect(deriveElements(circular(14.57, 98.2), 0).latitudeLimitDeg).toBeCloseTo(81.8, 9);
   });

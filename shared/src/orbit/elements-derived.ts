@@ -35,7 +35,11 @@ export interface DerivedElements {
   perigeeAltKm: number;
   /** J2 secular drift of the ascending node, deg/day (negative: westward, prograde orbits). */
   nodalPrecessionDegPerDay: number;
-  /** How far west the track's next equator crossing lies, deg per revolution. */
+  /**
+   * How far west the track's next equator crossing lies, deg per revolution, taken modulo whole
+   * turns into (-180, 180]: a geostationary track does not move (about 0), a 12-hour orbit's
+   * alternates sides (about 180), negative means the crossing moves east.
+   */
   westwardShiftPerRevDeg: number;
   /** Highest latitude the track reaches, deg (inclination, or 180 - it when retrograde). */
   latitudeLimitDeg: number;
@@ -88,7 +92,8 @@ export function deriveElements(es: ElementSet, atMs: number): DerivedElements {
   // Per revolution the Earth turns 360 deg per sidereal day under the orbit while the node
   // itself drifts by the J2 rate; the track shifts west by the difference (common practice).
   const earthDegPerMin = 360 / (SIDEREAL_DAY_S / 60);
-  const westwardShiftPerRevDeg = (earthDegPerMin - nodal / 1440) * periodMin;
+  const rawShiftDeg = (earthDegPerMin - nodal / 1440) * periodMin;
+  const westwardShiftPerRevDeg = rawShiftDeg - 360 * Math.ceil((rawShiftDeg - 180) / 360);
   const ageDays = (atMs - es.epochMs) / MS_PER_DAY;
   const staleness = stalenessOf(ageDays);
   return {
