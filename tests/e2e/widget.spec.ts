@@ -220,6 +220,18 @@ describe('<nadir-track> on the science centre example', () => {
     await w.ctx.close();
   });
 
+  it('follows the reader’s colour scheme, live, with theme="auto"', async () => {
+    const w = await open(`${server.url}/examples/science-centre.html`, { scheme: 'dark' });
+    const frameClass = () => w.page.evaluate(() => document.querySelector('nadir-track')?.shadowRoot?.querySelector('.nadir')?.className ?? '');
+    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.nadir'));
+    await w.page.evaluate(() => document.querySelector('nadir-track')!.setAttribute('theme', 'auto'));
+    await expect.poll(frameClass).toContain('theme-dark');
+    await w.page.emulateMedia({ colorScheme: 'light' });
+    await expect.poll(frameClass).toContain('theme-light');
+    expect(w.pageErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
   it('looks right in light and dark at 320 and 1280 px (screenshots kept)', async () => {
     for (const width of [320, 1280]) {
       for (const scheme of ['light', 'dark'] as const) {
