@@ -101,6 +101,12 @@ describe('console', () => {
     expect(deep.text).toBe(root.text);
   });
 
+  it('answers the site icon at /favicon.ico, so pages without one log no missing file', async () => {
+    const res = await request(t.app).get('/favicon.ico').expect(200);
+    expect(res.headers['content-type']).toMatch(/^image\/svg\+xml/);
+    expect(String(res.body)).toContain('<svg');
+  });
+
   it('does not answer HTML for API paths or missing files', async () => {
     const api = await request(t.app).get('/v1/nothing').set('Accept', 'text/html');
     expect(api.headers['content-type']).toMatch(/problem\+json/);

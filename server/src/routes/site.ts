@@ -25,6 +25,10 @@ import { getEmbedService } from '../services/embeds.ts';
 import { getKeyService } from '../services/keys.ts';
 import { buildOpenApi, PROBLEM_DOCS } from '../services/openapi.ts';
 
+/** The Nadirline mark: a ring (the orbit) with the point beneath it (the nadir). */
+const FAVICON_SVG =
+  "<svg xmlns='http://www.w3.org/2000/svg' viewBox='0 0 32 32'><circle cx='16' cy='16' r='13' fill='none' stroke='#b3541e' stroke-width='3'/><circle cx='16' cy='27' r='3' fill='#b3541e'/></svg>";
+
 const YEAR_S = 31_536_000;
 const HASHED = /[.-][A-Za-z0-9_-]{8,}\.[a-z0-9]+$/;
 
@@ -217,6 +221,11 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
   const consoleDist = path.join(repoRoot, 'console', 'dist');
   const examplesDir = path.join(repoRoot, 'examples');
   const consoleHeaders = securityHeaders(config, 'console');
+
+  // -- the Nadirline mark as the site icon (pages that name none get it at /favicon.ico) --------
+  router.get(['/favicon.ico', '/favicon.svg'], (_req, res) => {
+    res.type('image/svg+xml').set('Cache-Control', 'public, max-age=86400').send(FAVICON_SVG);
+  });
 
   // -- fonts for the server's own pages --------------------------------------------------------
   const fonts = fontDir();
