@@ -13,7 +13,7 @@ import path from 'node:path';
 import request from 'supertest';
 import type { Response } from 'supertest';
 import { createApp, type NadirlineApp } from '@nadirline/server/app';
-import { loadConfig } from '../../server/src/config.ts';
+import { loadConfig } from '@nadirline/server/config';
 
 export interface MailboxMessage {
   id: number;

@@ -4,9 +4,9 @@
  */
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ApiKey, UsageDaily } from '../../server/src/models/index.ts';
-import { getKeyService } from '../../server/src/services/keys.ts';
-import { getQuotaService, planOf } from '../../server/src/services/quota.ts';
+import { ApiKey, UsageDaily } from '@nadirline/server/models/index.ts';
+import { getKeyService } from '@nadirline/server/services/keys.ts';
+import { getQuotaService, planOf } from '@nadirline/server/services/quota.ts';
 import { leoTle, PAGE_ORIGIN, startKeyedApp, type KeyedTestApp } from '../support/app.ts';
 
 let t: KeyedTestApp;

@@ -6,9 +6,9 @@ import fs from 'node:fs';
 import { Sequelize, QueryTypes } from 'sequelize';
 import request from 'supertest';
 import { afterAll, afterEach, beforeAll, describe, expect, it, vi } from 'vitest';
-import { ApiKey, UsageDaily } from '../../server/src/models/index.ts';
-import { getKeyService } from '../../server/src/services/keys.ts';
-import { getUsageRecorder } from '../../server/src/services/usage.ts';
+import { ApiKey, UsageDaily } from '@nadirline/server/models/index.ts';
+import { getKeyService } from '@nadirline/server/services/keys.ts';
+import { getUsageRecorder } from '@nadirline/server/services/usage.ts';
 import { PAGE_ORIGIN, startKeyedApp, type KeyedTestApp } from '../support/app.ts';
 import { startServer, type StartedServer } from '../support/server.ts';
 

@@ -9,8 +9,8 @@ import path from 'node:path';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp, type NadirlineApp } from '@nadirline/server/app';
-import { loadConfig, repoRoot } from '../../server/src/config.ts';
-import { seedDemo, type DemoCredentials } from '../../server/src/seed/demo.ts';
+import { loadConfig, repoRoot } from '@nadirline/server/config';
+import { seedDemo, type DemoCredentials } from '@nadirline/server/seed/demo.ts';
 
 let t: NadirlineApp;
 let dir: string;

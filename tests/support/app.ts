@@ -12,11 +12,11 @@ import os from 'node:os';
 import path from 'node:path';
 import { fromKeplerian, toTle, type ElementSet } from '@nadirline/shared';
 import { createApp, type NadirlineApp } from '@nadirline/server/app';
-import { loadConfig } from '../../server/src/config.ts';
-import { Organization, Satellite, type Plan } from '../../server/src/models/index.ts';
-import { getEmbedService } from '../../server/src/services/embeds.ts';
-import { getKeyService, type CreateKeyInput } from '../../server/src/services/keys.ts';
-import { getSatelliteService } from '../../server/src/services/satellites.ts';
+import { loadConfig } from '@nadirline/server/config';
+import { Organization, Satellite, type Plan } from '@nadirline/server/models/index.ts';
+import { getEmbedService } from '@nadirline/server/services/embeds.ts';
+import { getKeyService, type CreateKeyInput } from '@nadirline/server/services/keys.ts';
+import { getSatelliteService } from '@nadirline/server/services/satellites.ts';
 
 export const PAGE_ORIGIN = 'https://pages.example.org';
 export const WILDCARD_ORIGIN = 'https://*.example.net';
