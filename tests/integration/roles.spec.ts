@@ -231,6 +231,7 @@ export const TABLE: Row[] = [
   { route: 'GET /orgs/:org/usage', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/usage') }) },
   { route: 'GET /orgs/:org/usage.csv', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/usage.csv') }) },
   { route: 'GET /orgs/:org/activity', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/activity') }) },
+  { route: 'POST /orgs/:org/preview-token', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'post', url: org('/preview-token') }) },
   { route: 'GET /orgs/:org/billing', allowed: OWNER, ok: 200, call: async () => ({ method: 'get', url: org('/billing') }) },
   { route: 'POST /orgs/:org/billing/checkout', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await freshOrg()}/billing/checkout`, body: { plan: 'mission' } }) },
 ];

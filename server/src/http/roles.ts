@@ -45,6 +45,8 @@ export const ACCESS = {
   'keys.read': ALL,
   'usage.read': ALL,
   'activity.read': ALL,
+  // A short-lived read-only /v1 token for the console's live previews (services/preview-token.ts).
+  'preview.issue': ALL,
   'satellites.write': EDITORS,
   'element-sets.write': EDITORS,
   'embeds.write': EDITORS,

@@ -14,6 +14,7 @@ import { accountRoutes } from './account.ts';
 import { embedRoutes } from './embeds.ts';
 import { keyRoutes } from './keys.ts';
 import { orgRoutes } from './orgs.ts';
+import { previewRoutes } from './preview.ts';
 import type { ApiRoute } from './routes.ts';
 import { satelliteRoutes } from './satellites.ts';
 import { usageRoutes } from './usage.ts';
@@ -27,7 +28,7 @@ declare module '../../context.ts' {
 
 /** Every /api route with its action, in mounting order. */
 export function buildApiRoutes(ctx: AppContext): ApiRoute[] {
-  return [accountRoutes, orgRoutes, keyRoutes, satelliteRoutes, embedRoutes, usageRoutes].flatMap((routes) => routes(ctx).list);
+  return [accountRoutes, orgRoutes, keyRoutes, satelliteRoutes, embedRoutes, usageRoutes, previewRoutes].flatMap((routes) => routes(ctx).list);
 }
 
 export async function createApiRouter(ctx: AppContext): Promise<Router> {

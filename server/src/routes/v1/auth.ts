@@ -7,6 +7,9 @@
  *     the URL is refused, since URLs end up in logs and histories;
  *   - `?embed=<embed id>` on GET / HEAD: resolved to the embed's browser key, reads limited to the
  *     embed's satellites.
+ *   - a console preview token (`nlp_...`, services/preview-token.ts) as Bearer or `?key=` on GET:
+ *     signed by this server for one organization, valid 15 minutes, read-only, only from this
+ *     server's own origin, outside the plan's quota and usage, rate-limited per organization.
  *
  * Origins (CORS answered per key):
  *   - browser key: the page's origin must be one the key lists (exact, or wildcard subdomain).
@@ -15,6 +18,8 @@
  *     origin at all (curl, a backend) is refused: browser keys are for pages, backends use server
  *     keys. Reads from this server's own origin are also allowed (the hosted /embed/:id page, the
  *     console's live preview, the examples): only pages Nadirline itself serves run there.
+ *   - console preview token: only this server's own origin (Origin, else Referer, else a
+ *     same-origin Sec-Fetch-Site); any other origin, or none, is refused.
  *   - server key: meant for backends, which send no Origin. A request that carries an Origin
  *     header (a web page) is refused unless the key lists that origin.
  *   - Every /v1 answer to a request with an Origin header reflects that origin in
@@ -29,15 +34,17 @@ import type { AppContext } from '../../context.ts';
 import { HttpError } from '../../http/problem.ts';
 import { getEmbedService, type EmbedRecord } from '../../services/embeds.ts';
 import { getKeyService, kindOfKeyText, originAllowed, type KeyRecord } from '../../services/keys.ts';
+import { isPreviewTokenText, PREVIEW_RATE_LIMIT_PER_MIN, verifyPreviewToken } from '../../services/preview-token.ts';
 import { getQuotaService } from '../../services/quota.ts';
 import { getUsageRecorder } from '../../services/usage.ts';
 import type { Access } from './schemas.ts';
 
 export interface V1Auth {
+  /** The key; for a console preview token, a stand-in record (see previewKey) that is never stored. */
   key: KeyRecord;
   /** Set when the credential was `?embed=`. */
   embed: EmbedRecord | null;
-  via: 'bearer' | 'query-key' | 'embed';
+  via: 'bearer' | 'query-key' | 'embed' | 'preview';
   /** The origin the request was judged by, if any. */
   origin: string | null;
 }
@@ -87,8 +94,28 @@ export const corsHeaders: RequestHandler = (req, res, next) => {
   next();
 };
 
-function checkOrigin(ctx: AppContext, req: Request, key: KeyRecord, embed: EmbedRecord | null): string | null {
+/** The origin a page request names: Origin, else the Referer's origin, else this server for a same-origin fetch. */
+function pageOrigin(req: Request, self: string[]): string | null {
+  const origin = req.headers.origin ?? refererOrigin(req);
+  if (!origin && req.get('sec-fetch-site') === 'same-origin') return self[self.length - 1] ?? null;
+  return origin ?? null;
+}
+
+function checkOrigin(ctx: AppContext, req: Request, cred: Credential): string | null {
+  const { key, embed } = cred;
   const header = req.headers.origin;
+  if (cred.via === 'preview') {
+    const self = selfOrigins(ctx, req);
+    const origin = pageOrigin(req, self);
+    if (origin && self.includes(origin.toLowerCase())) return origin;
+    throw new HttpError(
+      'origin-not-allowed',
+      origin
+        ? `Console preview tokens work only in the Nadirline console on ${self[0] ?? 'this server'}; this request came from ${origin}. Pages elsewhere use a browser key or an embed.`
+        : 'Console preview tokens work only in the Nadirline console on this server, and this request named no origin (no Origin or Referer header).',
+      origin ? { origin } : {},
+    );
+  }
   if (key.kind === 'server') {
     if (!header) return null;
     if (originAllowed(key.origins, header)) return header;
@@ -98,8 +125,7 @@ function checkOrigin(ctx: AppContext, req: Request, key: KeyRecord, embed: Embed
     );
   }
   const self = selfOrigins(ctx, req);
-  let origin = header ?? refererOrigin(req);
-  if (!origin && req.get('sec-fetch-site') === 'same-origin') origin = self[self.length - 1] ?? null;
+  const origin = pageOrigin(req, self);
   if (!origin) {
     throw new HttpError(
       'origin-not-allowed',
@@ -117,6 +143,51 @@ function checkOrigin(ctx: AppContext, req: Request, key: KeyRecord, embed: Embed
 
 type Credential = Omit<V1Auth, 'origin'>;
 
+const previewKeys = new Map<string, KeyRecord>();
+
+/**
+ * The stand-in key record of an organization's console previews: its id keys the per-organization
+ * rate limit (PREVIEW_RATE_LIMIT_PER_MIN); it is never stored, counted or shown.
+ */
+export function previewKey(orgId: string): KeyRecord {
+  let k = previewKeys.get(orgId);
+  if (!k) {
+    if (previewKeys.size > 10_000) previewKeys.clear();
+    k = {
+      id: `preview:${orgId}`,
+      organizationId: orgId,
+      kind: 'browser',
+      name: 'Console preview',
+      hash: '',
+      lastFour: 'view',
+      origins: [],
+      scopes: ['read'],
+      rateLimitPerMin: PREVIEW_RATE_LIMIT_PER_MIN,
+      expiresAt: null,
+      revokedAt: null,
+      replacedById: null,
+      graceUntil: null,
+      lastUsedAt: null,
+      createdByUserId: null,
+      createdAt: new Date(0),
+    };
+    previewKeys.set(orgId, k);
+  }
+  return k;
+}
+
+function previewCredential(ctx: AppContext, text: string): Credential {
+  const v = verifyPreviewToken(ctx.config.sessionSecret, text);
+  if (v.ok) return { key: previewKey(v.claims.org), embed: null, via: 'preview' };
+  if (v.reason === 'expired') {
+    throw new HttpError(
+      'key-expired',
+      `This console preview token expired at ${new Date((v.claims?.exp ?? 0) * 1000).toISOString()}. The console fetches a new one before the old one ends; reload the page if the preview stays stopped.`,
+    );
+  }
+  throw new HttpError('invalid-key', 'This console preview token is not valid: it was changed, or signed by another server. Reload the console page to get a new one.');
+}
+
 /**
  * Resolve the credential of a request: throws unauthenticated / invalid-key / key-* problems.
  * Answers synchronously when the key (or embed) is cached, so the hot path awaits nothing.
@@ -126,6 +197,7 @@ export function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath
   const read = req.method === 'GET' || req.method === 'HEAD' || req.method === 'OPTIONS';
   const header = req.headers.authorization;
   const byKey = (text: string, via: 'bearer' | 'query-key'): Credential | Promise<Credential> => {
+    if (isPreviewTokenText(text)) return previewCredential(ctx, text);
     const hit = keys.authenticateCached(text);
     if (hit) return { key: hit, embed: null, via };
     beforeLookup();
@@ -165,8 +237,11 @@ export function resolveCredential(ctx: AppContext, req: Request, embedIdFromPath
 /** Credential + origin + scope for one route. */
 export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>, opts: { embedFromPath?: string; guard?: FailedAuthGuard } = {}): RequestHandler {
   const finish = (req: Request, res: Response, next: NextFunction, cred: Credential) => {
-    const origin = checkOrigin(ctx, req, cred.key, cred.embed);
+    const origin = checkOrigin(ctx, req, cred);
     if (access === 'write') {
+      if (cred.via === 'preview') {
+        throw new HttpError('browser-key-read-only', 'Console preview tokens only read: they draw the previews in the console. Upload element sets in the console, or from a backend with a server key that has the element-sets:write scope.');
+      }
       if (cred.key.kind === 'browser' || cred.via === 'embed') {
         throw new HttpError('browser-key-read-only', 'Browser keys and embeds are read-only (they sit in page source). Use a server key with the element-sets:write scope from your backend.');
       }
@@ -213,10 +288,11 @@ export function keyRateLimit(): RequestHandler {
     validate: false,
     handler: (_req, res, next, opts) => {
       const retry = res.getHeader('Retry-After');
+      const who = authOf(res).via === 'preview' ? `The console previews of this organization allow` : 'This key allows';
       next(
         new HttpError(
           'rate-limited',
-          `This key allows ${authOf(res).key.rateLimitPerMin} requests per minute; wait ${retry ?? Math.ceil(opts.windowMs / 1000)} s before the next one.`,
+          `${who} ${authOf(res).key.rateLimitPerMin} requests per minute; wait ${retry ?? Math.ceil(opts.windowMs / 1000)} s before the next one.`,
           { limitPerMin: authOf(res).key.rateLimitPerMin },
         ),
       );
@@ -254,7 +330,7 @@ export class FailedAuthGuard {
   }
 }
 
-/** Monthly quota, then count the request (memory only) and note the key's last use. */
+/** Monthly quota, then count the request (memory only) and note the key's last use. Console previews are neither. */
 export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler {
   const quota = getQuotaService(ctx);
   const usage = getUsageRecorder(ctx);
@@ -264,7 +340,11 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
     keys.touch(key.id, now);
   };
   return (_req, res, next) => {
-    const { key } = authOf(res);
+    const { key, via } = authOf(res);
+    if (via === 'preview') {
+      next();
+      return;
+    }
     const now = Date.now();
     const under = quota.underQuota(key.organizationId, now);
     if (under === true) {
@@ -280,14 +360,14 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
   };
 }
 
-/** OPTIONS: preflight for any origin, or checked against `?key=` / `?embed=` when the URL holds one. */
+/** OPTIONS: preflight for any origin, or checked against `?key=` / `?embed=` (or a preview token) when the URL holds one. */
 export function preflight(ctx: AppContext): RequestHandler {
   return async (req, res) => {
     const origin = req.get('origin');
     const q = req.query as Record<string, unknown>;
     if (origin && (typeof q.key === 'string' || typeof q.embed === 'string')) {
       const cred = await resolveCredential(ctx, req);
-      checkOrigin(ctx, req, cred.key, cred.embed);
+      checkOrigin(ctx, req, cred);
     }
     if (origin) {
       res.setHeader('Access-Control-Allow-Methods', 'GET, HEAD, POST, OPTIONS');
