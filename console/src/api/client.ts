@@ -25,6 +25,7 @@ import type {
   Member,
   Membership,
   Organization,
+  PreviewToken,
   ProblemBody,
   Role,
   Satellite,
@@ -374,6 +375,10 @@ export class ApiClient {
   }
   activity(org: string, before?: string, limit = 50) {
     return this.get<{ events: ActivityEvent[] }>(`/orgs/${seg(org)}/activity`, { before, limit });
+  }
+  /** A short-lived read-only /v1 credential for the live previews (any member). */
+  previewToken(org: string) {
+    return this.post<PreviewToken>(`/orgs/${seg(org)}/preview-token`);
   }
   billing(org: string) {
     return this.get<Billing>(`/orgs/${seg(org)}/billing`);

@@ -236,6 +236,16 @@ export interface Plan {
   name: string;
   monthlyRequests: number;
   priceMonthly: number;
+  /** ISO 4217 code of `priceMonthly`, e.g. "EUR". */
+  currency: string;
+}
+
+/** POST /api/orgs/:org/preview-token: the console's preview credential for `<nadir-track api-key>`. */
+export interface PreviewToken {
+  token: string;
+  expiresAt: string;
+  /** Seconds the token lives, counted by the server (free of this computer's clock). */
+  expiresIn: number;
 }
 
 export interface Billing {

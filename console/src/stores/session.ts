@@ -3,6 +3,7 @@ import { defineStore } from 'pinia';
 import { computed, ref } from 'vue';
 import { api } from '../api/client.ts';
 import type { Membership, Role, SessionInfo, User } from '../api/types.ts';
+import { forgetPreviewTokens } from '../composables/usePreviewToken.ts';
 
 export const useSessionStore = defineStore('session', () => {
   const user = ref<User | null>(null);
@@ -53,6 +54,7 @@ export const useSessionStore = defineStore('session', () => {
 
   /** Forget the user locally (signed out, or the session ended on the server). */
   function clear(sessionEnded = false) {
+    forgetPreviewTokens();
     user.value = null;
     memberships.value = [];
     expired.value = sessionEnded;
