@@ -65,3 +65,16 @@ export function addDays(day: string, n: number): string {
   d.setUTCDate(d.getUTCDate() + n);
   return isoDay(d);
 }
+
+/** "€39", "€4.50": a plan price in its ISO 4217 currency; "39 XYZ" for a code Intl does not know. */
+export function formatPrice(amount: number, currency: string | null | undefined): string {
+  if (!Number.isFinite(amount)) return '—';
+  const code = (currency ?? '').trim().toUpperCase();
+  const digits = Number.isInteger(amount) ? 0 : 2;
+  try {
+    if (!code) throw new RangeError('no currency');
+    return new Intl.NumberFormat('en-GB', { style: 'currency', currency: code, minimumFractionDigits: digits, maximumFractionDigits: 2 }).format(amount);
+  } catch {
+    return `${new Intl.NumberFormat('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: 2 }).format(amount)}${code ? ` ${code}` : ''}`;
+  }
+}

@@ -1,7 +1,8 @@
 /**
  * Plan and billing for the console. Plans and their quotas come from services/quota.ts.
  *
- *   billingOverview(ctx, org) -> { plan, plans: [{ id, name, monthlyRequests, priceMonthly }], subscription }
+ *   billingOverview(ctx, org) -> { plan, plans: [{ id, name, monthlyRequests, priceMonthly, currency }], subscription }
+ *   PLAN_CURRENCY: the ISO 4217 code every plan price is in
  *   startCheckout(ctx, auth, plan) -> { url }
  *
  * No payment provider is wired in yet (PAYMENTS_API_BASE unset in development, demo and tests):
@@ -17,6 +18,9 @@ import { Subscription, type Organization, type Plan } from '../models/index.ts';
 import { recordAudit } from './audit.ts';
 import { PLAN_CATALOG, getQuotaService, planOf } from './quota.ts';
 
+/** Plan prices (services/quota.ts PLAN_CATALOG priceMonthly) are in euros. */
+export const PLAN_CURRENCY = 'EUR';
+
 export interface SubscriptionJson {
   plan: Plan;
   status: string;
@@ -26,7 +30,7 @@ export interface SubscriptionJson {
 
 export interface BillingOverview {
   plan: Plan;
-  plans: Array<{ id: Plan; name: string; monthlyRequests: number; priceMonthly: number }>;
+  plans: Array<{ id: Plan; name: string; monthlyRequests: number; priceMonthly: number; currency: string }>;
   subscription: SubscriptionJson | null;
 }
 
@@ -34,7 +38,7 @@ export async function billingOverview(_ctx: AppContext, org: Organization): Prom
   const sub = await Subscription.findOne({ where: { organizationId: org.id } });
   return {
     plan: org.plan,
-    plans: PLAN_CATALOG.map((p) => ({ id: p.id, name: p.name, monthlyRequests: p.monthlyRequests, priceMonthly: p.priceMonthly })),
+    plans: PLAN_CATALOG.map((p) => ({ id: p.id, name: p.name, monthlyRequests: p.monthlyRequests, priceMonthly: p.priceMonthly, currency: PLAN_CURRENCY })),
     subscription: sub
       ? {
           plan: sub.plan,
