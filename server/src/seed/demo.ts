@@ -9,6 +9,11 @@
  * as a flight-dynamics pipeline would. If data/demo-credentials.json was lost, passwords are
  * reset and the demo keys replaced so the file can be written again.
  *
+ * The first run also writes the activity log of what it made, through services/audit.ts as the
+ * console would, by the people who may do it: the editor registers the satellites and uploads
+ * their first element sets, the admin creates the two keys, the editor creates the embed. Later
+ * runs add no events.
+ *
  *   seedDemo(ctx, { port }) -> { created, credentials, credentialsFile }
  */
 import crypto from 'node:crypto';
@@ -18,6 +23,7 @@ import { fromKeplerian, gmstRad, type ElementSet } from '@nadirline/shared';
 import type { AppContext } from '../context.ts';
 import { ApiKey, Embed, Membership, Organization, Satellite, User, type Role } from '../models/index.ts';
 import { hashPassword } from '../services/accounts.ts';
+import { recordAudit, type AuditInput } from '../services/audit.ts';
 import { getEmbedService } from '../services/embeds.ts';
 import { getKeyService, normalizeOrigin } from '../services/keys.ts';
 import { getSatelliteService } from '../services/satellites.ts';
@@ -150,8 +156,15 @@ export async function seedDemo(
 
   if (!org) org = await Organization.create({ id: DEMO_ORG_ID, name: DEMO_ORG_NAME, plan: 'mission' });
 
+  // What this run made, written to the activity log at the end when the organization is new.
+  const events: AuditInput[] = [];
+  const event = (actor: User | null, e: Omit<AuditInput, 'organizationId' | 'actorUserId'>) => {
+    if (created) events.push({ ...e, organizationId: DEMO_ORG_ID, actorUserId: actor?.id ?? null });
+  };
+
   // -- people ----------------------------------------------------------------------------------
   const users: DemoCredentials['users'] = [];
+  const byRole: Partial<Record<Role, User>> = {};
   let owner: User | null = null;
   for (const p of PEOPLE) {
     let user = await User.findOne({ where: { email: p.email } });
@@ -166,14 +179,19 @@ export async function seedDemo(
     const m = await Membership.findOne({ where: { userId: user.id, organizationId: org.id } });
     if (!m) await Membership.create({ id: `mem_demo_${p.role}`, userId: user.id, organizationId: org.id, role: p.role });
     if (p.role === 'owner') owner = user;
+    byRole[p.role] = user;
     users.push({ role: p.role, email: p.email, password });
   }
+
+  const editor = byRole.editor ?? owner;
+  const admin = byRole.admin ?? owner;
 
   // -- satellites and fresh element sets -------------------------------------------------------
   for (const s of SATELLITES) {
     let sat = await Satellite.findByPk(s.id);
     if (!sat) {
       sat = await Satellite.create({ id: s.id, organizationId: org.id, name: s.name, catalogNumber: String(s.catalogNumber), description: s.description, currentElementSetId: null });
+      event(editor, { action: 'satellite.create', targetType: 'satellite', targetId: sat.id, detail: { name: sat.name } });
     }
     const cached = await sats.current(sat.id);
     const epochMs = Math.floor(now.getTime() / 60_000) * 60_000 - 2 * 3_600_000;
@@ -181,9 +199,15 @@ export async function seedDemo(
     if (!cur || now.getTime() - cur.elementSet.epochMs > 86_400_000) {
       const es = synthesizeElementSet(s, epochMs);
       const { toTle } = await import('@nadirline/shared');
-      const report = await sats.addElementSets(sat, { text: toTle(es).text, format: 'tle' }, { userId: owner?.id ?? null });
+      const report = await sats.addElementSets(sat, { text: toTle(es).text, format: 'tle' }, { userId: editor?.id ?? null });
       const bad = report.report.find((r) => !r.ok);
       if (bad) throw new Error(`demo element set for ${s.name} was refused: ${bad.code}: ${bad.message}`);
+      event(editor, {
+        action: 'element-set.upload',
+        targetType: 'satellite',
+        targetId: sat.id,
+        detail: { satellite: sat.name, how: 'text', accepted: report.accepted, rejected: report.rejected, elementSetIds: report.created.map((c) => c.id) },
+      });
     }
   }
 
@@ -198,6 +222,13 @@ export async function seedDemo(
       return null;
     }
   };
+  const keyEvent = (k: ApiKey) =>
+    event(admin, {
+      action: 'key.create',
+      targetType: 'key',
+      targetId: k.id,
+      detail: { name: k.name, kind: k.kind, lastFour: k.lastFour, origins: k.origins, scopes: k.scopes, rateLimitPerMin: k.rateLimitPerMin },
+    });
   let browserKey = previous?.browserKey;
   const browserRec = await findWorking(browserKey, 'browser');
   if (!browserRec) {
@@ -207,9 +238,10 @@ export async function seedDemo(
       name: 'Demo pages on this machine',
       origins,
       rateLimitPerMin: 600,
-      createdByUserId: owner?.id ?? null,
+      createdByUserId: admin?.id ?? null,
     });
     browserKey = made.secret;
+    keyEvent(made.key);
   } else if (origins.some((o) => !browserRec.origins.includes(o))) {
     await keys.updateKey(browserRec.id, { origins: [...new Set([...browserRec.origins, ...origins])] });
   }
@@ -221,9 +253,10 @@ export async function seedDemo(
       name: 'Demo flight-dynamics pipeline',
       scopes: ['read', 'element-sets:write'],
       rateLimitPerMin: 1200,
-      createdByUserId: owner?.id ?? null,
+      createdByUserId: admin?.id ?? null,
     });
     serverKey = made.secret;
+    keyEvent(made.key);
   }
 
   // -- embed -----------------------------------------------------------------------------------
@@ -236,6 +269,7 @@ export async function seedDemo(
       options: { projection: 'equal-earth', orbitsBehind: 0.5, orbitsAhead: 1, layers: ['footprint', 'terminator', 'graticule', 'labels'], theme: 'auto' },
       apiKeyId: browserRecord.id,
     });
+    event(editor, { action: 'embed.create', targetType: 'embed', targetId: embed.id, detail: { name: embed.name, satelliteIds: embed.satelliteIds, apiKeyId: embed.apiKeyId } });
   } else if (embed.apiKeyId !== browserRecord.id) {
     await getEmbedService(ctx).updateEmbed(org.id, embed.id, { apiKeyId: browserRecord.id });
   }
@@ -247,6 +281,9 @@ export async function seedDemo(
       await keys.revokeKey(k.id);
     }
   }
+
+  // -- activity log (first run only) ------------------------------------------------------------
+  for (const e of events) await recordAudit(ctx, e);
 
   const credentials: DemoCredentials = {
     signInUrl,

@@ -1,0 +1,52 @@
+import fs from 'node:fs';
+import os from 'node:os';
+import path from 'node:path';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { createApp, type NadirlineApp } from '../app.ts';
+import { loadConfig } from '../config.ts';
+import { listActivity } from '../services/audit.ts';
+import { DEMO_ORG_ID, seedDemo } from './demo.ts';
+
+let t: NadirlineApp;
+let dir: string;
+
+beforeAll(async () => {
+  dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-seed-'));
+  t = await createApp(loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'seed.sqlite'), LOG_LEVEL: 'silent', DEMO: 'true', PORT: '8080' }));
+});
+afterAll(async () => {
+  await t?.close();
+  fs.rmSync(dir, { recursive: true, force: true });
+});
+
+describe('the demo seed’s activity log', () => {
+  it('records what the first run made, by the people whose role allows it, oldest first', async () => {
+    await seedDemo(t.context, { port: 8080 });
+    const events = (await listActivity(t.context, DEMO_ORG_ID, { limit: 200 })).reverse();
+    const lines = events.map((e) => `${e.action} by ${e.actor && 'name' in e.actor ? e.actor.name : '?'}`);
+    expect(lines).toEqual([
+      ...['Wren Pathfinder', 'Orrery-1', 'Halcyon Relay', 'Tessera GEO'].flatMap(() => ['satellite.create by Ilse Harrow', 'element-set.upload by Ilse Harrow']),
+      'key.create by Tobias Venn',
+      'key.create by Tobias Venn',
+      'embed.create by Ilse Harrow',
+    ]);
+    expect(events.filter((e) => e.action === 'satellite.create').map((e) => (e.detail as { name: string }).name)).toEqual(['Wren Pathfinder', 'Orrery-1', 'Halcyon Relay', 'Tessera GEO']);
+    const upload = events.find((e) => e.action === 'element-set.upload');
+    expect(upload?.detail).toMatchObject({ satellite: 'Wren Pathfinder', accepted: 1, rejected: 0 });
+    expect(events.filter((e) => e.action === 'key.create').map((e) => (e.detail as { kind: string }).kind)).toEqual(['browser', 'server']);
+  });
+
+  it('keeps no key text in the events', async () => {
+    const creds = JSON.parse(fs.readFileSync(path.join(dir, 'demo-credentials.json'), 'utf8')) as { browserKey: string; serverKey: string };
+    const text = JSON.stringify(await listActivity(t.context, DEMO_ORG_ID, { limit: 200 }));
+    expect(text).not.toContain(creds.browserKey);
+    expect(text).not.toContain(creds.serverKey);
+  });
+
+  it('adds no events on a second run', async () => {
+    const before = (await listActivity(t.context, DEMO_ORG_ID, { limit: 200 })).length;
+    const again = await seedDemo(t.context, { port: 8080 });
+    expect(again.created).toBe(false);
+    expect((await listActivity(t.context, DEMO_ORG_ID, { limit: 200 })).length).toBe(before);
+  });
+});
