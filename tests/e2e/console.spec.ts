@@ -229,6 +229,58 @@ describe('the console against the real server', () => {
     await framed.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.mark'), undefined, { timeout: 20_000 });
   });
 
+  it('previews a satellite live for a viewer, read with the console preview token and no embed', async () => {
+    const { page, org } = await signInAs('viewer');
+    const reads: string[] = [];
+    page.on('request', (r) => {
+      if (r.url().includes('/v1/')) reads.push(r.url());
+    });
+    const sat = server.credentials.satellites.find((s) => s.name === 'Orrery-1') ?? server.credentials.satellites[0]!;
+    await page.goto(`${server.url}/o/${org}/satellites/${sat.id}`);
+    await page.getByRole('heading', { name: 'Derived orbit' }).waitFor();
+    await page.waitForFunction(() => {
+      const root = document.querySelector('nadir-track')?.shadowRoot;
+      return !!root?.querySelector('.mark') && (root.querySelector('path.future')?.getAttribute('d') ?? '').length > 50;
+    }, undefined, { timeout: 20_000 });
+    await shot(page, 'viewer-satellite-preview');
+    const trackReads = reads.filter((u) => u.includes(`/v1/satellites/${sat.id}/track`));
+    expect(trackReads.length).toBeGreaterThan(0);
+    for (const u of reads) {
+      expect(new URL(u).searchParams.get('key') ?? '').toMatch(/^nlp_/);
+      expect(new URL(u).searchParams.has('embed')).toBe(false);
+    }
+    // The same token is refused from a page of another origin.
+    const token = new URL(trackReads[0]!).searchParams.get('key')!;
+    const elsewhere = await fetch(`${server.url}/v1/satellites/${sat.id}?key=${encodeURIComponent(token)}`, { headers: { Origin: 'https://pages.example.org' } });
+    expect(elsewhere.status).toBe(403);
+  });
+
+  it('previews an unsaved embed configuration in the builder before anything is saved', async () => {
+    const { page, org } = await signInAs('editor');
+    const before = (await (await page.request.get(`${server.url}/api/orgs/${org}/embeds`)).json()) as { embeds: unknown[] };
+    await page.goto(`${server.url}/o/${org}/embeds/new`);
+    const chosen = server.credentials.satellites.find((s) => s.name === 'Tessera GEO')!;
+    await page.getByRole('checkbox', { name: 'Tessera GEO' }).waitFor();
+    const boxes = page.getByRole('group', { name: 'Satellites', exact: true }).getByRole('checkbox');
+    for (let i = 0; i < (await boxes.count()); i++) await boxes.nth(i).uncheck();
+    await page.getByRole('checkbox', { name: 'Tessera GEO' }).check();
+    await page.getByRole('radio', { name: /Globe/ }).click();
+    await page.waitForFunction(
+      (id) => {
+        const el = document.querySelector('nadir-track');
+        const root = el?.shadowRoot;
+        return el?.getAttribute('satellites') === id && el.getAttribute('projection') === 'globe' && !!root?.querySelector('.mark');
+      },
+      chosen.id,
+      { timeout: 20_000 },
+    );
+    expect(await page.locator('nadir-track').getAttribute('api-key')).toMatch(/^nlp_/);
+    expect(page.url()).toMatch(/\/embeds\/new$/);
+    await shot(page, 'builder-unsaved-preview');
+    const after = (await (await page.request.get(`${server.url}/api/orgs/${org}/embeds`)).json()) as { embeds: unknown[] };
+    expect(after.embeds.length).toBe(before.embeds.length);
+  });
+
   it('offers a viewer no key or member actions, and the server refuses them anyway', async () => {
     const { page, org } = await signInAs('viewer');
     await page.goto(`${server.url}/o/${org}/keys`);
