@@ -74,7 +74,9 @@ describe('POST /api/orgs/:org/preview-token', () => {
     const before = (await owner.browser.get(`/api/orgs/${orgId}/keys`).expect(200)).body.keys.length as number;
     const res = await viewer.browser.post(`/api/orgs/${orgId}/preview-token`).expect(200);
     expect(res.body.token).toMatch(/^nlp_[A-Za-z0-9_-]+\.[A-Za-z0-9_-]+$/);
-    expect(res.body.expiresIn).toBe(PREVIEW_TOKEN_TTL_MS / 1000);
+    // `exp` is whole seconds, rounded down: the token lives 15 minutes less under a second.
+    expect(res.body.expiresIn).toBeGreaterThanOrEqual(PREVIEW_TOKEN_TTL_MS / 1000 - 1);
+    expect(res.body.expiresIn).toBeLessThanOrEqual(PREVIEW_TOKEN_TTL_MS / 1000);
     const left = Date.parse(res.body.expiresAt) - Date.now();
     expect(left).toBeGreaterThan(PREVIEW_TOKEN_TTL_MS - 5_000);
     expect(left).toBeLessThanOrEqual(PREVIEW_TOKEN_TTL_MS);
@@ -187,7 +189,14 @@ describe('a preview token on /v1', () => {
     const first = await v1('/v1/satellites', a).expect(200);
     expect(first.headers['ratelimit-policy']).toContain(`q=${PREVIEW_RATE_LIMIT_PER_MIN}`);
     const remaining = (res: request.Response) => Number(/r=(\d+)/.exec(String(res.headers['ratelimit']))?.[1]);
-    const second = await v1('/v1/satellites', b).expect(200);
-    expect(remaining(second)).toBe(remaining(first) - 1);
+    // Another token of the same organization takes the next request of the same budget. (A pair
+    // that straddles the limiter's minute boundary is measured again.)
+    let pair: [number, number] = [NaN, NaN];
+    for (let attempt = 0; attempt < 3; attempt++) {
+      const one = remaining(attempt === 0 ? first : await v1('/v1/satellites', a).expect(200));
+      pair = [one, remaining(await v1('/v1/satellites', b).expect(200))];
+      if (pair[1] === pair[0] - 1) break;
+    }
+    expect(pair[1]).toBe(pair[0] - 1);
   });
 });

@@ -11,7 +11,7 @@ export function previewRoutes(ctx: AppContext): ApiRoutes {
   r.post('/orgs/:org/preview-token', 'preview.issue', (_req, res) => {
     const now = Date.now();
     const { token, expiresAt } = issuePreviewToken(ctx.config.sessionSecret, orgAuth(res).organization.id, now);
-    res.json({ token, expiresAt: expiresAt.toISOString(), expiresIn: Math.round((expiresAt.getTime() - now) / 1000) });
+    res.json({ token, expiresAt: expiresAt.toISOString(), expiresIn: Math.floor((expiresAt.getTime() - now) / 1000) });
   });
 
   return r;
