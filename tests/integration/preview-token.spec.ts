@@ -5,7 +5,7 @@
  */
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { issuePreviewToken, PREVIEW_RATE_LIMIT_PER_MIN, PREVIEW_TOKEN_TTL_MS } from '../../server/src/services/preview-token.ts';
+import { issuePreviewToken, PREVIEW_RATE_LIMIT_PER_MIN, PREVIEW_TOKEN_TTL_MS } from '@nadirline/server/services/preview-token.ts';
 import { signUpAndVerify, type Person, type TestApp, startTestApp } from './console-api.harness.ts';
 
 /** PUBLIC_URL of the harness app: the console's own origin. */
