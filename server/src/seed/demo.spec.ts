@@ -6,6 +6,9 @@ import { createApp, type NadirlineApp } from '../app.ts';
 import { loadConfig } from '../config.ts';
 import { listActivity } from '../services/audit.ts';
 import { DEMO_ORG_ID, seedDemo } from './demo.ts';
+import { Body, Equator, Observer } from 'astronomy-engine';
+import type { ElementSet } from '@nadirline/shared';
+import { ElementSetRecord, Satellite } from '../models/index.ts';
 
 let t: NadirlineApp;
 let dir: string;
@@ -48,5 +51,20 @@ describe('the demo seed’s activity log', () => {
     const again = await seedDemo(t.context, { port: 8080 });
     expect(again.created).toBe(false);
     expect((await listActivity(t.context, DEMO_ORG_ID, { limit: 200 })).length).toBe(before);
+  });
+});
+
+describe('the demo satellites', () => {
+  it('puts Wren Pathfinder on a dawn-dusk orbit: its ascending node 90 deg east of the Sun (astronomy-engine cross-check)', async () => {
+    await seedDemo(t.context, { port: 8080 });
+    const wren = await Satellite.findByPk('sat_demo_wren');
+    const set = await ElementSetRecord.findByPk(wren!.currentElementSetId!);
+    const es = set!.parsed as ElementSet;
+    // The Sun's apparent right ascension at the set's epoch, from an independent library.
+    const sun = Equator(Body.Sun, new Date(es.epochMs), new Observer(0, 0, 0), true, true);
+    const sunRaDeg = sun.ra * 15;
+    const separation = (((es.raanDeg - sunRaDeg) % 360) + 360) % 360;
+    // Local time of the ascending node 18:00 means 90 deg; a degree of slack covers mean vs apparent Sun.
+    expect(Math.abs(separation - 90)).toBeLessThan(1);
   });
 });

@@ -19,7 +19,7 @@
 import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
-import { fromKeplerian, gmstRad, type ElementSet } from '@nadirline/shared';
+import { fromKeplerian, gmstRad, subsolarPoint, type ElementSet } from '@nadirline/shared';
 import type { AppContext } from '../context.ts';
 import { ApiKey, Embed, Membership, Organization, Satellite, User, type Role } from '../models/index.ts';
 import { hashPassword } from '../services/accounts.ts';
@@ -58,7 +58,13 @@ const SATELLITES: DemoSatellite[] = [
     description: 'Student-built 3U cubesat in a sun-synchronous dawn-dusk orbit at about 520 km (invented demo satellite).',
     catalogNumber: 99_901,
     intlDesignator: '24901A',
-    elements: () => ({ semiMajorAxisKm: EARTH_RADIUS_KM + 520, eccentricity: 0.0011, inclinationDeg: 97.5, raanDeg: 41.2, argPerigeeDeg: 88.0, meanAnomalyDeg: 272.1, bstar: 0.00012 }),
+    // Dawn-dusk: the ascending node sits 90 deg east of the Sun (local time of the node 18:00).
+    // The Sun's right ascension is GMST plus the sub-solar longitude.
+    elements: (epochMs) => {
+      const sunRaDeg = (gmstRad(epochMs) * 180) / Math.PI + subsolarPoint(epochMs).lonDeg;
+      const raanDeg = (((sunRaDeg + 90) % 360) + 360) % 360;
+      return { semiMajorAxisKm: EARTH_RADIUS_KM + 520, eccentricity: 0.0011, inclinationDeg: 97.5, raanDeg, argPerigeeDeg: 88.0, meanAnomalyDeg: 272.1, bstar: 0.00012 };
+    },
   },
   {
     id: 'sat_demo_orrery',
