@@ -141,6 +141,33 @@ describe('<nadir-track> on the science centre example', () => {
     await w.ctx.close();
   });
 
+  it('says the map has no key when api-key is emptied, and then asks nothing and reports it once', async () => {
+    const w = await open(`${server.url}/examples/science-centre.html`, {
+      before: (p) => p.addInitScript(() => {
+        const seen: unknown[] = [];
+        (window as unknown as { nadirErrors: unknown[] }).nadirErrors = seen;
+        document.addEventListener('nadir-error', (e) => seen.push((e as CustomEvent).detail));
+      }),
+    });
+    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot);
+    await w.page.evaluate(() => {
+      (window as unknown as { nadirErrors: unknown[] }).nadirErrors.length = 0;
+      document.querySelector('nadir-track')!.setAttribute('api-key', '');
+    });
+    expect(await cardText(w.page)).toContain('This map has no key');
+    const asked = w.v1.length;
+    await w.page.waitForTimeout(3000);
+    expect(w.v1.length).toBe(asked);
+    const errors = await w.page.evaluate(() => (window as unknown as { nadirErrors: { code: string; fatal: boolean }[] }).nadirErrors);
+    expect(errors).toEqual([expect.objectContaining({ code: 'no-key', fatal: true, retryMs: null })]);
+    // no raw satellite ids where names would be
+    const chips = await w.page.evaluate(() => Array.from(document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll('.chip')).map((c) => c.textContent ?? ''));
+    expect(chips.filter((t) => /sat_/.test(t))).toEqual([]);
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'no-key-1280.png') });
+    expect(w.pageErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
   it('shows a wrong origin in words inside the element', async () => {
     // another loopback origin that the demo browser key does not list
     const other = `http://localhost:${server.port === 5999 ? 5998 : 5999}`;

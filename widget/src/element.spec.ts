@@ -94,6 +94,37 @@ describe('<nadir-track>', () => {
     expect(events.find((e) => e.type === 'nadir-error')?.detail).toMatchObject({ code: 'origin-not-allowed', fatal: true });
   });
 
+  it('says the map has no key, makes no request and fires nadir-error once when api-key is empty', async () => {
+    const calls = installFetch();
+    const { root, events } = mount({ satellites: 'sat_a,sat_b', 'api-base': 'https://api.test', 'api-key': '' });
+    await settle(300);
+    expect(root().querySelector('.card')?.textContent).toContain('This map has no key');
+    expect(root().querySelector('.card')?.textContent).toContain('api-key attribute');
+    expect(calls.filter((c) => c.startsWith('/v1/'))).toEqual([]);
+    expect(events.filter((e) => e.type === 'nadir-error').map((e) => e.detail.code)).toEqual(['no-key']);
+    expect(root().querySelectorAll('.chip')).toHaveLength(0);
+    expect(root().textContent).not.toContain('sat_a');
+  });
+
+  it('shows a neutral placeholder, never the raw id, in a chip whose name has not come yet', async () => {
+    installFetch();
+    const { root } = mount({ satellites: 'sat_a', 'api-base': 'https://api.test', 'api-key': 'k' });
+    const chip = root().querySelector('.chip')!;
+    expect(chip.classList.contains('pending')).toBe(true);
+    expect(chip.textContent).not.toContain('sat_a');
+    await settle(200);
+    expect(root().querySelector('.chip')!.textContent).toContain('Sat sat_a');
+  });
+
+  it('hides the chips when the key is refused, so no raw ids show', async () => {
+    installFetch({ status: 401, code: 'unauthenticated' });
+    const { root, events } = mount({ satellites: 'sat_a,sat_b', 'api-base': 'https://api.test', 'api-key': 'k' });
+    await settle(300);
+    expect(root().querySelectorAll('.chip')).toHaveLength(0);
+    expect(root().textContent).not.toContain('sat_a');
+    expect(events.filter((e) => e.type === 'nadir-error')).toHaveLength(1);
+  });
+
   it('says in words where the satellite is in a polite live region', async () => {
     installFetch();
     const { root } = mount({ satellites: 'a', 'api-base': 'https://api.test', 'api-key': 'k' });

@@ -5,19 +5,31 @@
  */
 import type { Sample } from './track.ts';
 
-/** Problem codes the widget knows words for; anything else is kept as received. */
+/**
+ * Problem codes: the API's own (`invalid-key`, `no-element-set`, ...; see /docs/problems) as
+ * received, or one of the widget's codes for conditions no answer names (WIDGET_CODES in
+ * messages.ts: `no-key`, `network`, `stale-element-set`, ...).
+ */
 export type ProblemCode =
+  | 'unauthenticated'
   | 'invalid-key'
+  | 'key-expired'
+  | 'key-revoked'
+  | 'key-rotated'
   | 'origin-not-allowed'
   | 'quota-exceeded'
   | 'rate-limited'
   | 'not-found'
-  | 'stale-element-set'
+  | 'no-element-set'
   | 'decayed'
-  | 'network'
-  | 'bad-answer'
+  | 'propagation-failed'
+  | 'no-key'
   | 'no-satellites'
-  | 'no-elements'
+  | 'stale-element-set'
+  | 'network'
+  | 'server'
+  | 'bad-answer'
+  | 'widget'
   | (string & {});
 
 export interface ApiProblem {
@@ -95,6 +107,10 @@ export interface Pass {
   culmination: PassEvent & { elevation: number; rangeKm: number };
   set: PassEvent;
   visible: boolean;
+  /** Already under way at the window start: `rise` is the window start, not a true rise. */
+  inProgressAtStart?: boolean;
+  /** Still under way at the window end: `set` is the window end, not a true set. */
+  inProgressAtEnd?: boolean;
 }
 export interface EmbedConfig {
   id: string;

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { backoffMs, noticeFor } from './messages.ts';
+import { actionFor, backoffMs, noticeFor, WIDGET_CODES } from './messages.ts';
 
 describe('noticeFor', () => {
   it('tells the site owner what to do about a key Nadirline does not accept, and stops', () => {
@@ -54,10 +54,58 @@ describe('noticeFor', () => {
     expect(noticeFor({ code: 'rate-limited', status: 429 }, { attempt: 2 }).retryMs).toBe(4000);
   });
 
-  it('shows an unknown problem code in words with a retry rather than nothing', () => {
-    const n = noticeFor({ code: 'teapot', status: 418 });
-    expect(n.text).toContain('teapot, 418');
+  it('shows an unknown server-side problem code in words with a retry rather than nothing', () => {
+    const n = noticeFor({ code: 'overheated', status: 502 });
+    expect(n.text).toContain('overheated, 502');
     expect(n.retryMs).toBeGreaterThan(0);
+  });
+
+  it('does not retry an unknown 4xx answer, which would only get the same answer again', () => {
+    const n = noticeFor({ code: 'teapot', status: 418 }, { satellite: 'Kestrel-9' });
+    expect(n.text).toContain('teapot, 418');
+    expect(n.fatal).toBe(false);
+    expect(n.retryMs).toBeUndefined();
+    const refused = noticeFor({ code: 'something-new', status: 401 });
+    expect(refused.fatal).toBe(true);
+    expect(refused.retryMs).toBeUndefined();
+  });
+
+  it('tells the page owner which attribute to set when the map has no key', () => {
+    const n = noticeFor({ code: 'no-key', status: 0 });
+    expect(n.heading).toBe('This map has no key');
+    expect(n.text).toMatch(/api-key attribute/);
+    expect(n.text).toMatch(/embed attribute/);
+    expect(n.fatal).toBe(true);
+    expect(n.retryMs).toBeUndefined();
+  });
+
+  it.each(['unauthenticated', 'key-expired', 'key-revoked', 'key-rotated'])('stops the map without retrying on %s', (code) => {
+    const n = noticeFor({ code, status: 401 });
+    expect(n).toMatchObject({ code, fatal: true, severity: 'error' });
+    expect(n.retryMs).toBeUndefined();
+    expect(n.heading).not.toBe('Something went wrong');
+  });
+
+  it('uses the API code for a satellite without an element set', () => {
+    expect(noticeFor({ code: 'no-element-set', status: 422 }, { satellite: 'Kite' })).toMatchObject({ heading: 'No orbit data yet', fatal: false });
+  });
+});
+
+describe('actionFor', () => {
+  it('decides by status: 401 and 403 stop the map, 429 waits, other 4xx stop one satellite, the rest retry', () => {
+    expect(actionFor({ code: 'invalid-key', status: 401 })).toBe('stop-map');
+    expect(actionFor({ code: 'forbidden', status: 403 })).toBe('stop-map');
+    expect(actionFor({ code: 'no-key', status: 0 })).toBe('stop-map');
+    expect(actionFor({ code: 'quota-exceeded', status: 429 })).toBe('wait');
+    expect(actionFor({ code: 'rate-limited', status: 429 })).toBe('wait');
+    expect(actionFor({ code: 'not-found', status: 404 })).toBe('stop-satellite');
+    expect(actionFor({ code: 'decayed', status: 422 })).toBe('stop-satellite');
+    expect(actionFor({ code: 'unavailable', status: 503 })).toBe('retry');
+    expect(actionFor({ code: 'network', status: 0 })).toBe('retry');
+  });
+
+  it('lists the widget’s own codes, none of which the API uses', () => {
+    expect([...WIDGET_CODES]).toEqual(['no-key', 'no-satellites', 'stale-element-set', 'network', 'server', 'bad-answer', 'widget']);
   });
 });
 

@@ -45,112 +45,127 @@ function secondsWords(ms: number): string {
   return `${m} minute${m === 1 ? '' : 's'}`;
 }
 
+/**
+ * What the widget does about a problem, decided by the HTTP status first (one table, no
+ * precedence traps): 401 and 403 stop the map for good, 429 waits, other 4xx answers stop the
+ * one satellite they concern (or the map when they concern the embed), and 5xx, network and
+ * unreadable answers are retried with backoff.
+ */
+export type ProblemAction = 'stop-map' | 'stop-satellite' | 'wait' | 'retry';
+
+export function actionFor(p: Pick<ApiProblem, 'code' | 'status'>): ProblemAction {
+  if (p.code === 'quota-exceeded' || p.code === 'rate-limited' || p.status === 429) return 'wait';
+  if (WIDGET_FATAL.has(p.code) || p.status === 401 || p.status === 403) return 'stop-map';
+  if (p.status >= 400 && p.status < 500) return 'stop-satellite';
+  return 'retry';
+}
+
+/**
+ * Codes the widget makes up itself, for conditions no API answer names (the README lists them
+ * next to the API's problem codes). Everything else in `code` is the API's own problem code.
+ */
+export const WIDGET_CODES = ['no-key', 'no-satellites', 'stale-element-set', 'network', 'server', 'bad-answer', 'widget'] as const;
+const WIDGET_FATAL = new Set<string>(['no-key', 'no-satellites']);
+
+const KEY_HELP = 'The site owner can set a current browser key in the api-key attribute, from the Nadirline console.';
+
 export function noticeFor(p: Pick<ApiProblem, 'code' | 'status' | 'retryAfterS'>, ctx: NoticeContext = {}): Notice {
   const sat = ctx.satellite ? `“${ctx.satellite}”` : 'this satellite';
+  const Sat = ctx.satellite ? `“${ctx.satellite}”` : 'This satellite';
   const attempt = ctx.attempt ?? 1;
+  const stop = (heading: string, text: string, severity: Severity = 'error'): Notice => ({ code: p.code, severity, heading, text, fatal: true });
+  const satNotice = (heading: string, text: string, severity: Severity = 'error'): Notice => ({ code: p.code, severity, heading, text, fatal: false });
   switch (p.code) {
+    case 'no-key':
+    case 'unauthenticated':
+      return stop(
+        'This map has no key',
+        'This map has no key, so Nadirline cannot show it. The page owner can set the api-key attribute of <nadir-track> to a browser key from the Nadirline console, or set the embed attribute to a saved embed’s id.',
+      );
     case 'invalid-key':
-      return {
-        code: p.code,
-        severity: 'error',
-        heading: 'Map key not accepted',
-        text: 'Nadirline did not accept the key this map uses. The site owner can check the api-key attribute or create a new browser key in the Nadirline console.',
-        fatal: true,
-      };
+      return stop('Map key not accepted', `Nadirline did not accept the key this map uses. ${KEY_HELP}`);
+    case 'key-expired':
+      return stop('Map key expired', `The key this map uses has expired. ${KEY_HELP}`);
+    case 'key-revoked':
+      return stop('Map key withdrawn', `The key this map uses has been revoked. ${KEY_HELP}`);
+    case 'key-rotated':
+      return stop('Map key replaced', `The key this map uses was replaced by a new one. ${KEY_HELP}`);
     case 'origin-not-allowed':
-      return {
-        code: p.code,
-        severity: 'error',
-        heading: 'Not allowed on this site',
-        text: `This map’s key is not allowed on ${ctx.origin ?? 'this site'}. The site owner can add this address to the key’s allowed origins in the Nadirline console.`,
-        fatal: true,
-      };
+      return stop(
+        'Not allowed on this site',
+        `This map’s key is not allowed on ${ctx.origin ?? 'this site'}. The site owner can add this address to the key’s allowed origins in the Nadirline console.`,
+      );
     case 'quota-exceeded': {
       const retryMs = (p.retryAfterS ?? 15 * 60) * 1000;
       return {
-        code: p.code,
-        severity: 'error',
-        heading: 'Allowance used up',
-        text: `This site has used its Nadirline allowance for now. The map will try again in ${secondsWords(retryMs)}.`,
-        fatal: true,
+        ...stop('Allowance used up', `This site has used its Nadirline allowance for now. The map will try again in ${secondsWords(retryMs)}.`),
         retryMs,
       };
     }
     case 'rate-limited': {
       const retryMs = Math.max(1000, (p.retryAfterS ?? 0) * 1000 || backoffMs(attempt));
-      return {
-        code: p.code,
-        severity: 'warning',
-        heading: 'Busy for a moment',
-        text: `Too many requests just now. Trying again in ${secondsWords(retryMs)}.`,
-        fatal: false,
-        retryMs,
-      };
+      return { ...satNotice('Busy for a moment', `Too many requests just now. Trying again in ${secondsWords(retryMs)}.`, 'warning'), retryMs };
     }
     case 'not-found':
-      return {
-        code: p.code,
-        severity: 'error',
-        heading: 'Satellite not found',
-        text: `Nadirline does not know ${sat}, or this key may not show it. The site owner can check the satellites attribute.`,
-        fatal: false,
-      };
+      return satNotice('Satellite not found', `Nadirline does not know ${sat}, or this key may not show it. The site owner can check the satellites attribute.`);
     case 'stale-element-set':
-      return {
-        code: p.code,
-        severity: 'warning',
-        heading: 'Old orbit data',
-        text: `The orbit data for ${sat} is ${ctx.ageDays === undefined ? 'out of date' : `${ageWords(ctx.ageDays)} old`}, so its position may be off by many kilometres.`,
-        fatal: false,
-      };
-    case 'no-elements':
-      return {
-        code: p.code,
-        severity: 'warning',
-        heading: 'No orbit data yet',
-        text: `${ctx.satellite ? `“${ctx.satellite}”` : 'This satellite'} has no element set yet, so it cannot be drawn. The satellite’s team can upload one in the Nadirline console.`,
-        fatal: false,
-      };
+      return satNotice(
+        'Old orbit data',
+        `The orbit data for ${sat} is ${ctx.ageDays === undefined ? 'out of date' : `${ageWords(ctx.ageDays)} old`}, so its position may be off by many kilometres.`,
+        'warning',
+      );
+    case 'no-element-set':
+      return satNotice(
+        'No orbit data yet',
+        `${Sat} has no element set yet, so it cannot be drawn. The satellite’s team can upload one in the Nadirline console.`,
+        'warning',
+      );
     case 'decayed':
-      return {
-        code: p.code,
-        severity: 'error',
-        heading: 'No longer in orbit',
-        text: `${ctx.satellite ? `“${ctx.satellite}”` : 'This satellite'} appears to have re-entered or its orbit can no longer be computed${ctx.ageDays === undefined ? '' : ` (orbit data ${ageWords(ctx.ageDays)} old)`}.`,
-        fatal: false,
-      };
+      return satNotice(
+        'No longer in orbit',
+        `${Sat} appears to have re-entered or its orbit can no longer be computed${ctx.ageDays === undefined ? '' : ` (orbit data ${ageWords(ctx.ageDays)} old)`}.`,
+      );
+    case 'propagation-failed':
+      return satNotice('Position not available', `Nadirline could not work out where ${sat} is from its element set. The satellite’s team can check its latest upload.`);
+    case 'no-satellites':
+      return stop(
+        'Nothing to show yet',
+        'No satellites are set for this map. The site owner can list satellite ids in the satellites attribute or choose an embed.',
+        'info',
+      );
     case 'network':
     case 'server':
+    case 'internal':
+    case 'unavailable':
     case 'bad-answer': {
       const retryMs = backoffMs(attempt);
       const kept = ctx.dataTime ? ` Showing what was known at ${ctx.dataTime}, marked as out of date.` : '';
       return {
-        code: p.code,
-        severity: 'warning',
-        heading: p.code === 'network' ? 'No connection' : 'Nadirline did not answer properly',
-        text: `${p.code === 'network' ? 'Cannot reach Nadirline.' : 'The Nadirline service had a problem.'}${kept} Trying again in ${secondsWords(retryMs)}.`,
-        fatal: false,
+        ...satNotice(
+          p.code === 'network' ? 'No connection' : 'Nadirline did not answer properly',
+          `${p.code === 'network' ? 'Cannot reach Nadirline.' : 'The Nadirline service had a problem.'}${kept} Trying again in ${secondsWords(retryMs)}.`,
+          'warning',
+        ),
         retryMs,
       };
     }
-    case 'no-satellites':
-      return {
-        code: p.code,
-        severity: 'info',
-        heading: 'Nothing to show yet',
-        text: 'No satellites are set for this map. The site owner can list satellite ids in the satellites attribute or choose an embed.',
-        fatal: true,
-      };
     default: {
-      const retryMs = backoffMs(attempt);
-      return {
-        code: p.code,
-        severity: 'error',
-        heading: 'Something went wrong',
-        text: `Nadirline answered with an unexpected problem (${p.code}${p.status ? `, ${p.status}` : ''}). Trying again in ${secondsWords(retryMs)}.`,
-        fatal: false,
-        retryMs,
-      };
+      const what = `${p.code}${p.status ? `, ${p.status}` : ''}`;
+      switch (actionFor(p)) {
+        case 'stop-map':
+          return p.status === 403
+            ? stop('Not allowed', `Nadirline refused this map’s requests (${what}). The site owner can check the key in the Nadirline console.`)
+            : stop('Map key not accepted', `Nadirline refused this map’s requests (${what}). ${KEY_HELP}`);
+        case 'stop-satellite':
+          return satNotice('Satellite not shown', `Nadirline could not give the orbit of ${sat} (${what}).`);
+        default: {
+          const retryMs = backoffMs(attempt);
+          return {
+            ...satNotice('Something went wrong', `Nadirline answered with an unexpected problem (${what}). Trying again in ${secondsWords(retryMs)}.`),
+            retryMs,
+          };
+        }
+      }
     }
   }
 }

@@ -10,7 +10,19 @@ interface Call {
 }
 
 /** A fake /v1 that answers from a table; `down` makes every request fail like a lost network. */
-function fakeApi(opts: { key?: string; down?: () => boolean; missing?: string[]; stale?: string[]; periodMin?: number } = {}) {
+function fakeApi(
+  opts: {
+    key?: string;
+    down?: () => boolean;
+    missing?: string[];
+    stale?: string[];
+    periodMin?: number;
+    /** Every answer is this problem while it returns one. */
+    refuse?: () => { status: number; code?: string } | null;
+    /** Satellites whose answer says they have no element set (derived: null, 422 elsewhere). */
+    noSet?: string[];
+  } = {},
+) {
   const calls: Call[] = [];
   const json = (body: unknown, status = 200, headers: Record<string, string> = {}) =>
     new Response(JSON.stringify(body), { status, headers: { 'content-type': status < 400 ? 'application/json' : 'application/problem+json', ...headers } });
@@ -18,6 +30,8 @@ function fakeApi(opts: { key?: string; down?: () => boolean; missing?: string[];
     const u = new URL(input);
     calls.push({ path: u.pathname, q: u.searchParams });
     if (opts.down?.()) throw new TypeError('Failed to fetch');
+    const refused = opts.refuse?.();
+    if (refused) return json({ title: 'Refused', status: refused.status, ...(refused.code ? { code: refused.code } : {}) }, refused.status);
     const key = u.searchParams.get('key');
     if (opts.key && key !== opts.key) return json({ type: 'about:blank', title: 'Invalid key', status: 401, code: 'invalid-key' }, 401);
     const m = u.pathname.match(/^\/v1\/satellites\/([^/]+)(?:\/(\w+))?$/);
@@ -26,6 +40,7 @@ function fakeApi(opts: { key?: string; down?: () => boolean; missing?: string[];
     if (!m) return json({ title: 'no', status: 404, code: 'not-found' }, 404);
     const id = m[1]!;
     if (opts.missing?.includes(id)) return json({ title: 'Not found', status: 404, code: 'not-found' }, 404);
+    if (opts.noSet?.includes(id)) return m[2] ? json({ title: 'No set', status: 422, code: 'no-element-set' }, 422) : json({ id, name: `Sat ${id}`, derived: null });
     if (!m[2]) return json({ id, name: `Sat ${id}` });
     if (m[2] === 'elements')
       return json({ epoch: '2026-03-04T00:00:00Z', periodMin: opts.periodMin ?? 90, semiMajorAxisKm: 6780, inclinationDeg: 51.6, ageDays: opts.stale?.includes(id) ? 21 : 0.5, stale: !!opts.stale?.includes(id) });
@@ -254,6 +269,108 @@ describe('Tracker', () => {
     const reads = fake.calls.slice(1);
     expect(reads.length).toBeGreaterThan(2);
     expect(reads.every((c) => c.q.get('embed') === 'e7' && !c.q.has('key'))).toBe(true);
+    t.dispose();
+  });
+
+  it('says the map has no key, asks nothing and reports it once when neither api-key nor embed is set', async () => {
+    const fake = fakeApi();
+    const { t, events } = make(fake, { apiKey: '' });
+    t.resume();
+    await advance(10 * 60_000);
+    expect(fake.calls).toHaveLength(0);
+    expect(t.state.fatal).toMatchObject({ code: 'no-key', heading: 'This map has no key', fatal: true });
+    expect(t.state.fatal?.text).toContain('api-key attribute');
+    expect(t.state.fatal?.retryMs).toBeUndefined();
+    expect(events).toEqual([{ type: 'error', detail: expect.objectContaining({ code: 'no-key', fatal: true, retryMs: null, satellite: null }) }]);
+    t.dispose();
+  });
+
+  it.each([
+    ['unauthenticated', 401],
+    ['key-expired', 401],
+    ['key-revoked', 401],
+    ['key-rotated', 401],
+    ['browser-key-read-only', 403],
+    [undefined, 401],
+  ])('stops for good on a %s %i answer, with one nadir-error for all satellites and no retry', async (code, status) => {
+    const fake = fakeApi({ refuse: () => ({ status, ...(code ? { code } : {}) }) });
+    const { t, events } = make(fake);
+    t.resume();
+    await advance(10);
+    const n = fake.calls.length;
+    await advance(30 * 60_000);
+    expect(fake.calls.length).toBe(n);
+    expect(t.state.fatal?.fatal).toBe(true);
+    expect(t.state.fatal?.heading).not.toBe('Something went wrong');
+    expect(events.filter((e) => e.type === 'error')).toHaveLength(1);
+    expect(events[0]).toMatchObject({ type: 'error', detail: { status, fatal: true, retryMs: null } });
+    t.dispose();
+  });
+
+  it('reports a server that keeps failing once, not once per satellite or per retry, and again only after it recovered', async () => {
+    let failing = true;
+    const fake = fakeApi({ refuse: () => (failing ? { status: 503, code: 'unavailable' } : null) });
+    const { t, events } = make(fake, { attrs: { satellites: 'a,b,c' } });
+    t.resume();
+    await advance(5 * 60_000); // many rounds of backoff
+    const errors = () => events.filter((e) => e.type === 'error');
+    expect(fake.calls.length).toBeGreaterThan(20);
+    expect(errors()).toHaveLength(1);
+    expect(errors()[0]!.detail).toMatchObject({ code: 'unavailable', status: 503, fatal: false, satellite: null });
+    failing = false;
+    await advance(3 * 60_000);
+    expect(t.state.transient).toBeNull();
+    failing = true;
+    t.setObserver({ lat: 10, lon: 10, altM: 0 }); // new passes needed: requests that fail again
+    await advance(2 * 60_000);
+    expect(errors()).toHaveLength(2);
+    t.dispose();
+  });
+
+  it('reports a used-up quota once while it waits for Retry-After again and again', async () => {
+    const fake = fakeApi({ refuse: () => ({ status: 429, code: 'quota-exceeded' }) });
+    const { t, events } = make(fake);
+    t.resume();
+    await advance(60 * 60_000);
+    expect(fake.calls.length).toBeGreaterThan(4);
+    expect(events.filter((e) => e.type === 'error')).toHaveLength(1);
+    t.dispose();
+  });
+
+  it('names a satellite without an element set with the API code no-element-set and goes on with the others', async () => {
+    const fake = fakeApi({ noSet: ['a'] });
+    const { t, events } = make(fake);
+    t.resume();
+    await advance(10 * 60_000);
+    expect(t.state.sats[0]).toMatchObject({ dead: true, notice: expect.objectContaining({ code: 'no-element-set', heading: 'No orbit data yet' }) });
+    expect(t.state.sats[1]!.samples.length).toBeGreaterThan(0);
+    expect(events.filter((e) => e.type === 'error').map((e) => e.detail)).toEqual([expect.objectContaining({ code: 'no-element-set', satellite: 'a', fatal: false })]);
+    t.dispose();
+  });
+
+  it('reports a stale element set once with the widget code stale-element-set', async () => {
+    const fake = fakeApi({ stale: ['b'] });
+    const { t, events } = make(fake);
+    t.resume();
+    await advance(10 * 60_000);
+    expect(events.filter((e) => e.type === 'error').map((e) => e.detail)).toEqual([expect.objectContaining({ code: 'stale-element-set', satellite: 'b', status: 200, fatal: false })]);
+    t.dispose();
+  });
+
+  it('stops one satellite, not the map, on another 4xx answer for it', async () => {
+    const fake = fakeApi();
+    const base = fake.fetch;
+    const f: FetchLike = async (input, init) =>
+      new URL(input).pathname.startsWith('/v1/satellites/a')
+        ? new Response(JSON.stringify({ title: 'Could not', status: 422, code: 'propagation-failed' }), { status: 422 })
+        : base(input, init);
+    const { t, events } = make({ fetch: f, calls: fake.calls });
+    t.resume();
+    await advance(10 * 60_000);
+    expect(t.state.fatal).toBeNull();
+    expect(t.state.sats[0]).toMatchObject({ dead: true, notice: expect.objectContaining({ code: 'propagation-failed' }) });
+    expect(t.state.sats[1]!.samples.length).toBeGreaterThan(0);
+    expect(events.filter((e) => e.type === 'error')).toHaveLength(1);
     t.dispose();
   });
 

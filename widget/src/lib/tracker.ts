@@ -7,12 +7,15 @@
 import { markRaw, reactive } from 'vue';
 import { NadirApi, type ApiProblem, type ApiResult, type ElementsInfo, type EmbedConfig, type FetchLike, type Pass } from './api.ts';
 import { settle, type Observer, type RawOptions, type Settings } from './config.ts';
-import { noticeFor, type Notice } from './messages.ts';
+import { actionFor, noticeFor, type Notice } from './messages.ts';
 import { LADDER, mergeSamples, planWindows, type Sample, type WindowPlan } from './track.ts';
 
 export interface SatState {
   id: string;
+  /** The satellite's name once /v1 gave it; its id until then (see `named`). */
   name: string;
+  /** Whether `name` came from the API (chips show a placeholder, not a raw id, until then). */
+  named: boolean;
   /** 1-based colour slot (--nadir-series-N). */
   slot: number;
   elements: ElementsInfo | null;
@@ -81,8 +84,6 @@ const REFRESH_MS = 30_000;
 const PASS_ALIGN_MS = 6 * 3600_000;
 const PASS_DAYS = 2;
 const FALLBACK_PERIOD_MIN = 95;
-const FATAL = new Set(['invalid-key', 'origin-not-allowed', 'quota-exceeded']);
-const GONE = new Set(['not-found', 'decayed']);
 
 export class Tracker {
   readonly state: TrackerState;
@@ -96,7 +97,8 @@ export class Tracker {
   private bumped = false;
   private loadedOnce = false;
   private embed: EmbedConfig | null = null;
-  private lastErrorKey = '';
+  /** Problems already reported (one nadir-error each); passing ones are forgotten once a round succeeds. */
+  private readonly reported = new Map<string, 'lasting' | 'passing'>();
   private readonly windows = new Map<string, Map<number, Sample[]>>();
   private readonly passKey = new Map<string, string>();
 
@@ -114,6 +116,8 @@ export class Tracker {
       observer: settings.observer === 'auto' ? null : settings.observer,
       embed: null,
     }) as TrackerState;
+    // no key and no embed: say so and ask nothing (every request would be refused)
+    if (!opts.apiKey && !opts.embedId) this.setFatal(noticeFor({ code: 'no-key', status: 0 }));
     if (!opts.embedId) this.useSettings(settings);
   }
 
@@ -159,6 +163,7 @@ export class Tracker {
     this.state.sats = settings.satellites.map((id, i) => ({
       id,
       name: id,
+      named: false,
       slot: (i % 6) + 1,
       elements: null,
       samples: markRaw([]),
@@ -168,7 +173,7 @@ export class Tracker {
       notice: null,
       dead: false,
     }));
-    if (settings.satellites.length === 0) this.setFatal(noticeFor({ code: 'no-satellites', status: 0 }));
+    if (settings.satellites.length === 0 && !this.state.fatal) this.setFatal(noticeFor({ code: 'no-satellites', status: 0 }));
   }
 
   private async cycle(): Promise<void> {
@@ -182,6 +187,7 @@ export class Tracker {
       next = await this.round(abort.signal);
     } catch (e) {
       // a bug of ours must still show words, never a blank box
+      this.bumped = false;
       next = this.transientProblem({ ok: false, code: 'widget', status: 0, title: String(e), detail: '' });
     }
     if (!this.running || gen !== this.generation) return;
@@ -217,7 +223,7 @@ export class Tracker {
 
     this.attempt = 0;
     this.state.transient = null;
-    this.lastErrorKey = '';
+    for (const [key, kind] of this.reported) if (kind === 'passing') this.reported.delete(key);
     this.state.lastOkMs = now;
     this.state.phase = 'ready';
     if (!this.loadedOnce) {
@@ -256,6 +262,7 @@ export class Tracker {
       if (signal.aborted) return undefined;
       if (!meta.ok) return this.problem(meta, sat);
       if (typeof meta.value.name === 'string' && meta.value.name) sat.name = meta.value.name;
+      sat.named = true;
       let el: ElementsInfo | null | undefined = meta.value.derived;
       if (el === undefined) {
         const r = await this.api.elements(sat.id, signal);
@@ -264,13 +271,20 @@ export class Tracker {
         el = r.value;
       }
       if (!el || !Number.isFinite(el.periodMin)) {
+        // the same condition the API names no-element-set when asked for a track
+        const p = { code: 'no-element-set', status: 200 };
         sat.dead = true;
-        sat.notice = noticeFor({ code: 'no-elements', status: 200 }, { satellite: sat.name });
-        this.report(sat.notice, { code: 'no-elements', status: 200 }, sat.id);
+        sat.notice = noticeFor(p, { satellite: sat.name });
+        this.report(sat.notice, p, sat.id);
         return null;
       }
       sat.elements = markRaw(el);
-      sat.notice = el.stale ? noticeFor({ code: 'stale-element-set', status: 200 }, { satellite: sat.name, ageDays: el.ageDays }) : null;
+      sat.notice = null;
+      if (el.stale) {
+        const p = { code: 'stale-element-set', status: 200 };
+        sat.notice = noticeFor(p, { satellite: sat.name, ageDays: el.ageDays });
+        this.report(sat.notice, p, sat.id);
+      }
     }
 
     // track windows not yet held, all at once
@@ -328,31 +342,35 @@ export class Tracker {
    */
   private problem(p: ApiProblem, sat: SatState | null): number | undefined | null {
     if (p.code === 'aborted') return undefined;
-    if (FATAL.has(p.code)) {
+    const action = actionFor(p);
+    if (action === 'stop-map' || p.code === 'quota-exceeded') {
       const n = noticeFor(p, { origin: this.opts.origin });
       this.setFatal(n, p);
       return n.retryMs;
     }
-    if (sat && GONE.has(p.code)) {
-      sat.dead = true;
-      sat.notice = noticeFor(p, { satellite: sat.name, ageDays: sat.elements?.ageDays });
-      this.report(sat.notice, p, sat.id);
-      return null;
-    }
-    if (sat && p.code === 'stale-element-set') {
-      sat.notice = noticeFor(p, { satellite: sat.name, ageDays: sat.elements?.ageDays });
-      this.report(sat.notice, p, sat.id);
-      return null;
-    }
-    if (!sat && GONE.has(p.code)) {
-      // the embed itself is missing
-      this.setFatal({ ...noticeFor(p), heading: 'Map not found', text: 'This saved map no longer exists. The site owner can choose another embed in the Nadirline console.' }, p);
+    if (action === 'stop-satellite') {
+      if (sat) {
+        // asking again would get the same answer: this satellite stops, the others go on
+        sat.dead = true;
+        sat.notice = noticeFor(p, { satellite: sat.name, ageDays: sat.elements?.ageDays });
+        this.report(sat.notice, p, sat.id);
+        return null;
+      }
+      // the embed itself could not be had
+      const n = noticeFor(p);
+      this.setFatal(
+        p.code === 'not-found'
+          ? { ...n, fatal: true, heading: 'Map not found', text: 'This saved map no longer exists. The site owner can choose another embed in the Nadirline console.' }
+          : { ...n, fatal: true, retryMs: undefined },
+        p,
+      );
       return undefined;
     }
-    return this.transientProblem(p, sat?.id ?? null);
+    return this.transientProblem(p);
   }
 
-  private transientProblem(p: ApiProblem, satId: string | null = null): number {
+  /** A passing problem of the whole map (network, server, rate limit): one notice, one event, a retry. */
+  private transientProblem(p: ApiProblem): number {
     // one step of backoff per round, however many requests of the round failed
     if (!this.bumped) this.attempt++;
     this.bumped = true;
@@ -362,7 +380,7 @@ export class Tracker {
       dataTime: this.state.lastOkMs !== null && fmt ? fmt(this.state.lastOkMs) : undefined,
     });
     this.state.transient = n;
-    this.report(n, p, satId);
+    this.report(n, p, null);
     return n.retryMs ?? REFRESH_MS;
   }
 
@@ -372,11 +390,14 @@ export class Tracker {
     this.report(n, p ?? { code: n.code, status: 0 }, null);
   }
 
-  /** One nadir-error per distinct problem, not one per retry. */
+  /**
+   * One nadir-error per problem, never one per retry or per request: a problem is its code (and
+   * the satellite it concerns). Passing problems may be reported again after the map recovered.
+   */
   private report(n: Notice, p: Pick<ApiProblem, 'code' | 'status'>, satId: string | null): void {
     const key = `${n.code}|${satId ?? ''}`;
-    if (key === this.lastErrorKey) return;
-    this.lastErrorKey = key;
+    if (this.reported.has(key)) return;
+    this.reported.set(key, n.retryMs === undefined ? 'lasting' : 'passing');
     this.emit({
       type: 'error',
       detail: { code: n.code, status: p.status, message: n.text, heading: n.heading, satellite: satId, fatal: n.fatal, retryMs: n.retryMs ?? null },
