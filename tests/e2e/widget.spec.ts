@@ -124,6 +124,25 @@ describe('<nadir-track> on the science centre example', () => {
     await w.ctx.close();
   });
 
+  it('names no place in the live region until the map’s place data has loaded, then names one', async () => {
+    let release!: () => void;
+    const held = new Promise<void>((r) => (release = r));
+    const w = await open(`${server.url}/examples/science-centre.html`, {
+      before: (p) =>
+        p.route('**/countries-110m*.json', async (r) => {
+          await held;
+          await r.continue();
+        }),
+    });
+    const live = () => w.page.evaluate(() => document.querySelector('nadir-track')?.shadowRoot?.querySelector('[aria-live]')?.textContent ?? '');
+    await expect.poll(live, { timeout: 15_000 }).toMatch(/ is at \d/);
+    expect(await live()).not.toMatch(/ is over /);
+    release();
+    await expect.poll(live, { timeout: 15_000 }).toMatch(/ is over [A-Z]|is over the /);
+    expect(w.pageErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
   it('shows a wrong key in words inside the element', async () => {
     const pageUrl = `${server.url}/e2e-wrong-key.html`;
     const w = await open(pageUrl, {

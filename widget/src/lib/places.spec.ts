@@ -1,6 +1,17 @@
+import { readFileSync } from 'node:fs';
+import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
-import type { Feature, Polygon } from 'geojson';
+import type { Feature, FeatureCollection, Geometry, Polygon } from 'geojson';
+import { feature } from 'topojson-client';
+import type { GeometryCollection, Topology } from 'topojson-specification';
 import { namedAreas, oceanName, placeName } from './places.ts';
+
+/** The countries the widget ships (world-atlas countries-110m), as it reads them. */
+function shippedCountries() {
+  const require = createRequire(import.meta.url);
+  const topo = JSON.parse(readFileSync(require.resolve('world-atlas/countries-110m.json'), 'utf8')) as Topology;
+  return namedAreas((feature(topo, topo.objects.countries as GeometryCollection) as FeatureCollection<Geometry, { name?: string }>).features);
+}
 
 const box = (name: string, w: number, s: number, e: number, n: number): Feature<Polygon, { name: string }> => ({
   type: 'Feature',
@@ -31,6 +42,31 @@ describe('placeName', () => {
   });
   it('names the ocean otherwise', () => {
     expect(placeName(-51.6, -20.3, areas)).toBe('the South Atlantic');
+  });
+  it('names nothing while the country outlines are not loaded, rather than guess an ocean', () => {
+    expect(placeName(50.9, 104.3, [])).toBeNull();
+  });
+});
+
+describe('placeName with the countries the widget ships', () => {
+  const areas = shippedCountries();
+  it.each([
+    [50.9, 104.3, 'Russia'], // QA saw "the North Pacific" here before the map had loaded
+    [0.1, 10.0, 'Gabon'], // and "the North Atlantic" here
+    [39.5, -98.4, 'the United States of America'],
+    [-15.8, -47.9, 'Brazil'],
+    [67, -175, 'Russia'], // west of the antimeridian, in the western hemisphere
+    [-17.8, 178.1, 'Fiji'],
+    [-82, 40, 'Antarctica'],
+    [42, 51, 'the Caspian Sea'],
+    [43.2, 34, 'the Black Sea'],
+    [45.5, -3.5, 'the North Atlantic'], // Bay of Biscay
+    [38, 5, 'the Mediterranean Sea'],
+    [0, -30, 'the North Atlantic'],
+    [-40, -120, 'the South Pacific'],
+    [58, -86, 'Hudson Bay'],
+  ])('calls %f, %f %s', (lat, lon, name) => {
+    expect(placeName(lat, lon, areas)).toBe(name);
   });
 });
 

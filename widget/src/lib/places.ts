@@ -25,11 +25,28 @@ function inBounds(b: NamedArea['bounds'], lat: number, lon: number): boolean {
   return w <= e ? lon >= w && lon <= e : lon >= w || lon <= e;
 }
 
-/** Ocean name (with "the") for a point assumed to be over water. */
+/**
+ * Seas that the 110m country outlines leave as water and that read better by their own name
+ * than as part of an ocean; boxes drawn for Nadirline, tried in this order, [south, north, west, east].
+ */
+const SEAS: readonly [name: string, s: number, n: number, w: number, e: number][] = [
+  ['the Caspian Sea', 36.5, 47.5, 46.5, 55],
+  ['the Black Sea', 40.9, 47.5, 27.3, 42],
+  ['the Red Sea', 12.5, 30.5, 32, 43.5],
+  ['the Persian Gulf', 23.8, 30.6, 47.5, 56.6],
+  ['the Baltic Sea', 53.8, 66, 9.8, 30.5],
+  ['the North Sea', 51, 61, -1.5, 9],
+  ['Hudson Bay', 51, 66, -95.5, -76.5],
+  ['the South China Sea', 0, 23, 105, 121],
+];
+
+/** Ocean or sea name (with "the") for a point assumed to be over water. */
 export function oceanName(lat: number, lon: number): string {
   if (lat > 66) return 'the Arctic Ocean';
   if (lat < -60) return 'the Southern Ocean';
-  if (lat > 30 && lat < 46 && lon > -6 && lon < 36) return 'the Mediterranean Sea';
+  for (const [name, s, n, w, e] of SEAS) if (lat >= s && lat <= n && lon >= w && lon <= e) return name;
+  // west of 0 and north of 40 inside the box is the Bay of Biscay, which is the Atlantic
+  if (lat > 30 && lat < 46 && lon > -5.6 && lon < 36.5 && !(lon < 0 && lat > 40)) return 'the Mediterranean Sea';
   const ns = lat >= 0 ? 'North' : 'South';
   const indian = (lat < 30 && lon >= 20 && lon < 100) || (lat < -8 && lon >= 100 && lon < 147);
   if (indian) return 'the Indian Ocean';
@@ -44,8 +61,13 @@ export function oceanName(lat: number, lon: number): string {
 /** Country names that read better with "the" in a sentence. */
 const WITH_THE = /^(United|Dem\. Rep\.|Central African|Dominican|Solomon|Falkland|Bahamas|Philippines|Netherlands|Gambia|Czech|Fr\. S\.)/;
 
-/** "Brazil", "the United States of America" or "the South Atlantic". */
-export function placeName(lat: number, lon: number, areas: readonly NamedArea[]): string {
+/**
+ * "Brazil", "the United States of America" or "the South Atlantic"; null while the country
+ * outlines are not loaded yet, since without them any point, inland Siberia too, would be called
+ * an ocean (callers then give coordinates alone).
+ */
+export function placeName(lat: number, lon: number, areas: readonly NamedArea[]): string | null {
+  if (areas.length === 0) return null;
   for (const a of areas) {
     if (inBounds(a.bounds, lat, lon) && geoContains(a.feature, [lon, lat])) return WITH_THE.test(a.name) ? `the ${a.name}` : a.name;
   }
