@@ -232,8 +232,11 @@ describe('the console against the real server', () => {
   it('previews a satellite live for a viewer, read with the console preview token and no embed', async () => {
     const { page, org } = await signInAs('viewer');
     const reads: string[] = [];
+    const credentials: string[] = [];
     page.on('request', (r) => {
-      if (r.url().includes('/v1/')) reads.push(r.url());
+      if (!r.url().includes('/v1/')) return;
+      reads.push(r.url());
+      credentials.push(new URL(r.url()).searchParams.get('key') ?? (r.headers().authorization ?? '').replace(/^Bearer /, ''));
     });
     const sat = server.credentials.satellites.find((s) => s.name === 'Orrery-1') ?? server.credentials.satellites[0]!;
     await page.goto(`${server.url}/o/${org}/satellites/${sat.id}`);
@@ -245,10 +248,9 @@ describe('the console against the real server', () => {
     await shot(page, 'viewer-satellite-preview');
     const trackReads = reads.filter((u) => u.includes(`/v1/satellites/${sat.id}/track`));
     expect(trackReads.length).toBeGreaterThan(0);
-    for (const u of reads) {
-      expect(new URL(u).searchParams.get('key') ?? '').toMatch(/^nlp_/);
-      expect(new URL(u).searchParams.has('embed')).toBe(false);
-    }
+    // Every read (the widget's with ?key=, the decay check's with a Bearer header) uses the preview token.
+    for (const c of credentials) expect(c).toMatch(/^nlp_/);
+    for (const u of reads) expect(new URL(u).searchParams.has('embed')).toBe(false);
     // The same token is refused from a page of another origin.
     const token = new URL(trackReads[0]!).searchParams.get('key')!;
     const elsewhere = await fetch(`${server.url}/v1/satellites/${sat.id}?key=${encodeURIComponent(token)}`, { headers: { Origin: 'https://pages.example.org' } });
@@ -279,6 +281,27 @@ describe('the console against the real server', () => {
     await shot(page, 'builder-unsaved-preview');
     const after = (await (await page.request.get(`${server.url}/api/orgs/${org}/embeds`)).json()) as { embeds: unknown[] };
     expect(after.embeds.length).toBe(before.embeds.length);
+  });
+
+  it('shows a satellite whose set SGP4 has carried below the atmosphere as decayed, on its page and in the list', async () => {
+    const { page, org } = await signInAs('editor');
+    // Heavy drag (B* 0.1) at 15.5 rev/day, epoch 20 March 2026: down within 60 days (the engine's
+    // own decay case in shared/src/orbit/propagate.spec.ts), well inside the 365-day span.
+    const l1 = withChecksum('1 90001U 26001A   26079.00000000  .00000000  00000-0  10000-1 0  999');
+    const l2 = withChecksum('2 90001  51.6000  10.0000 0010000   0.0000   0.0000 15.50000000    1');
+    await page.getByRole('button', { name: 'Register a satellite' }).first().click();
+    await page.getByLabel('Name', { exact: true }).fill('Ostwick Faller');
+    await page.getByLabel('First element sets (optional)').fill(['OSTWICK FALLER', l1, l2].join('\n'));
+    await page.getByRole('button', { name: 'Register satellite' }).click();
+    await page.waitForURL(/\/satellites\/[^/]+$/);
+    await page.locator('header .badge', { hasText: 'Decayed' }).waitFor();
+    await page.getByText(/SGP4 says Ostwick Faller has decayed by now/).waitFor();
+    await shot(page, 'decayed-satellite');
+    await page.goto(`${server.url}/o/${org}/satellites`);
+    const row = page.locator('tr', { hasText: 'Ostwick Faller' });
+    await row.locator('.badge', { hasText: 'Decayed' }).waitFor();
+    expect(await page.locator('tr', { hasText: 'Orrery-1' }).locator('.badge', { hasText: 'Decayed' }).count()).toBe(0);
+    await page.locator('.summary', { hasText: /1 decayed/ }).waitFor();
   });
 
   it('offers a viewer no key or member actions, and the server refuses them anyway', async () => {

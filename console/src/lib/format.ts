@@ -78,3 +78,21 @@ export function formatPrice(amount: number, currency: string | null | undefined)
     return `${new Intl.NumberFormat('en-GB', { minimumFractionDigits: digits, maximumFractionDigits: 2 }).format(amount)}${code ? ` ${code}` : ''}`;
   }
 }
+
+/** Below this size (deg per revolution) the ground track's equator crossing counts as not moving. */
+export const SHIFT_STILL_DEG = 0.05;
+
+/**
+ * The ground-track shift per revolution as people read it. The API's `westwardShiftPerRevDeg` lies
+ * in (-180, 180]: positive moves the next equator crossing west, negative east, about 0 leaves it
+ * where it was (a geosynchronous period). "23.76° west", "179.95° east",
+ * "Stays in place (geostationary)" for a near-circular, near-equatorial one.
+ */
+export function formatGroundTrackShift(westDeg: number | null | undefined, orbit: { inclinationDeg?: number; eccentricity?: number } = {}): string {
+  if (westDeg === null || westDeg === undefined || !Number.isFinite(westDeg)) return '—';
+  if (Math.abs(westDeg) < SHIFT_STILL_DEG) {
+    const geostationary = (orbit.inclinationDeg ?? 0) < 1 && (orbit.eccentricity ?? 0) < 0.01;
+    return geostationary ? 'Stays in place (geostationary)' : 'Same longitude each orbit (geosynchronous)';
+  }
+  return `${formatNumber(Math.abs(westDeg), 2)}° ${westDeg > 0 ? 'west' : 'east'}`;
+}
