@@ -119,6 +119,47 @@ describe('the console against the real server', () => {
     await shot(page, 'signed-up-and-in');
   });
 
+  it('lets an invited person sign up and says they are in at once, with no e-mail to wait for', async () => {
+    const { page, org } = await signInAs('admin');
+    const email = `invited.${Date.now()}@ostwick.example.org`;
+    const invited = await page.evaluate(
+      async ({ o, address }) => {
+        const { csrfToken } = (await (await fetch('/api/session')).json()) as { csrfToken: string };
+        const r = await fetch(`/api/orgs/${o}/invitations`, {
+          method: 'POST',
+          headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken },
+          body: JSON.stringify({ email: address, role: 'editor' }),
+        });
+        return r.status;
+      },
+      { o: org, address: email },
+    );
+    expect(invited).toBe(201);
+    const box = (await (await fetch(`${server.url}/dev/mailbox.json`)).json()) as { messages: { to: string; links: string[] }[] };
+    const link = box.messages.filter((m) => String(m.to).includes(email)).at(-1)?.links.find((l) => l.includes('/invite/'));
+    expect(link, 'the invitation e-mail holds a link').toBeTruthy();
+    const before = box.messages.length;
+
+    const guest = await newPage();
+    await guest.goto(link!.replace(/^https?:\/\/[^/]+/, server.url));
+    await guest.getByRole('link', { name: 'Create an account' }).click();
+    await guest.getByLabel('Your name').fill('Noor Achterberg');
+    await guest.getByLabel('Password').fill('lantern-orbit-4471');
+    await guest.getByRole('button', { name: 'Create account' }).click();
+    await guest.getByRole('heading', { name: 'You’re in' }).waitFor();
+    const said = (await guest.locator('[data-test="signed-up"]').textContent()) ?? '';
+    expect(said).toMatch(/You joined .+ as Editor\./);
+    expect(await guest.getByText(/inbox|confirmation link/i).count()).toBe(0);
+    await shot(guest, 'invited-sign-up-done');
+    const after = (await (await fetch(`${server.url}/dev/mailbox.json`)).json()) as { messages: unknown[] };
+    expect(after.messages.length).toBe(before);
+
+    await guest.getByRole('link', { name: 'Sign in' }).click();
+    await guest.getByLabel('Password').fill('lantern-orbit-4471');
+    await guest.getByRole('button', { name: 'Sign in', exact: true }).click();
+    await guest.waitForURL(new RegExp(`/o/${org}/satellites$`));
+  });
+
   it('registers a satellite and reports the one bad entry of an uploaded file by line and column', async () => {
     const { page, org } = await signInAs('editor');
     // A real element set to start from: the demo satellite's, exported as TLE, renumbered.
