@@ -339,7 +339,9 @@ describe('embeds, OpenAPI, documents and unknown routes', () => {
   it('answers a saved embed publicly to its key\u2019s origins', async () => {
     const res = await request(t.app).get(`/v1/embeds/${t.embedId}`).set('Origin', 'https://pages.example.org').expect(200);
     expect(res.body).toEqual({ id: t.embedId, name: 'Lobby', satellites: [t.satellites.leo.id], options: { theme: 'dark' } });
-    expectProblem(await request(t.app).get('/v1/embeds/doesnotexist'), 401, 'invalid-key');
+    // An unknown embed in the path is a missing resource, as the OpenAPI document says; as ?embed= it is a wrong credential.
+    expectProblem(await request(t.app).get('/v1/embeds/doesnotexist'), 404, 'not-found');
+    expectProblem(await request(t.app).get(`/v1/satellites/${t.satellites.leo.id}`).query({ embed: 'doesnotexist' }), 401, 'invalid-key');
   });
 
   it('serves an OpenAPI 3.1 document listing every route with its caps', async () => {

@@ -1,7 +1,7 @@
 /**
  * Problem details (RFC 9457). Every error the server answers is application/problem+json with
  * `type`, `title`, `status`, `detail`, and a stable `code` extension member clients may rely on
- * (the widget maps codes to messages). Validation problems add `errors: [{ where, message }]`.
+ * (the widget maps codes to messages). Validation problems add `errors: [{ where, field, message }]`. `instance` is the request path, never its query string.
  */
 import type { ErrorRequestHandler, RequestHandler, Response } from 'express';
 import type { Logger } from 'pino';
@@ -72,6 +72,16 @@ export class HttpError extends Error {
   }
 }
 
+/**
+ * The `instance` member: the request's path only. The query string never goes back (a key sent
+ * in `?key=` must not be echoed into answers, logs or screenshots), nor does an invitation token.
+ */
+export function problemInstance(url: string): string {
+  const cut = url.search(/[?#]/);
+  const path = cut === -1 ? url : url.slice(0, cut);
+  return path.replace(/(\/api\/invitations\/)[^/]+/, '$1[hidden]');
+}
+
 export function sendProblem(
   res: Response,
   code: ProblemCode,
@@ -83,12 +93,36 @@ export function sendProblem(
   res
     .status(t.status)
     .type('application/problem+json')
-    .json({ type: `${PROBLEM_TYPE_BASE}${code}`, title: t.title, status: t.status, detail, code, ...(instance ? { instance } : {}), ...extras });
+    .json({ type: `${PROBLEM_TYPE_BASE}${code}`, title: t.title, status: t.status, detail, code, ...(instance ? { instance: problemInstance(instance) } : {}), ...extras });
 }
 
 export const notFoundHandler: RequestHandler = (req, res) => {
   sendProblem(res, 'not-found', `Nothing is served at ${req.method} ${req.path}.`, {}, req.originalUrl);
 };
+
+/** 2097152 -> "2 MiB", 1536 -> "1.5 KiB". */
+export function formatBytes(n: number): string {
+  if (n >= 1024 * 1024) return `${Number((n / 1024 / 1024).toFixed(2))} MiB`;
+  if (n >= 1024) return `${Number((n / 1024).toFixed(1))} KiB`;
+  return `${n} bytes`;
+}
+
+/**
+ * Upload errors from multer with the limit they broke. Routes that know their limits wrap the
+ * multer callback with this so the problem can name them (multer's own errors do not).
+ */
+export function withUploadLimits<E>(err: E, limits: { fileBytes?: number; files?: number }): E {
+  if (err && typeof err === 'object') Object.assign(err as object, { limits });
+  return err;
+}
+
+/** A broken percent-encoding in the URL, as the router or decodeURIComponent reports it. */
+function badEncoding(e: { name?: string; message?: string }): string | null {
+  const m = /^Failed to decode param '(.*)'$/s.exec(e.message ?? '');
+  if (!m && e.name !== 'URIError') return null;
+  const piece = m?.[1];
+  return `The URL holds a broken percent-encoding${piece ? ` (${piece.slice(0, 60)})` : ''}: after each % come two hexadecimal digits, and together they must spell UTF-8 text. Write a literal % as %25.`;
+}
 
 /** The one error handler: everything becomes problem+json; internals only in development. */
 export function errorHandler(opts: { exposeInternals: boolean; logger: Logger }): ErrorRequestHandler {
@@ -102,18 +136,59 @@ export function errorHandler(opts: { exposeInternals: boolean; logger: Logger })
       sendProblem(res, err.code, err.detail, err.extras, req.originalUrl);
       return;
     }
-    const e = err as { type?: string; status?: number; statusCode?: number; message?: string; code?: string; field?: string };
+    const e = err as {
+      name?: string;
+      type?: string;
+      status?: number;
+      statusCode?: number;
+      message?: string;
+      code?: string;
+      field?: string;
+      filename?: string;
+      limit?: number;
+      length?: number;
+      limits?: { fileBytes?: number; files?: number };
+    };
     // Errors raised by body parsers and multer carry a status or a known type.
     if (e?.type === 'entity.parse.failed') {
       sendProblem(res, 'bad-request', `The request body is not valid JSON: ${e.message ?? ''}`.trim(), {}, req.originalUrl);
       return;
     }
-    if (e?.type === 'entity.too.large' || e?.code === 'LIMIT_FILE_SIZE') {
-      sendProblem(res, 'payload-too-large', e.message ?? 'The request body is too large.', {}, req.originalUrl);
+    if (e?.type === 'entity.too.large') {
+      const limit = typeof e.limit === 'number' ? e.limit : undefined;
+      const size = typeof e.length === 'number' && Number.isFinite(e.length) && limit !== undefined && formatBytes(e.length) !== formatBytes(limit) ? ` (${formatBytes(e.length)})` : '';
+      sendProblem(
+        res,
+        'payload-too-large',
+        limit !== undefined ? `The request body${size} is larger than the ${formatBytes(limit)} limit.` : 'The request body is larger than this route accepts.',
+        limit !== undefined ? { limitBytes: limit } : {},
+        req.originalUrl,
+      );
+      return;
+    }
+    if (e?.code === 'LIMIT_FILE_SIZE') {
+      const limit = e.limits?.fileBytes;
+      const name = e.filename ? e.filename : 'A file';
+      sendProblem(
+        res,
+        'payload-too-large',
+        `${name} is larger than the ${limit !== undefined ? `${formatBytes(limit)} ` : ''}limit per file. Split it into several files.`,
+        { ...(limit !== undefined ? { limitBytes: limit } : {}), ...(e.filename ? { file: e.filename } : {}) },
+        req.originalUrl,
+      );
+      return;
+    }
+    if (e?.code === 'LIMIT_FILE_COUNT' && e.limits?.files !== undefined) {
+      sendProblem(res, 'payload-too-large', `At most ${e.limits.files} files per upload; send the rest in another request.`, { limitFiles: e.limits.files }, req.originalUrl);
       return;
     }
     if (e?.code?.startsWith?.('LIMIT_')) {
       sendProblem(res, 'bad-request', `Upload refused: ${e.message ?? e.code}${e.field ? ` (field ${e.field})` : ''}.`, {}, req.originalUrl);
+      return;
+    }
+    const encoding = e && typeof e === 'object' ? badEncoding(e) : null;
+    if (encoding) {
+      sendProblem(res, 'bad-request', encoding, {}, req.originalUrl);
       return;
     }
     const status = e?.status ?? e?.statusCode;

@@ -11,7 +11,8 @@
  *   deleteEmbed(orgId, id) -> Promise<void>
  *   serializeEmbed(embed) -> { id, name, satelliteIds, options, apiKeyId, updatedAt }
  *   publicEmbed(embed) -> { id, name, satellites, options }      (the GET /v1/embeds/{id} answer)
- *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; invalid-key / key problems)
+ *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; invalid-key / key problems;
+ *                         an unknown id: invalid-key with reason EMBED_NOT_FOUND)
  *   resolveForReadCached(id) -> the same or undefined, without waiting (request fast path)
  *   embedOptionsSchema, embedInputSchema (zod)
  */
@@ -26,6 +27,8 @@ import { assertKeyWorks, getKeyService, type KeyRecord, type KeyService } from '
 export const newEmbedId = customAlphabet('23456789abcdefghijkmnpqrstuvwxyz', 12);
 export const EMBED_CACHE_TTL_MS = 30_000;
 export const MAX_EMBED_SATELLITES = 50;
+/** `reason` of the invalid-key problem for an embed id that names no embed (GET /v1/embeds/{id} answers 404 instead). */
+export const EMBED_NOT_FOUND = 'embed-not-found';
 
 export const embedOptionsSchema = z
   .looseObject({
@@ -170,7 +173,7 @@ export class EmbedService {
   /** Resolve `?embed=<id>` to the embed and its working browser key; throws the matching problem. */
   async resolveForRead(id: string, now: Date = new Date()): Promise<{ embed: EmbedRecord; key: KeyRecord }> {
     const embed = await this.findEmbed(id);
-    if (!embed) throw new HttpError('invalid-key', `No embed ${id} exists; it may have been deleted.`);
+    if (!embed) throw new HttpError('invalid-key', `No embed ${id} exists; it may have been deleted.`, { reason: EMBED_NOT_FOUND });
     if (!embed.apiKeyId) throw new HttpError('invalid-key', `Embed ${id} has no key attached; choose a browser key for it in the console.`);
     const key = await this.keys.findById(embed.apiKeyId);
     if (!key) throw new HttpError('invalid-key', `The key of embed ${id} no longer exists; choose another browser key in the console.`);

@@ -145,7 +145,11 @@ export const keyInputSchema = z.object({
   origins: originList.optional(),
   scopes: z.array(z.enum(KEY_SCOPES)).max(KEY_SCOPES.length).optional(),
   rateLimitPerMin: z.number().int().min(1).max(100_000).optional(),
-  expiresAt: z.coerce.date().nullable().optional(),
+  expiresAt: z.coerce
+    .date({ message: 'Give a date and time, e.g. 2026-12-31T23:59:00Z.' })
+    .refine((d) => d.getTime() > Date.now(), { message: 'Choose a time in the future: a key that has already expired would refuse every request.' })
+    .nullable()
+    .optional(),
 });
 export const keyUpdateSchema = keyInputSchema.omit({ kind: true }).partial();
 

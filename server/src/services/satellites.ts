@@ -75,8 +75,12 @@ export interface ReportEntry {
 
 export interface UploadResult {
   report: ReportEntry[];
+  /** Usable entries: newly stored plus duplicates (an epoch this satellite already has). */
   accepted: number;
+  /** Usable entries whose epoch was stored already (nothing new was written for them). */
+  duplicates: number;
   rejected: number;
+  /** The newly stored sets (accepted - duplicates of them). */
   created: ElementSetRecord[];
 }
 
@@ -283,14 +287,25 @@ export class SatelliteService {
     };
   }
 
-  /** Display names of who uploaded: users by name, keys as "key <name> (…abcd)". */
+  /**
+   * Who uploaded, as the console and /v1 both show it (`uploadedBy`): a member by name, a key as
+   * "key <name>" (no key text, not even its last four characters, since /v1 answers pages).
+   */
   async uploaderNames(records: ReadonlyArray<Pick<ElementSetRecord, 'uploadedByUserId' | 'uploadedByKeyId'>>): Promise<Map<string, string>> {
     const userIds = [...new Set(records.map((r) => r.uploadedByUserId).filter((x): x is string => !!x))];
     const keyIds = [...new Set(records.map((r) => r.uploadedByKeyId).filter((x): x is string => !!x))];
     const names = new Map<string, string>();
     if (userIds.length) for (const u of await User.findAll({ where: { id: userIds }, attributes: ['id', 'name'] })) names.set(u.id, u.name);
-    if (keyIds.length) for (const k of await ApiKey.findAll({ where: { id: keyIds }, attributes: ['id', 'name', 'lastFour'] })) names.set(k.id, `key ${k.name} (…${k.lastFour})`);
+    if (keyIds.length) for (const k of await ApiKey.findAll({ where: { id: keyIds }, attributes: ['id', 'name'] })) names.set(k.id, `key ${k.name}`);
     return names;
+  }
+
+  /** view() of several satellites with `current.uploadedBy` filled in (one lookup for all). */
+  async viewsWithUploaders(satellites: ReadonlyArray<Satellite | CachedSatellite['satellite']>, now: Date = new Date()): Promise<SatelliteView[]> {
+    const cached = await Promise.all(satellites.map((s) => this.cache.get(s.id)));
+    const records = cached.flatMap((c) => (c?.current ? [c.current.record] : []));
+    const uploaders = records.length ? await this.uploaderNames(records) : undefined;
+    return Promise.all(satellites.map((s) => this.view(s, now, uploaders)));
   }
 
   private parseText(text: string, format?: ElementFormat): ParsedEntry[] {
@@ -360,7 +375,8 @@ export class SatelliteService {
     });
     this.cache.invalidate(satellite.id);
     const accepted = report.filter((r) => r.ok).length;
-    return { report, accepted, rejected: report.length - accepted, created };
+    const duplicates = report.filter((r) => r.ok && r.duplicate).length;
+    return { report, accepted, duplicates, rejected: report.length - accepted, created };
   }
 }
 
@@ -385,6 +401,52 @@ function withRawText(text: string, entries: ParsedEntry[], file?: string): Batch
   });
 }
 
+/**
+ * The parser's reason alone: its messages read "field: line L column C: reason", and the report
+ * entry carries field, line and column already, so they are not repeated in the message.
+ * XML well-formedness errors are put in plain words.
+ */
+export function bareReason(field: string | undefined, message: string): string {
+  let m = message.trim();
+  if (field && m.toLowerCase().startsWith(`${field.toLowerCase()}: `)) m = m.slice(field.length + 2);
+  m = m.replace(/^line \d+(?:,? column \d+)?: /, '');
+  return xmlReason(m);
+}
+
+const tagList = (names: string[]) => (names.length <= 1 ? (names[0] ?? '') : `${names.slice(0, -1).join(', ')} and ${names[names.length - 1] ?? ''}`);
+
+/** "not well-formed XML: Unclosed tag 'omm'." -> "the XML is not well-formed: <omm> is opened but never closed". */
+function xmlReason(m: string): string {
+  const x = /^not well-formed XML: (.*)$/s.exec(m);
+  if (!x) return m;
+  const r = (x[1] ?? '').trim();
+  let g: RegExpExecArray | null;
+  let words: string;
+  if ((g = /^Invalid '\[(.*)\]' found\.?$/s.exec(r))) {
+    const names = [...(g[1] ?? '').matchAll(/"([^"]*)"/g)].map((a) => `<${a[1] ?? ''}>`);
+    words = names.length ? `${tagList(names)} ${names.length === 1 ? 'is' : 'are'} opened but never closed` : 'some elements are opened but never closed';
+  } else if ((g = /^Unclosed tag '([^']*)'\.?$/.exec(r))) {
+    words = `<${g[1]}> is opened but never closed`;
+  } else if ((g = /^Expected closing tag '([^']*)' \(opened in line (\d+), col (\d+)\) instead of closing tag '([^']*)'\.?$/.exec(r))) {
+    words = `</${g[4]}> comes where </${g[1]}> was expected (<${g[1]}> was opened at line ${g[2]}, column ${g[3]})`;
+  } else if ((g = /^Closing tag '([^']*)' has not been opened\.?$/.exec(r))) {
+    words = `</${g[1]}> closes an element that was never opened`;
+  } else if ((g = /^char '(.)' is not expected\.?$/s.exec(r))) {
+    words = g[1] === '&' ? 'a bare & is not allowed; write &amp;' : `the character '${g[1]}' is not allowed here`;
+  } else if ((g = /^Attribute '([^']*)' is without value\.?$/.exec(r))) {
+    words = `the attribute ${g[1]} has no value; write ${g[1]}="\u2026"`;
+  } else if ((g = /^Attribute '([^']*)' is repeated\.?$/.exec(r))) {
+    words = `the attribute ${g[1]} appears twice`;
+  } else if (/^Start tag expected\.?$/.test(r)) {
+    words = 'no element was found';
+  } else if (/^Multiple possible root nodes found\.?$/.test(r)) {
+    words = 'there is more than one top-level element; put several <omm> inside one <ndm>';
+  } else {
+    words = r.replace(/\.$/, '');
+  }
+  return `the XML is not well-formed: ${words}`;
+}
+
 function reportOf(entry: ParsedEntry, file?: string): ReportEntry {
   const r = entry.result;
   const base: ReportEntry = { index: entry.index, line: entry.line, ok: r.ok, ...(file !== undefined ? { file } : {}) };
@@ -393,7 +455,7 @@ function reportOf(entry: ParsedEntry, file?: string): ReportEntry {
     ...base,
     code: r.code,
     field: r.field,
-    message: r.message,
+    message: bareReason(r.field, r.message),
     ...(r.line !== undefined ? { line: r.line } : {}),
     ...(r.column !== undefined ? { column: r.column } : {}),
   };
@@ -411,14 +473,23 @@ function checkPropagates(es: ElementSet): { code: string; field: string; message
   }
 }
 
+/** "line 3, column 5" opens a sentence as "Line 3, column 5"; a file name stays as written. */
+const capitalLine = (w: string) => (w.startsWith('line ') ? `L${w.slice(1)}` : w);
+
+/** Parser field names that only repeat the format ("text", "xml"): not worth naming in a detail. */
+const GENERIC_FIELDS = new Set(['text', 'xml', 'json', 'kvn', 'omm', 'elements']);
+
 /** A 422 problem for uploads where nothing was usable: every rejected entry with line and column. */
 export function unprocessable(report: ReportEntry[], detail?: string): HttpError {
   const bad = report.filter((r) => !r.ok);
   const first = bad[0];
   const where = (r: ReportEntry) => `${r.file ? `${r.file}, ` : ''}line ${r.line}${r.column !== undefined ? `, column ${r.column}` : ''}`;
+  // The field goes with the place when it says something the reason does not ("checksum: expected 4, found 5").
+  const field = (r: ReportEntry) => (r.field && !GENERIC_FIELDS.has(r.field) ? ` (${r.field})` : '');
+  const more = bad.length > 1 ? ` ${bad.length - 1} more ${bad.length === 2 ? 'entry was' : 'entries were'} refused too; \`errors\` lists each.` : '';
   return new HttpError(
     'unprocessable-element-set',
-    detail ?? (first ? `${where(first)}: ${first.message ?? first.code}` : 'No element set could be used.'),
+    detail ?? (first ? `${capitalLine(where(first))}${field(first)}: ${(first.message ?? first.code ?? 'not usable').replace(/\.$/, '')}.${more}` : 'No element set could be used.'),
     {
       errors: bad.map((r) => ({
         where: where(r),

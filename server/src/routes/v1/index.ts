@@ -18,12 +18,14 @@ import {
   type TrackSample,
 } from '@nadirline/shared';
 import type { AppContext } from '../../context.ts';
-import { HttpError, type ProblemCode } from '../../http/problem.ts';
+import { HttpError, withUploadLimits, type ProblemCode } from '../../http/problem.ts';
+import { safeParseMarked, validationProblem } from '../../http/validate.ts';
 import { Satellite } from '../../models/index.ts';
-import { publicEmbed } from '../../services/embeds.ts';
+import { recordAudit } from '../../services/audit.ts';
+import { EMBED_NOT_FOUND, publicEmbed } from '../../services/embeds.ts';
 import { buildOpenApi } from '../../services/openapi.ts';
 import { parsedOf, type CachedSatellite, type CurrentSet } from '../../services/orbit-cache.ts';
-import { getSatelliteService, unprocessable, type ElementFormat, type SatelliteService } from '../../services/satellites.ts';
+import { getSatelliteService, unprocessable, type ElementFormat, type SatelliteService, type UploadResult } from '../../services/satellites.ts';
 import { authenticate, authOf, canSee, corsHeaders, FailedAuthGuard, keyRateLimit, preflight, quotaAndUsage, type V1Auth } from './auth.ts';
 import {
   CAPS,
@@ -44,12 +46,18 @@ const MINUTE_MS = 60_000;
 // ---------------------------------------------------------------------------------------------
 // Small helpers.
 
+/** The query, validated; an empty parameter (`lat=`) counts as not given. Messages: http/validate.ts. */
 function parseQuery<S extends z.ZodType>(schema: S, req: Request): z.output<S> {
-  const r = schema.safeParse(req.query);
-  if (!r.success) {
-    const errors = r.error.issues.map((i) => ({ where: `query.${i.path.join('.') || '(all)'}`, field: String(i.path[0] ?? ''), message: i.message }));
-    throw new HttpError('validation-failed', errors.map((e) => `${e.field || 'query'} ${e.message}`).join('; '), { errors });
+  const raw = req.query as Record<string, unknown>;
+  let query = raw;
+  for (const k in raw) {
+    if (raw[k] === '') {
+      query = Object.fromEntries(Object.entries(raw).filter(([, v]) => v !== ''));
+      break;
+    }
   }
+  const r = safeParseMarked(schema, query);
+  if (!r.success) throw validationProblem(schema, query, r.error.issues, 'query', 'sentence');
   return r.data;
 }
 
@@ -151,6 +159,34 @@ function pointJson(s: TrackSample) {
   return { t: iso(s.t), lat: round(s.lat, 5), lon: round(s.lon, 5), altKm: round(s.altKm, 3), sunlit: s.sunlit };
 }
 
+/**
+ * GeoJSON coordinates to 5 decimals, as the JSON points (about 1 m; RFC 7946 section 11.2 asks
+ * for no more precision than the data has). Split points at ±180 stay exact, and both ends of a
+ * split share one rounded latitude, so the parts still meet.
+ */
+function roundTrackGeoJson(fc: ReturnType<typeof trackToGeoJSON>): void {
+  for (const f of fc.features) {
+    const g = f.geometry;
+    if (g.type === 'MultiLineString') {
+      for (const line of g.coordinates) for (const c of line) for (let i = 0; i < c.length; i++) c[i] = round(c[i] as number, 5);
+    } else if (g.type === 'Point') {
+      for (let i = 0; i < g.coordinates.length; i++) g.coordinates[i] = round(g.coordinates[i] as number, 5);
+    }
+  }
+}
+
+function uploadDetail(stored: number, duplicates: number, rejected: number): string {
+  const sets = (n: number) => `${n} element set${n === 1 ? '' : 's'}`;
+  const parts: string[] = [];
+  if (stored > 0) parts.push(`Stored ${sets(stored)}`);
+  if (duplicates > 0) {
+    const already = `${duplicates === 1 ? 'was' : 'were'} stored already (same epoch)`;
+    parts.push(stored > 0 ? `${duplicates} ${already}` : `Nothing new was stored: ${sets(duplicates)} ${already}`);
+  }
+  if (rejected > 0) parts.push(`${rejected} could not be used (see report)`);
+  return `${parts.join('; ')}.`;
+}
+
 // ---------------------------------------------------------------------------------------------
 
 export async function createV1Router(ctx: AppContext): Promise<Router> {
@@ -166,6 +202,26 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   router.use(corsHeaders);
   router.options('/*splat', preflight(ctx));
   const guard = new FailedAuthGuard();
+
+  /** The activity the console records for an upload, with the key as the actor. Nothing new, nothing recorded. */
+  const auditUpload = async (auth: V1Auth, satellite: Satellite, result: UploadResult, how: string) => {
+    if (result.created.length === 0) return;
+    await recordAudit(ctx, {
+      organizationId: satellite.organizationId,
+      actorKeyId: auth.key.id,
+      action: 'element-set.upload',
+      targetType: 'satellite',
+      targetId: satellite.id,
+      detail: {
+        satellite: satellite.name,
+        how,
+        accepted: result.created.length,
+        ...(result.duplicates ? { duplicates: result.duplicates } : {}),
+        rejected: result.rejected,
+        elementSetIds: result.created.slice(0, 20).map((c) => c.id),
+      },
+    });
+  };
 
   const spec = (method: RouteSpec['method'], path: string): RouteSpec => {
     const s = V1_ROUTES.find((r) => r.method === method && (r.path === path || expressPath(r.path) === path));
@@ -188,13 +244,13 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     const auth = authOf(res);
     const rows = await Satellite.findAll({ where: { organizationId: auth.key.organizationId }, order: [['name', 'ASC']] });
     const visible = rows.filter((s) => canSee(auth, s));
-    const now = new Date();
-    res.json({ satellites: await Promise.all(visible.map((s) => sats.view(s, now))) });
+    res.json({ satellites: await sats.viewsWithUploaders(visible) });
   });
 
   keyed('get', '/satellites/:id', async (req, res) => {
     const c = await visibleSatellite(sats, authOf(res), req.params.id);
-    res.json(await sats.view(c.satellite));
+    const [view] = await sats.viewsWithUploaders([c.satellite]);
+    res.json(view);
   });
 
   keyed('get', '/satellites/:id/elements', async (req, res) => {
@@ -290,6 +346,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
         end: iso(end),
         stepS,
       });
+      roundTrackGeoJson(fc);
       const body = JSON.stringify(fc);
       trackAnswers.set(etag, body, 'application/geo+json; charset=utf-8');
       sendJson(res, body, 'application/geo+json; charset=utf-8');
@@ -349,18 +406,20 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   const jsonBody = express.json({ limit: CAPS.uploadMaxBytes });
   keyed('post', '/satellites', jsonBody, async (req, res) => {
     if (!req.is('application/json')) throw new HttpError('unsupported-media-type', 'Send JSON: { "name": "...", "elements": "<TLE or OMM text>" }.');
-    const r = createSatelliteBody.safeParse(req.body);
-    if (!r.success) {
-      const errors = r.error.issues.map((i) => ({ where: `body.${i.path.join('.')}`, field: String(i.path[0] ?? ''), message: i.message }));
-      throw new HttpError('validation-failed', errors.map((e) => `${e.field} ${e.message}`).join('; '), { errors });
-    }
+    const r = safeParseMarked(createSatelliteBody, req.body);
+    if (!r.success) throw validationProblem(createSatelliteBody, req.body, r.error.issues, 'body', 'sentence');
     const auth = authOf(res);
     const { satellite, upload } = await sats.createSatellite(
       auth.key.organizationId,
       { name: r.data.name, description: r.data.description, elementsText: r.data.elements },
       { keyId: auth.key.id },
     );
-    res.status(201).location(`/v1/satellites/${satellite.id}`).json({ ...(await sats.view(satellite)), report: upload?.report ?? [] });
+    // The same activity the console records, with the key as the actor ("by key <name>").
+    await recordAudit(ctx, { organizationId: satellite.organizationId, actorKeyId: auth.key.id, action: 'satellite.create', targetType: 'satellite', targetId: satellite.id, detail: { name: satellite.name } });
+    if (upload) await auditUpload(auth, satellite, upload, 'text');
+    await satellite.reload();
+    const [view] = await sats.viewsWithUploaders([satellite]);
+    res.status(201).location(`/v1/satellites/${satellite.id}`).json({ ...view, report: upload?.report ?? [] });
   });
 
   const textBody = express.text({ type: ['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'], limit: CAPS.uploadMaxBytes });
@@ -371,7 +430,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     const id = checkId(req.params.id);
     const c = await sats.current(id);
     if (!c || !canSee(auth, c.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
-    if (req.is('multipart/form-data')) files(req, res, next);
+    if (req.is('multipart/form-data')) files(req, res, (err?: unknown) => next(err ? withUploadLimits(err, { fileBytes: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles }) : undefined));
     else if (req.is(['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'])) textBody(req, res, next);
     else throw new HttpError('unsupported-media-type', 'Send the element set as text/plain (TLE or OMM KVN), application/xml (OMM XML), application/json (OMM JSON) or multipart/form-data files.');
   }, async (req, res) => {
@@ -386,25 +445,30 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       upFiles = list.map((f) => ({ name: f.originalname || f.fieldname, text: f.buffer.toString('utf8') }));
       const bodyText = (req.body as Record<string, unknown> | undefined)?.text;
       if (typeof bodyText === 'string' && bodyText.trim()) text = bodyText;
-      if (upFiles.length === 0 && text === undefined) throw new HttpError('validation-failed', 'The form holds no file; send element sets as files[] (or a text field).');
+      if (upFiles.length === 0 && text === undefined) {
+        throw new HttpError('validation-failed', 'The form holds no file; send element sets as files[] (or a text field).', { errors: [{ where: 'body.files[]', field: 'files[]', message: 'files[] holds no file' }] });
+      }
     } else {
       text = typeof req.body === 'string' ? req.body : '';
       if (req.is(['application/xml', 'text/xml', 'application/*+xml'])) format = 'omm-xml';
       else if (req.is(['application/json', 'application/*+json'])) format = 'omm-json';
-      if (!text.trim()) throw new HttpError('validation-failed', 'The body is empty; send the element set itself.', { errors: [{ where: '(body)', message: 'empty' }] });
+      if (!text.trim()) throw new HttpError('validation-failed', 'The body is empty; send the element set itself.', { errors: [{ where: 'body', message: 'body is empty' }] });
     }
     const result = await sats.addElementSets(satellite, { text, format, files: upFiles }, { keyId: auth.key.id });
     if (result.accepted === 0) throw unprocessable(result.report);
+    await auditUpload(auth, satellite, result, upFiles?.length ? `files: ${upFiles.map((f) => f.name).join(', ')}`.slice(0, 300) : (format ?? 'text'));
     const now = new Date();
-    const summaries = result.created.map((r) => {
-      const { uploadedBy: _omit, ...summary } = sats.summary(r, parsedOf(r), now);
-      return summary;
-    });
+    const uploaders = await sats.uploaderNames(result.created);
+    const summaries = result.created.map((r) => sats.summary(r, parsedOf(r), now, uploaders));
     const first = result.created[0];
-    res.status(result.created.length > 0 ? 201 : 200).json({
+    const stored = result.created.length;
+    // accepted counts the sets stored by this request; duplicates (epochs already stored) apart.
+    res.status(stored > 0 ? 201 : 200).json({
+      detail: uploadDetail(stored, result.duplicates, result.rejected),
       elementSet: first ? { ...summaries[0], elements: parsedOf(first) } : null,
       elementSets: summaries,
-      accepted: result.accepted,
+      accepted: stored,
+      duplicates: result.duplicates,
       rejected: result.rejected,
       report: result.report,
     });
@@ -412,7 +476,26 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
 
   // -- public ----------------------------------------------------------------------------------
 
-  router.get('/embeds/:id', authenticate(ctx, 'read', { embedFromPath: 'id', guard }), limiter, quotaAndUsage(ctx, 'GET /v1/embeds/{id}'), async (req, res) => {
+  // An unknown embed id in the path is a missing resource (404), not a wrong credential; the
+  // failed lookup still counts against the caller's failed-credential budget (auth.ts).
+  const embedAuth = authenticate(ctx, 'read', { embedFromPath: 'id', guard });
+  const unknownEmbed = (id: string) => (err: unknown): never => {
+    if (err instanceof HttpError && err.code === 'invalid-key' && err.extras['reason'] === EMBED_NOT_FOUND) {
+      throw new HttpError('not-found', `No embed ${id} exists; it may have been deleted. Ask the site that showed it for a new snippet or link.`);
+    }
+    throw err;
+  };
+  const embedByPath: RequestHandler = (req, res, next) => {
+    const onError = unknownEmbed(String(req.params.id ?? ''));
+    try {
+      const r = embedAuth(req, res, next) as unknown;
+      return r instanceof Promise ? r.catch(onError) : undefined;
+    } catch (err) {
+      return onError(err);
+    }
+  };
+
+  router.get('/embeds/:id', embedByPath, limiter, quotaAndUsage(ctx, 'GET /v1/embeds/{id}'), async (req, res) => {
     const { embed } = authOf(res);
     if (!embed) throw new HttpError('not-found', 'No such embed.');
     res.setHeader('Cache-Control', 'private, max-age=30');

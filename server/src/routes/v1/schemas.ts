@@ -4,6 +4,7 @@
  * same table into the OpenAPI 3.1 document, so the two cannot drift apart.
  */
 import { z } from 'zod';
+import { expects } from '../../http/validate.ts';
 
 /** Request caps (also published in the OpenAPI document and on /docs/api). */
 export const CAPS = {
@@ -29,35 +30,47 @@ export const CAPS = {
 
 const DAY_MS = 86_400_000;
 
+const ISO_EXAMPLE = '2025-01-31T12:00:00Z';
+
 /** An ISO 8601 date-time with a zone (Z or ±hh:mm), to Unix ms. */
 const isoTime = (description: string) =>
-  z
-    .string()
-    .max(40)
-    .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/i, 'must be an ISO 8601 UTC time such as 2025-01-31T12:00:00Z')
-    .transform((v, ctx) => {
-      const ms = Date.parse(v);
-      if (!Number.isFinite(ms)) {
-        ctx.addIssue({ code: 'custom', message: 'is not a real date and time' });
-        return z.NEVER;
-      }
-      if (Math.abs(ms - Date.now()) > CAPS.maxTimeOffsetDays * DAY_MS) {
-        ctx.addIssue({ code: 'custom', message: `must lie within ${CAPS.maxTimeOffsetDays} days of now` });
-        return z.NEVER;
-      }
-      return ms;
-    })
-    .meta({ format: 'date-time', description, example: '2025-01-31T12:00:00Z' });
+  expects(
+    z
+      .string()
+      .max(40)
+      .regex(/^\d{4}-\d{2}-\d{2}T\d{2}:\d{2}(:\d{2}(\.\d{1,9})?)?(Z|[+-]\d{2}:?\d{2})$/i, 'must be an ISO 8601 UTC time such as 2025-01-31T12:00:00Z')
+      .transform((v, ctx) => {
+        const ms = Date.parse(v);
+        if (!Number.isFinite(ms)) {
+          ctx.addIssue({ code: 'custom', message: 'is not a real date and time' });
+          return z.NEVER;
+        }
+        if (Math.abs(ms - Date.now()) > CAPS.maxTimeOffsetDays * DAY_MS) {
+          ctx.addIssue({ code: 'custom', message: `must lie within ${CAPS.maxTimeOffsetDays} days of now` });
+          return z.NEVER;
+        }
+        return ms;
+      })
+      .meta({ format: 'date-time', description, example: ISO_EXAMPLE }),
+    `an ISO 8601 UTC time such as ${ISO_EXAMPLE}`,
+  );
 
-const num = (min: number, max: number, description: string) => z.coerce.number().min(min).max(max).meta({ description });
+/** A number from a query parameter; `what` says in words what it is, for messages. */
+const num = (min: number, max: number, description: string, what: string) => expects(z.coerce.number().min(min).max(max).meta({ description }), what);
 
-export const idParam = z.string().min(1).max(40).regex(/^[A-Za-z0-9_-]+$/, 'is not a satellite id').meta({ description: 'Satellite id, as GET /v1/satellites lists it.' });
+export const SATELLITE_ID = /^[A-Za-z0-9_-]{1,40}$/;
+export const idParam = z.string().min(1).max(40).regex(SATELLITE_ID, 'is not a satellite id').meta({ description: 'Satellite id, as GET /v1/satellites lists it.' });
 
 export const trackQuery = z.object({
   start: isoTime('First point. Default: now, rounded down to the minute.').optional(),
   end: isoTime(`Last point at or before this time. Default: one orbital period after start. At most ${CAPS.trackMaxWindowS / 3600} h after start.`).optional(),
-  step: num(CAPS.trackMinStepS, CAPS.trackMaxStepS, `Seconds between points (default ${CAPS.trackDefaultStepS}). At most ${CAPS.trackMaxPoints} points per answer.`).optional(),
-  format: z.enum(['json', 'geojson']).default('json').meta({ description: 'json (points) or geojson (a FeatureCollection whose line is split at the antimeridian, RFC 7946 section 3.1.9).' }),
+  step: num(
+    CAPS.trackMinStepS,
+    CAPS.trackMaxStepS,
+    `Seconds between points (default ${CAPS.trackDefaultStepS}). At most ${CAPS.trackMaxPoints} points per answer.`,
+    `a number of seconds from ${CAPS.trackMinStepS} to ${CAPS.trackMaxStepS}`,
+  ).optional(),
+  format: expects(z.enum(['json', 'geojson']), 'json or geojson').default('json').meta({ description: 'json (points) or geojson (a FeatureCollection whose line is split at the antimeridian, RFC 7946 section 3.1.9).' }),
 });
 
 export const positionQuery = z.object({
@@ -65,30 +78,56 @@ export const positionQuery = z.object({
 });
 
 export const positionsQuery = z.object({
-  ids: z
-    .string()
-    .min(1)
-    .max(CAPS.positionsMaxIds * 41)
-    .transform((v) => [...new Set(v.split(',').map((s) => s.trim()).filter(Boolean))])
-    .pipe(z.array(idParam).min(1).max(CAPS.positionsMaxIds, `at most ${CAPS.positionsMaxIds} ids`))
-    .meta({ description: `Comma-separated satellite ids, at most ${CAPS.positionsMaxIds}.`, example: 'sat_abc,sat_def' }),
+  ids: expects(
+    z
+      .string()
+      .max(CAPS.positionsMaxIds * 41)
+      .transform((v, ctx) => {
+        const ids = [...new Set(v.split(',').map((s) => s.trim()).filter(Boolean))];
+        const quote = (x: string) => `'${x.length > 40 ? `${x.slice(0, 37)}\u2026` : x}'`;
+        const bad = ids.filter((id) => !SATELLITE_ID.test(id));
+        const showsValue = { showsValue: true };
+        if (ids.length === 0) ctx.addIssue({ code: 'custom', message: `names no satellite id; give comma-separated satellite ids (at most ${CAPS.positionsMaxIds})` });
+        else if (ids.length > CAPS.positionsMaxIds) ctx.addIssue({ code: 'custom', message: `holds ${ids.length} ids; at most ${CAPS.positionsMaxIds} per request`, params: showsValue });
+        else if (bad.length > 0) {
+          ctx.addIssue({ code: 'custom', message: `holds ${bad.length === 1 ? 'a value that is' : 'values that are'} not a satellite id: ${bad.slice(0, 3).map(quote).join(', ')}`, params: showsValue });
+        }
+        else return ids;
+        return z.NEVER;
+      })
+      .meta({ description: `Comma-separated satellite ids, at most ${CAPS.positionsMaxIds}.`, example: 'sat_abc,sat_def' }),
+    `comma-separated satellite ids (at most ${CAPS.positionsMaxIds})`,
+  ),
   at: isoTime('Time of the positions. Default: now.').optional(),
 });
 
 export const passesQuery = z.object({
-  lat: num(-90, 90, 'Observer latitude, degrees north (WGS-84).'),
-  lon: num(-180, 180, 'Observer longitude, degrees east.'),
-  altM: num(-500, 9_000, 'Observer height above the ellipsoid, metres (default 0).').default(0),
+  lat: num(-90, 90, 'Observer latitude, degrees north (WGS-84).', 'the observer\u2019s latitude, a number of degrees from -90 to 90'),
+  lon: num(-180, 180, 'Observer longitude, degrees east.', 'the observer\u2019s longitude, a number of degrees from -180 to 180'),
+  altM: num(-500, 9_000, 'Observer height above the ellipsoid, metres (default 0).', 'the observer\u2019s height, a number of metres from -500 to 9000').default(0),
   start: isoTime('Start of the search. Default: now.').optional(),
-  days: num(0.01, CAPS.passesMaxDays, `Length of the search, days (default ${CAPS.passesDefaultDays}, at most ${CAPS.passesMaxDays}).`).default(CAPS.passesDefaultDays),
-  minElevation: num(0, 89, `Elevation mask, degrees (default ${CAPS.passesDefaultMinElevationDeg}).`).default(CAPS.passesDefaultMinElevationDeg),
+  days: num(
+    0.01,
+    CAPS.passesMaxDays,
+    `Length of the search, days (default ${CAPS.passesDefaultDays}, at most ${CAPS.passesMaxDays}).`,
+    `a number of days from 0.01 to ${CAPS.passesMaxDays}`,
+  ).default(CAPS.passesDefaultDays),
+  minElevation: num(0, 89, `Elevation mask, degrees (default ${CAPS.passesDefaultMinElevationDeg}).`, 'an elevation mask, a number of degrees from 0 to 89').default(
+    CAPS.passesDefaultMinElevationDeg,
+  ),
 });
 
-export const createSatelliteBody = z.object({
-  name: z.string().trim().min(1).max(200).meta({ description: 'Display name.' }),
-  elements: z.string().max(CAPS.uploadMaxBytes).optional().meta({ description: 'Element set text: TLE (two or three lines), OMM KVN, OMM XML or OMM JSON.' }),
-  description: z.string().max(5_000).optional(),
-});
+export const createSatelliteBody = expects(
+  z.object({
+    name: expects(z.string().trim().min(1).max(200).meta({ description: 'Display name.' }), 'the satellite\u2019s display name, 1 to 200 characters'),
+    elements: expects(
+      z.string().max(CAPS.uploadMaxBytes).optional().meta({ description: 'Element set text: TLE (two or three lines), OMM KVN, OMM XML or OMM JSON.' }),
+      'element-set text (a TLE, or OMM as KVN, XML or JSON) in one JSON string',
+    ),
+    description: expects(z.string().max(5_000).optional(), 'text of at most 5000 characters'),
+  }),
+  'a JSON object with name and elements',
+);
 
 // ---------------------------------------------------------------------------------------------
 // Response shapes (documentation; the handlers build these objects).
@@ -101,6 +140,7 @@ export const elementSetSummarySchema = z.object({
   epoch: t,
   ageDays: z.number(),
   staleness: z.enum(['fresh', 'aging', 'stale']),
+  uploadedBy: z.string().nullable().meta({ description: 'Who stored the set: a member\u2019s name, or "key <name>" for an upload with a server key (as the console shows it)' }),
   createdAt: t,
   catalogNumber: z.string(),
   name: z.string(),
@@ -187,10 +227,12 @@ export const reportEntrySchema = z.object({
   file: z.string().optional(),
 });
 export const uploadSchema = z.object({
-  elementSet: elementSetSummarySchema.extend({ elements: z.record(z.string(), z.unknown()) }).nullable(),
-  elementSets: z.array(elementSetSummarySchema),
-  accepted: z.number().int(),
-  rejected: z.number().int(),
+  detail: z.string().meta({ description: 'One sentence: how many sets were stored, were stored already, or could not be used' }),
+  elementSet: elementSetSummarySchema.extend({ elements: z.record(z.string(), z.unknown()) }).nullable().meta({ description: 'The first set stored by this request; null when nothing new was stored' }),
+  elementSets: z.array(elementSetSummarySchema).meta({ description: 'Every set stored by this request' }),
+  accepted: z.number().int().meta({ description: 'Sets stored by this request (the length of elementSets)' }),
+  duplicates: z.number().int().meta({ description: 'Usable sets whose epoch this satellite had already: nothing new was written for them' }),
+  rejected: z.number().int().meta({ description: 'Sets that could not be used; their report entries say why' }),
   report: z.array(reportEntrySchema),
 });
 
@@ -323,14 +365,14 @@ export const V1_ROUTES: RouteSpec[] = [
     access: 'write',
     body: createSatelliteBody,
     responses: { '201': { description: 'The new satellite; `report` lists each submitted element set', schema: satelliteSchema.extend({ report: z.array(reportEntrySchema) }) } },
-    problems: ['validation-failed', 'unprocessable-element-set', 'payload-too-large'],
+    problems: ['bad-request', 'validation-failed', 'unsupported-media-type', 'unprocessable-element-set', 'payload-too-large'],
   },
   {
     method: 'post',
     path: '/satellites/{id}/element-sets',
     operationId: 'uploadElementSets',
     summary: 'Upload element sets (server key with element-sets:write)',
-    description: `The body is the element set itself. A text or file may hold many sets; each gets a report entry. 201 when at least one set was stored, 422 with line and column when none was usable. Bodies and files up to ${CAPS.uploadMaxBytes / 1024 / 1024} MiB, at most ${CAPS.uploadMaxFiles} files.`,
+    description: `The body is the element set itself. A text or file may hold many sets; each gets a report entry. 201 when at least one set was stored; 200 when every usable set was stored already (same epoch); 422 with line and column when none was usable; 400 for an empty body or a form without files. Bodies and files up to ${CAPS.uploadMaxBytes / 1024 / 1024} MiB, at most ${CAPS.uploadMaxFiles} files.`,
     access: 'write',
     bodies: {
       'text/plain': 'TLE (two or three lines per set) or OMM KVN',
@@ -340,9 +382,9 @@ export const V1_ROUTES: RouteSpec[] = [
     },
     responses: {
       '201': { description: 'Stored; per-entry report', schema: uploadSchema },
-      '200': { description: 'Every usable set was already stored (duplicates by epoch); nothing new' , schema: uploadSchema },
+      '200': { description: 'Every usable set was stored already (same epoch): accepted 0, duplicates counted, nothing new', schema: uploadSchema },
     },
-    problems: ['not-found', 'unprocessable-element-set', 'unsupported-media-type', 'payload-too-large'],
+    problems: ['bad-request', 'validation-failed', 'not-found', 'unprocessable-element-set', 'unsupported-media-type', 'payload-too-large'],
   },
   {
     method: 'get',
