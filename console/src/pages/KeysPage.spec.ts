@@ -94,4 +94,42 @@ describe('the keys page', () => {
     expect(wrapper.text()).toContain('nlb_…igIQ');
     wrapper.unmount();
   });
+
+  it('keeps the new key on screen when Escape is pressed before it was stored, and asks first', async () => {
+    const { wrapper } = await open('admin');
+    await wrapper.findAll('button').find((b) => /create a key/i.test(b.text()))!.trigger('click');
+    await flushPromises();
+    const name = document.body.querySelector<HTMLInputElement>('input[type="text"][maxlength="200"]')!;
+    name.value = 'Museum kiosk';
+    name.dispatchEvent(new Event('input'));
+    const origins = document.body.querySelector<HTMLTextAreaElement>('[role="dialog"] textarea')!;
+    origins.value = 'https://kiosk.kestrel.example';
+    origins.dispatchEvent(new Event('input'));
+    await flushPromises();
+    [...document.body.querySelectorAll<HTMLButtonElement>('button[type="submit"]')].find((b) => /create key/i.test(b.textContent ?? ''))!.click();
+    await flushPromises();
+    expect(document.body.textContent).toContain(SECRET);
+
+    const escape = () => (document.activeElement ?? document.body).dispatchEvent(new KeyboardEvent('keydown', { key: 'Escape', bubbles: true, cancelable: true }));
+    const button = (text: RegExp) => [...document.body.querySelectorAll('button')].find((b) => text.test(b.textContent ?? ''));
+    escape();
+    await flushPromises();
+    expect(document.body.textContent).toContain(SECRET);
+    expect(useKeysStore().revealed).not.toBeNull();
+    expect(document.body.textContent).toMatch(/You have not stored it yet — close anyway\?/);
+    expect(document.activeElement?.textContent).toBe('Keep it open');
+
+    button(/^keep it open$/i)!.click();
+    await flushPromises();
+    expect(document.body.textContent).not.toMatch(/close anyway/);
+    expect(button(/i have stored the key/i)).toBeTruthy();
+
+    escape();
+    await flushPromises();
+    button(/close without storing/i)!.click();
+    await flushPromises();
+    expect(document.body.textContent).not.toContain(SECRET);
+    expect(useKeysStore().revealed).toBeNull();
+    wrapper.unmount();
+  });
 });
