@@ -192,7 +192,12 @@ describe('the console against the real server', () => {
     expect(await rows.nth(0).textContent()).toContain('Accepted');
     const bad = (await rows.nth(1).textContent()) ?? '';
     expect(bad).toContain('Rejected');
-    expect(bad).toMatch(/line 6, column 69/);
+    // One place and a readable field name, not "checksum: line 6 column 69: ...".
+    expect(bad).toMatch(/Line 6, column 69 — Checksum: expected \d, found \d/);
+    expect(bad).not.toMatch(/checksum:|line 6 column 69/);
+    // The file went: the list is empty and the button cannot send it a second time.
+    expect(await page.getByRole('list', { name: 'Files to send' }).count()).toBe(0);
+    expect(await page.getByRole('button', { name: 'Check and save' }).isDisabled()).toBe(true);
     // The accepted set is now current: the orbit is derived and shown.
     await page.getByRole('heading', { name: 'Derived orbit' }).waitFor();
   });

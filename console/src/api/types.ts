@@ -111,6 +111,8 @@ export interface UploadReportEntry {
   line: number;
   ok: boolean;
   elementSetId?: string;
+  /** Accepted, but the same as a set the satellite already holds. */
+  duplicate?: boolean;
   code?: string;
   field?: string;
   message?: string;

@@ -30,7 +30,7 @@ describe('adding element sets', () => {
     await flushPromises();
     expect(calls.at(-1)!.body).toEqual({ text: 'KESTREL-1\n1 99901U ...\n2 99901 ...' });
     expect(wrapper.text()).toMatch(/0\s+element sets accepted,\s+1\s+rejected/);
-    expect(wrapper.text()).toContain('line 2, column 69');
+    expect(wrapper.text()).toContain('Line 2, column 69 — Checksum: checksum digit is 3, the line sums to 7');
     expect(wrapper.find('textarea').element.value).toContain('KESTREL-1');
     wrapper.unmount();
   });
@@ -64,6 +64,38 @@ describe('adding element sets', () => {
     const post = calls.find((c) => c.method === 'POST')!;
     expect((post.body as FormData).getAll('files[]').map((f) => (f as File).name)).toEqual(['a.tle', 'b.xml']);
     expect(wrapper.text()).toMatch(/2\s+element sets accepted/);
+
+    // The files are sent: the list empties and the button waits for new files.
+    expect(wrapper.find('ul.files').exists()).toBe(false);
+    expect(wrapper.find('[data-test="files-sent"]').text()).toContain('Sent a.tle, b.xml');
+    const button = wrapper.findAll('button[type="submit"]').find((b) => /check and save/i.test(b.text()))!;
+    expect(button.attributes('disabled')).toBeDefined();
+    await wrapper.findAll('form')[0]!.trigger('submit');
+    await flushPromises();
+    expect(calls.filter((c) => c.method === 'POST')).toHaveLength(1);
+    wrapper.unmount();
+  });
+
+  it('empties the file list after an upload the server refused entirely too', async () => {
+    const bad = { index: 1, line: 1, ok: false, code: 'syntax', field: 'xml', message: 'not well-formed XML', file: 'b.xml' };
+    const { calls } = mockFetch([
+      { path: '/api/session', body: session('editor') },
+      { method: 'POST', path: '/api/orgs/org1/satellites/s1/element-sets', ...problem(422, 'unprocessable-element-set', 'No element set was usable.', { report: [bad] }) },
+    ]);
+    const { wrapper } = await mountAt(ElementSetUpload, '/o/org1/satellites/s1', { org: 'org1', satelliteId: 's1' });
+    await wrapper.findAll('[role="tab"]')[1]!.trigger('click');
+    await flushPromises();
+    const input = wrapper.find<HTMLInputElement>('input[type="file"]');
+    Object.defineProperty(input.element, 'files', { value: [new File(['<omm'], 'b.xml')], configurable: true });
+    await input.trigger('change');
+    expect(wrapper.find('ul.files').text()).toContain('b.xml');
+    await wrapper.findAll('form')[0]!.trigger('submit');
+    await flushPromises();
+    expect(wrapper.find('section.report').text()).toContain('not well-formed XML');
+    expect(wrapper.find('ul.files').exists()).toBe(false);
+    await wrapper.findAll('form')[0]!.trigger('submit');
+    await flushPromises();
+    expect(calls.filter((c) => c.method === 'POST')).toHaveLength(1);
     wrapper.unmount();
   });
 });
