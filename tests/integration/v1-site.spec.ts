@@ -128,6 +128,21 @@ describe('examples and the hosted embed page', () => {
     await request(t.app).get('/examples/package.json').expect(404);
   });
 
+  it('serves Markdown examples as UTF-8 plain text that browsers show instead of downloading', async () => {
+    const md = fs.readdirSync(path.join(repoRoot, 'examples')).find((f) => f.endsWith('.md'));
+    expect(md, 'an example in Markdown').toBeDefined();
+    const res = await request(t.app).get(`/examples/${md}`).expect(200);
+    expect(res.headers['content-type']).toBe('text/plain; charset=utf-8');
+    expect(res.headers['content-disposition']).toBeUndefined();
+    expect(res.text.length).toBeGreaterThan(100);
+  });
+
+  it('answers a broken percent-encoding in an example path with a readable 400 problem', async () => {
+    const res = await request(t.app).get('/examples/%E0%A4%A.html').expect(400);
+    expect(res.body.code).toBe('bad-request');
+    expect(res.body.detail).toMatch(/^The URL holds a broken percent-encoding/);
+  });
+
   it('serves a page holding only the widget for a saved embed, framable by the key\u2019s origins', async () => {
     const res = await request(t.app).get(`/embed/${creds.embedId}`).expect(200);
     expect(res.text).toContain(`embed="${creds.embedId}"`);

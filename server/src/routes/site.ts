@@ -73,8 +73,30 @@ th { font-weight: 600; color: var(--muted); }
 .method { display: inline-block; min-width: 3.5rem; font-weight: 600; color: var(--accent); }
 .muted { color: var(--muted); }
 .note { border-left: 3px solid var(--warn); padding: .25rem .75rem; color: var(--muted); }
-nav.top { display: flex; gap: 1rem; font-size: .95rem; margin-bottom: 1.5rem; }
+nav.top { display: flex; flex-wrap: wrap; gap: .5rem 1rem; font-size: .95rem; margin-bottom: 1.5rem; }
+td, li, p, h1, h2, h3 { overflow-wrap: anywhere; }
+/* Narrow screens: each row of a wide table becomes a block, each cell labelled by its column. */
+@media (max-width: 40rem) {
+  main { padding: 1.25rem 1rem 3rem; }
+  table.stack, table.stack tbody, table.stack tr, table.stack td { display: block; width: 100%; }
+  table.stack tr.head { display: none; }
+  table.stack tr { padding: .5rem 0; border-bottom: 1px solid var(--rule); }
+  table.stack td { padding: .1rem 0; border: 0; }
+  table.stack td[data-label]::before { content: attr(data-label) ": "; font-weight: 600; color: var(--muted); }
+  table.stack td.lead::before { content: none; }
+  table.stack td:empty { display: none; }
+  table.stack td.lead { font-weight: 600; }
+}
 `;
+
+/** A table that stacks on narrow screens: the first column leads each block, the others carry their column's name. */
+function stackTable(headers: readonly string[], rows: ReadonlyArray<{ id?: string; cells: readonly string[] }>): string {
+  const head = `<tr class="head">${headers.map((h) => `<th scope="col">${esc(h)}</th>`).join('')}</tr>`;
+  const body = rows
+    .map((r) => `<tr${r.id ? ` id="${esc(r.id)}"` : ''}>${r.cells.map((c, i) => (i === 0 ? `<td class="lead">${c}</td>` : `<td data-label="${esc(headers[i] ?? '')}">${c}</td>`)).join('')}</tr>`)
+    .join('');
+  return `<table class="stack">${head}${body}</table>`;
+}
 
 function page(title: string, body: string): string {
   return `<!doctype html>
@@ -105,14 +127,12 @@ function schemaText(schema: Json | undefined): string {
 function fieldsTable(schema: Json | undefined): string {
   const props = (schema?.properties ?? null) as Record<string, Json> | null;
   if (!props) return '';
-  const rows = Object.entries(props)
-    .map(([k, v]) => {
-      const inner = v.type === 'array' ? (v.items as Json | undefined) : v;
-      const nested = inner?.properties ? ` <span class="muted">{ ${Object.keys(inner.properties as Json).map(esc).join(', ')} }</span>` : '';
-      return `<tr><td><code>${esc(k)}</code></td><td>${schemaText(v)}${nested}</td><td>${esc(String(v.description ?? ''))}</td></tr>`;
-    })
-    .join('');
-  return `<table><tr><th>field</th><th>type</th><th>meaning</th></tr>${rows}</table>`;
+  const rows = Object.entries(props).map(([k, v]) => {
+    const inner = v.type === 'array' ? (v.items as Json | undefined) : v;
+    const nested = inner?.properties ? ` <span class="muted">{ ${Object.keys(inner.properties as Json).map(esc).join(', ')} }</span>` : '';
+    return { cells: [`<code>${esc(k)}</code>`, `${schemaText(v)}${nested}`, esc(String(v.description ?? ''))] };
+  });
+  return stackTable(['field', 'type', 'meaning'], rows);
 }
 
 export function renderApiReference(doc: ReturnType<typeof buildOpenApi>, baseUrl: string): string {
@@ -125,9 +145,9 @@ export function renderApiReference(doc: ReturnType<typeof buildOpenApi>, baseUrl
       const anchor = String(op.operationId);
       index.push(`<li><a href="#${esc(anchor)}"><span class="method">${method.toUpperCase()}</span> <code>${esc(p)}</code></a> <span class="muted">${esc(String(op.summary))}</span></li>`);
       const params = (op.parameters as Json[]).filter((x) => x.in !== 'query' || (x.name !== 'key' && x.name !== 'embed'));
-      const paramRows = params
-        .map((x) => `<tr><td><code>${esc(String(x.name))}</code></td><td>${esc(String(x.in))}${x.required ? ', required' : ''}</td><td>${schemaText(x.schema as Json)}</td><td>${prose(String(x.description ?? ''))}</td></tr>`)
-        .join('');
+      const paramRows = params.map((x) => ({
+        cells: [`<code>${esc(String(x.name))}</code>`, `${esc(String(x.in))}${x.required ? ', required' : ''}`, schemaText(x.schema as Json), prose(String(x.description ?? ''))],
+      }));
       const responses = Object.entries(op.responses as Record<string, Json>)
         .map(([status, r]) => {
           const content = r.content as Record<string, Json> | undefined;
@@ -143,7 +163,7 @@ export function renderApiReference(doc: ReturnType<typeof buildOpenApi>, baseUrl
 <p>${esc(String(op.summary))}</p>
 ${op.description ? `<p class="muted">${prose(String(op.description))}</p>` : ''}
 <p class="muted">Credential: ${(op.security as unknown[]).length === 0 ? 'none' : method === 'post' ? 'server key with <code>element-sets:write</code> (Authorization: Bearer)' : 'any key (Authorization: Bearer), or <code>?key=</code> with a browser key, or <code>?embed=</code>'}</p>
-${paramRows ? `<table><tr><th>parameter</th><th>in</th><th>type</th><th>meaning</th></tr>${paramRows}</table>` : ''}
+${paramRows.length ? stackTable(['parameter', 'in', 'type', 'meaning'], paramRows) : ''}
 ${bodyTypes.length ? `<h3>Body</h3><p>${bodyTypes.map((t) => `<code>${esc(t)}</code>`).join(', ')}</p>${fieldsTable(bodyJson)}` : ''}
 ${responses}
 </section>`);
@@ -157,7 +177,7 @@ ${responses}
 <p class="muted">Version ${esc(String(info.version))} · base URL <code>${esc(baseUrl)}/v1</code></p>
 <p>${prose(String(info.description))}</p>
 <h2>Keys</h2>
-<p><strong>Browser keys</strong> (<code>nlb_…</code>) are read-only and work only from web pages of the origins they list (exact, like <code>https://www.example.org</code>, or a wildcard subdomain, like <code>https://*.example.org</code>); they may go in page source and in <code>?key=</code> on GET. A request with a browser key that names no origin (no Origin or Referer header, as from curl) is refused. <strong>Server keys</strong> (<code>nls_…</code>) are secret and belong on your backend, in the <code>Authorization: Bearer</code> header only; with the <code>element-sets:write</code> scope they may upload element sets. A rotated key keeps working until its grace period ends; a revoked key stops at once.</p>
+<p><strong>Browser keys</strong> (<code>nlb_…</code>) are read-only and work only from web pages of the origins they list (exact, like <code>https://www.example.org</code>, or a wildcard, like <code>https://*.example.org</code>, which matches subdomains at any depth but not <code>https://example.org</code> itself); they may go in page source and in <code>?key=</code> on GET. A request with a browser key that names no origin (no Origin or Referer header, as from curl) is refused. <strong>Server keys</strong> (<code>nls_…</code>) are secret and belong on your backend, in the <code>Authorization: Bearer</code> header only; with the <code>element-sets:write</code> scope they may upload element sets. A rotated key keeps working until its grace period ends; a revoked key stops at once.</p>
 <h2>Limits</h2>
 <table><tr><th>limit</th><th>value</th></tr>
 <tr><td>track window</td><td>at most ${Number(caps.trackMaxWindowS) / 3600} h</td></tr>
@@ -175,15 +195,13 @@ ${sections.join('\n')}`,
 }
 
 export function renderProblems(): string {
-  const rows = PROBLEM_DOCS.map(
-    (p) => `<tr id="${esc(p.code)}"><td><code>${esc(p.code)}</code></td><td>${p.status}</td><td>${esc(p.title)}</td><td>${prose(p.meaning)}</td></tr>`,
-  ).join('');
+  const rows = PROBLEM_DOCS.map((p) => ({ id: p.code, cells: [`<code>${esc(p.code)}</code>`, String(p.status), esc(p.title), prose(p.meaning)] }));
   return page(
     'Problem codes',
     `<nav class="top"><a href="/">Console</a><a href="/docs/api">API reference</a></nav>
 <h1>Problem codes</h1>
-<p>Every error is <code>application/problem+json</code> (RFC 9457): <code>type</code> (this page and the code as fragment, <code>${esc(PROBLEM_TYPE_BASE)}&lt;code&gt;</code>), <code>title</code>, <code>status</code>, <code>detail</code> (a sentence for people), and <code>code</code> (stable, for programs). Validation problems add <code>errors: [{ where, message, field?, line?, column? }]</code>.</p>
-<table><tr><th>code</th><th>status</th><th>title</th><th>meaning and what to do</th></tr>${rows}</table>`,
+<p>Every error is <code>application/problem+json</code> (RFC 9457): <code>type</code> (this page and the code as fragment, <code>${esc(PROBLEM_TYPE_BASE)}&lt;code&gt;</code>), <code>title</code>, <code>status</code>, <code>detail</code> (a sentence for people), and <code>code</code> (stable, for programs). Validation problems add <code>errors: [{ where, message, field?, line?, column? }]</code>. <code>instance</code> is the request\u2019s path, without its query string.</p>
+${stackTable(['code', 'status', 'title', 'meaning and what to do'], rows)}`,
   );
 }
 
@@ -331,11 +349,14 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
     if (!stat.isFile()) throw new HttpError('not-found', `No example ${rel}.`);
     res.setHeader('Cache-Control', 'no-cache');
     res.setHeader('X-Content-Type-Options', 'nosniff');
-    if (/\.(html|js|mjs|css|json|txt)$/.test(file)) {
+    if (/\.(html|js|mjs|css|json|txt|md)$/.test(file)) {
       const text = await fs.promises.readFile(file, 'utf8');
       const host = req.get('host');
       const apiBase = host ? `${req.protocol}://${host}` : config.publicUrl;
-      res.type(path.extname(file)).send(substituteDemo(text, credentials(), apiBase));
+      // Markdown as plain text, so browsers show it instead of downloading it.
+      if (file.endsWith('.md')) res.setHeader('Content-Type', 'text/plain; charset=utf-8');
+      else res.type(path.extname(file));
+      res.send(substituteDemo(text, credentials(), apiBase));
       return;
     }
     res.sendFile(file);

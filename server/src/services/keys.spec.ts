@@ -63,6 +63,7 @@ describe('origins', () => {
     expect(originAllowed(allowed, 'https://badexample.org')).toBe(false);
     expect(originAllowed(allowed, 'http://a.example.org')).toBe(false);
     expect(originAllowed(allowed, 'https://a.example.org.evil.net')).toBe(false);
+    expect(originAllowed(allowed, 'https://a.example.org:8443')).toBe(false);
   });
 
   it('never matches the opaque origin "null"', () => {

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { CAPS, V1_ROUTES, routeTemplate } from '../routes/v1/schemas.ts';
+import { PROBLEM_TYPES } from '../http/problem.ts';
 import { buildOpenApi, PROBLEM_DOCS } from './openapi.ts';
 import { monthStart, nextMonthStart, PLAN_CATALOG, planOf } from './quota.ts';
 import { daysBetween, utcDay } from './usage.ts';
@@ -33,6 +34,23 @@ describe('OpenAPI document', () => {
     }
     expect(codes.size).toBeGreaterThan(10);
     for (const c of codes) expect(PROBLEM_DOCS.find((p) => p.code === c)?.meaning, c).toBeTruthy();
+  });
+
+  it('gives every problem code, console ones included, a meaning and what to do', () => {
+    expect(PROBLEM_DOCS.map((p) => p.code).sort()).toEqual(Object.keys(PROBLEM_TYPES).sort());
+    for (const p of PROBLEM_DOCS) {
+      expect(p.meaning.length, p.code).toBeGreaterThan(40);
+      // Two sentences at least, or one that says what to do after a semicolon: the meaning, then the remedy.
+      expect(p.meaning, p.code).toMatch(/\. \S|; /);
+    }
+  });
+
+  it('describes every path parameter', () => {
+    for (const ops of Object.values(doc.paths)) {
+      for (const op of Object.values(ops) as Array<{ parameters: Array<{ in: string; name: string; description?: string }> }>) {
+        for (const p of op.parameters.filter((x) => x.in === 'path')) expect(p.description, p.name).toMatch(/ id/);
+      }
+    }
   });
 
   it('names usage endpoints by route template', () => {

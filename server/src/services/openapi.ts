@@ -23,35 +23,47 @@ function schemaOf(s: z.ZodType, io: 'input' | 'output'): JsonSchema {
   return js;
 }
 
-/** One plain sentence per problem code: what it means and what to do. */
-const MEANINGS: Partial<Record<ProblemCode, string>> = {
-  'validation-failed': 'A query parameter or body field is missing, malformed or outside its cap; `errors` names each one.',
-  'unauthenticated': 'No key was sent. Use `Authorization: Bearer <key>`, or `?key=` with a browser key on GET.',
-  'invalid-key': 'The key text is unknown (mistyped, cut short, or deleted), or a server key was put in a URL.',
+/** Per problem code: what it means and what to do (every code has one; /docs/problems shows them). */
+const MEANINGS: Record<ProblemCode, string> = {
+  'bad-request': 'The request could not be read: the body is not valid JSON, the URL holds a broken percent-encoding, or a form upload is malformed. The detail names which; fix the request and send it again.',
+  'validation-failed': 'A query parameter or body field is missing, malformed, given twice or outside its cap; `errors` names each one with what it expects. Correct them and send again.',
+  'invalid-token': 'A link from an e-mail (address confirmation, password reset, invitation) is unknown, used already or expired. Ask for a new one: from the sign-in page, or from the admin who invited you.',
+  'unauthenticated': 'No credential was sent. For /v1 use `Authorization: Bearer <key>`, or `?key=` with a browser key on GET; in the console, sign in again.',
+  'invalid-credentials': 'The e-mail address and password do not match an account. Check both, or reset the password from the sign-in page.',
+  'invalid-key': 'The key text is unknown (mistyped, cut short, or deleted), a server key was put in a URL, or an embed id names no embed. Copy the key again, or create a new one in the console; send server keys only in the Authorization header.',
   'key-expired': 'The key passed its expiry date. Create a new key or extend the expiry in the console.',
   'key-revoked': 'The key was revoked; it stopped working at once. Use another key.',
   'key-rotated': 'The key was replaced by rotation and its grace period is over; the detail says when it stopped. Use the new key.',
-  'origin-not-allowed': 'A browser key (or an embed) was used from a page whose origin the key does not list, or without any origin; or a server key was used from a web page.',
-  'scope-missing': 'The server key lacks the element-sets:write scope needed for this write.',
-  'browser-key-read-only': 'Browser keys and embeds only read; writes need a server key.',
-  'not-found': 'No such route, satellite or embed visible to this key.',
-  'method-not-allowed': 'The path exists but not for this method; `Allow` lists the methods.',
-  'payload-too-large': `Bodies and files are limited to ${CAPS.uploadMaxBytes / 1024 / 1024} MiB (${CAPS.uploadMaxFiles} files).`,
-  'unsupported-media-type': 'Element sets go as text/plain, application/xml, application/json or multipart/form-data.',
-  'unprocessable-element-set': 'No submitted element set could be used; `errors` gives line, column and field of each problem.',
-  'no-element-set': 'The satellite has no element set yet; upload one first.',
-  'decayed': 'SGP4 says the object has decayed at the requested time.',
-  'propagation-failed': 'SGP4 could not compute this time (for example more than a year from the epoch); `reason` names the engine code.',
+  'forbidden': 'Your role in this organization does not allow this action (the console lists what each role may do). Ask an admin or the owner to do it, or to give you another role.',
+  'origin-not-allowed': 'A browser key (or an embed) was used from a page whose origin the key does not list, or without any origin; or a server key was used from a web page. A member adds the page\u2019s origin to the key in the console; server keys belong on a backend.',
+  'scope-missing': 'The server key lacks the element-sets:write scope needed for this write. An admin can add the scope in the console, or use a key that has it.',
+  'browser-key-read-only': 'Browser keys and embeds only read; writes need a server key with the element-sets:write scope, from a backend.',
+  'csrf-failed': 'A console request lacked its CSRF token, or the token belongs to another session (tokens change at sign-in). Reload the page and try again.',
+  'email-not-verified': 'The account\u2019s e-mail address is not confirmed yet. Open the confirmation link sent to it; the sign-in page can send a new one.',
+  'email-mismatch': 'The invitation was sent to another e-mail address than the one signed in. Sign in, or sign up, with the invited address to accept it.',
+  'not-found': 'No such route, satellite, element set or embed visible to this credential. Check the id (GET /v1/satellites lists them) and that the key belongs to the satellite\u2019s organization.',
+  'method-not-allowed': 'The path exists but not for this method; the `Allow` header lists the methods it takes.',
+  'conflict': 'The change clashes with what exists (an account or member that exists already, a key rotated or revoked already, the plan already chosen). The detail says what; reload and decide again.',
+  'owner-protected': 'The owner cannot be removed or given another role. The owner can first transfer the organization to another member.',
+  'payload-too-large': `Bodies and files are limited to ${CAPS.uploadMaxBytes / 1024 / 1024} MiB each (${CAPS.uploadMaxFiles} files per upload); the detail names the file. Split the upload into smaller files or several requests.`,
+  'unsupported-media-type': 'Element sets go as text/plain, application/xml, application/json or multipart/form-data; set the Content-Type header to one of them.',
+  'unprocessable-element-set': 'No submitted element set could be used; `errors` gives file, line, column and field of each problem. Fix those and upload again.',
+  'unprocessable': 'The request was well formed but cannot be carried out as asked; the detail says why and what to change.',
+  'no-element-set': 'The satellite has no element set yet; upload one (TLE or OMM) first.',
+  'decayed': 'SGP4 says the object has decayed at the requested time. Upload a fresh element set if it is still in orbit.',
+  'propagation-failed': 'SGP4 could not compute this time (for example more than a year from the epoch); `reason` names the engine code. Ask for a time nearer the epoch, or upload a fresher set.',
   'rate-limited': 'The key sent more requests per minute than its limit. Wait `Retry-After` seconds; the RateLimit headers show the budget.',
-  'quota-exceeded': 'The organization used its plan\u2019s monthly requests. The quota resets on the first day of the next month (UTC).',
-  'internal': 'Our fault. It is logged; retry later.',
+  'quota-exceeded': 'The organization used its plan\u2019s monthly requests. The quota resets on the first day of the next month (UTC); the owner can move to a larger plan.',
+  'too-many-attempts': 'Too many sign-in, sign-up or e-mail attempts in a short time. Wait the minutes the detail names, then try again.',
+  'internal': 'Something failed on the server\u2019s side; it is logged. Retry later, and tell the operator if it keeps happening.',
+  'unavailable': 'A part of this server is not ready (the console or widget is not built, or a provider is not set up); the detail says which. Retry later, or ask the server\u2019s operator.',
 };
 
 export const PROBLEM_DOCS = (Object.keys(PROBLEM_TYPES) as ProblemCode[]).map((code) => ({
   code,
   status: PROBLEM_TYPES[code].status,
   title: PROBLEM_TYPES[code].title,
-  meaning: MEANINGS[code] ?? '',
+  meaning: MEANINGS[code],
 }));
 
 const AUTH_PROBLEMS = ['unauthenticated', 'invalid-key', 'key-expired', 'key-revoked', 'key-rotated', 'origin-not-allowed', 'rate-limited', 'quota-exceeded'];
@@ -85,7 +97,8 @@ function problemResponses(route: RouteSpec): Record<string, unknown> {
 function parametersOf(route: RouteSpec): unknown[] {
   const params: unknown[] = [];
   for (const m of route.path.matchAll(/\{([A-Za-z]+)\}/g)) {
-    params.push({ name: m[1], in: 'path', required: true, schema: { type: 'string', maxLength: 40 } });
+    const description = route.path.startsWith('/embeds') ? 'Embed id, as the console shows it (the snippet\u2019s embed attribute).' : 'Satellite id, as GET /v1/satellites lists it.';
+    params.push({ name: m[1], in: 'path', required: true, description, schema: { type: 'string', maxLength: 40 } });
   }
   if (route.query) {
     const js = schemaOf(route.query, 'input');
