@@ -278,6 +278,82 @@ describe('<nadir-track> on the science centre example', () => {
     await w.ctx.close();
   });
 
+  it('fills a host given a height: the map takes the room the controls and notes leave, with no empty band', async () => {
+    for (const [width, height] of [[1280, 520], [390, 420]] as const) {
+      const pageUrl = `${server.url}/e2e-fixed-${width}.html`;
+      const w = await open(pageUrl, {
+        width,
+        before: (p) =>
+          p.route(pageUrl, (r) =>
+            r.fulfill({
+              contentType: 'text/html',
+              body: `<!doctype html><meta name="viewport" content="width=device-width"><body style="margin:0"><script type="module" src="/widget/nadir-track.js"></script><nadir-track satellites="${server.credentials.satellites.map((x) => x.id).join(',')}" api-key="${server.credentials.browserKey}" style="display:block;height:${height}px"></nadir-track>`,
+            }),
+          ),
+      });
+      await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('path.past')?.getAttribute('d'));
+      const m = await w.page.evaluate(() => {
+        const sr = document.querySelector('nadir-track')!.shadowRoot!;
+        const frame = sr.querySelector('.nadir')!.getBoundingClientRect();
+        const box = sr.querySelector('.mapbox')!.getBoundingClientRect();
+        const about = sr.querySelector('.about')!.getBoundingClientRect();
+        const scroller = sr.querySelector('.nadir')!;
+        return { frameH: frame.height, frameBottom: frame.bottom, boxH: box.height, aboutBottom: about.bottom, overflows: scroller.scrollHeight > scroller.clientHeight + 1 };
+      });
+      expect(m.frameH).toBeCloseTo(height, 0);
+      expect(m.frameBottom - m.aboutBottom).toBeLessThan(14); // the frame's padding and border, no band
+      expect(m.overflows).toBe(false);
+      expect(m.boxH).toBeGreaterThan(height * 0.6); // the map took the rest
+      await w.page.screenshot({ path: path.join(ARTIFACTS, `fixed-height-${width}.png`) });
+      expect(w.pageErrors).toEqual([]);
+      await w.ctx.close();
+    }
+  });
+
+  it('keeps the satellite buttons to one scrolling row at 320 px, so the map keeps its height', async () => {
+    const w = await open(`${server.url}/examples/science-centre.html`, { width: 320 });
+    await w.page.waitForFunction(() => (document.querySelector('nadir-track')?.shadowRoot?.querySelectorAll('button.chip').length ?? 0) >= 4);
+    const m = await w.page.evaluate(() => {
+      const sr = document.querySelector('nadir-track')!.shadowRoot!;
+      const tops = Array.from(sr.querySelectorAll('.chip')).map((c) => Math.round(c.getBoundingClientRect().top));
+      const bar = sr.querySelector('.bar')!.getBoundingClientRect();
+      const chips = sr.querySelector('.chips')!;
+      return { rows: new Set(tops).size, barH: bar.height, scrolls: chips.scrollWidth > chips.clientWidth, box: sr.querySelector('.mapbox')!.getBoundingClientRect().height };
+    });
+    expect(m.rows).toBe(1);
+    expect(m.barH).toBeLessThan(48);
+    expect(m.scrolls).toBe(true);
+    expect(m.box).toBeGreaterThan(110);
+    await w.ctx.close();
+  });
+
+  it('draws each satellite’s name beside its own marker or not at all', async () => {
+    for (const width of [320, 1280]) {
+      const w = await open(`${server.url}/examples/side-by-side.html`, { width });
+      await w.page.waitForFunction(() => Array.from(document.querySelectorAll('nadir-track')).every((e) => !!e.shadowRoot?.querySelector('.mark')));
+      await w.page.waitForTimeout(500);
+      const bad = await w.page.evaluate(() =>
+        Array.from(document.querySelectorAll('nadir-track')).flatMap((el) => {
+          const sr = el.shadowRoot!;
+          const names = new Map(Array.from(sr.querySelectorAll('button.chip')).map((c, i) => [i, c.textContent!.trim()]));
+          const marks = Array.from(sr.querySelectorAll('.mark')).map((g) => {
+            const r = g.querySelector('.dot')!.getBoundingClientRect();
+            const slot = Number(/slot-(\d)/.exec(g.getAttribute('class') ?? '')![1]);
+            return { name: names.get(slot - 1), x: r.x + r.width / 2, y: r.y + r.height / 2 };
+          });
+          return Array.from(sr.querySelectorAll('.label')).flatMap((t) => {
+            const b = t.getBoundingClientRect();
+            const d = (m: { x: number; y: number }) => Math.hypot(Math.max(b.left - m.x, 0, m.x - b.right), Math.max(b.top - m.y, 0, m.y - b.bottom));
+            const nearest = [...marks].sort((p, q) => d(p) - d(q))[0]!;
+            return nearest.name === t.textContent!.trim() ? [] : [`${t.textContent} nearest to ${nearest.name}`];
+          });
+        }),
+      );
+      expect(bad).toEqual([]);
+      await w.ctx.close();
+    }
+  });
+
   it('looks right in light and dark at 320 and 1280 px (screenshots kept)', async () => {
     for (const width of [320, 1280]) {
       for (const scheme of ['light', 'dark'] as const) {

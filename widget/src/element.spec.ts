@@ -136,6 +136,22 @@ describe('<nadir-track>', () => {
     expect(live.textContent).toContain('420 kilometres up');
   });
 
+  it('says over the pass list that rise and set are at 10 degrees, not the horizon', async () => {
+    installFetch();
+    const { root } = mount({ satellites: 'a', 'api-base': 'https://api.test', 'api-key': 'k', observer: '51.29,-2.43' });
+    await settle(200);
+    expect(root().querySelector('[part="passes"]')?.textContent).toContain('Rise and set are when it climbs above 10° and sinks below it again');
+  });
+
+  it('keeps the host’s style and class on the host, not on its inner frame', async () => {
+    installFetch();
+    const { root } = mount({ satellites: 'a', 'api-base': 'https://api.test', 'api-key': 'k', style: 'height: 420px; border: 3px solid red', class: 'brand' });
+    await settle(50);
+    const frame = root().querySelector('[part="frame"]')!;
+    expect(frame.getAttribute('style')).toBeNull();
+    expect(frame.classList.contains('brand')).toBe(false);
+  });
+
   it('turns the map with the arrow keys and resets it with Home', async () => {
     installFetch();
     const { root } = mount({ satellites: 'a', 'api-base': 'https://api.test', 'api-key': 'k' });

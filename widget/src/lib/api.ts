@@ -128,6 +128,12 @@ export interface EmbedConfig {
   apiKey?: string;
 }
 
+/**
+ * Elevation mask of the passes the widget asks for, degrees: rise and set are the moments the
+ * satellite climbs above and sinks below it (lower passes are hard to see over roofs and trees).
+ */
+export const PASS_MIN_ELEVATION_DEG = 10;
+
 const iso = (ms: number) => new Date(ms).toISOString().replace('.000Z', 'Z');
 
 export class NadirApi {
@@ -189,7 +195,7 @@ export class NadirApi {
   passes(id: string, obs: { lat: number; lon: number; altM: number }, startMs: number, days: number, signal?: AbortSignal) {
     return this.get<{ passes: Pass[]; alwaysUp?: boolean }>(
       `v1/satellites/${encodeURIComponent(id)}/passes`,
-      { lat: round2(obs.lat), lon: round2(obs.lon), altM: Math.round(obs.altM), start: iso(startMs), days, minElevation: 10 },
+      { lat: round2(obs.lat), lon: round2(obs.lon), altM: Math.round(obs.altM), start: iso(startMs), days, minElevation: PASS_MIN_ELEVATION_DEG },
       signal,
     );
   }

@@ -70,14 +70,21 @@ describe('passRow', () => {
     expect(r.rise).toBe('08:30');
   });
 
-  it('writes one sentence for screen readers that says whether the pass is visible', () => {
-    const r = passRow(pass('2026-03-04T18:42:10Z', '2026-03-04T18:47:40Z', '2026-03-04T18:53:05Z', false), now, {
-      timeZone: 'UTC',
-      locale: 'en-GB',
-    });
+  it('writes one sentence for screen readers that says the times are at the elevation mask and whether the pass is visible', () => {
+    const r = passRow(pass('2026-03-04T18:42:10Z', '2026-03-04T18:47:40Z', '2026-03-04T18:53:05Z', false), now, { timeZone: 'UTC', locale: 'en-GB' }, 10);
     expect(r.sentence).toBe(
-      'rises at 18:42 in the south-west, highest at 18:47, 54 degrees up in the south-east, sets at 18:53 in the north-east, not visible to the eye',
+      'climbs above 10 degrees at 18:42 in the south-west, highest at 18:47, 54 degrees up in the south-east, sinks below 10 degrees at 18:53 in the north-east, not visible to the eye',
     );
+  });
+
+  it('says a pass cut off by the end of the forecast is still up then, instead of a set equal to its highest point', () => {
+    const cut = { ...pass('2026-03-06T12:00:00Z', '2026-03-06T12:00:00Z', '2026-03-06T12:00:00Z'), inProgressAtEnd: true };
+    cut.rise.t = '2026-03-06T11:57:30Z';
+    const r = passRow(cut, now, { timeZone: 'UTC', locale: 'en-GB' }, 10);
+    expect(r.open).toBe(true);
+    expect(r.elevation).toBe('54° so far');
+    expect(r.sentence).toContain('still up at 12:00 when the forecast ends');
+    expect(r.sentence).not.toContain('sinks below');
   });
 
   it('falls back to the reader’s own zone when the configured zone is unknown', () => {

@@ -60,12 +60,18 @@ export interface PassRow {
   set: string;
   setDir: string;
   visible: boolean;
+  /** Still under way when the forecast window ends: `set` is that end, not a true set. */
+  open: boolean;
   /** One sentence for screen readers and the live region. */
   sentence: string;
 }
 
-/** Format one pass for the list, in the given zone and locale. */
-export function passRow(p: Pass, nowMs: number, opts: ClockOptions): PassRow {
+/**
+ * Format one pass for the list, in the given zone and locale. Rise and set are at the elevation
+ * mask (`minElevationDeg`), not the horizon, and the sentence says so. A pass still under way when
+ * the two-day forecast ends has no true set: it reads "still up at ..." with its height so far.
+ */
+export function passRow(p: Pass, nowMs: number, opts: ClockOptions, minElevationDeg = 10): PassRow {
   const fmt = clock(opts);
   const dayFmt = (() => {
     try {
@@ -77,7 +83,9 @@ export function passRow(p: Pass, nowMs: number, opts: ClockOptions): PassRow {
   const rise = Date.parse(p.rise.t);
   const top = Date.parse(p.culmination.t);
   const set = Date.parse(p.set.t);
+  const open = p.inProgressAtEnd === true;
   const day = dayKey(rise, opts.timeZone) === dayKey(nowMs, opts.timeZone) ? '' : dayFmt.format(rise);
+  const elev = Math.round(p.culmination.elevation);
   const row = {
     key: p.rise.t,
     day,
@@ -85,14 +93,18 @@ export function passRow(p: Pass, nowMs: number, opts: ClockOptions): PassRow {
     riseDir: compassWord(p.rise.azimuth),
     highest: fmt.format(top),
     highestDir: compassWord(p.culmination.azimuth),
-    elevation: `${Math.round(p.culmination.elevation)}°`,
+    elevation: open ? `${elev}° so far` : `${elev}°`,
     set: fmt.format(set),
     setDir: compassWord(p.set.azimuth),
     visible: p.visible,
+    open,
   };
+  const mask = `${minElevationDeg} degrees`;
   const sentence =
-    `${day ? `${day} ` : ''}rises at ${row.rise} in the ${row.riseDir}, highest at ${row.highest}, ` +
-    `${Math.round(p.culmination.elevation)} degrees up in the ${row.highestDir}, sets at ${row.set} in the ${row.setDir}` +
+    `${day ? `${day} ` : ''}climbs above ${mask} at ${row.rise} in the ${row.riseDir}, ` +
+    (open
+      ? `still up at ${row.set} when the forecast ends, ${elev} degrees up so far`
+      : `highest at ${row.highest}, ${elev} degrees up in the ${row.highestDir}, sinks below ${mask} at ${row.set} in the ${row.setDir}`) +
     (p.visible ? ', visible to the eye' : ', not visible to the eye');
   return { ...row, sentence };
 }
