@@ -2,8 +2,10 @@
  * <nadir-track> in Debian's Chromium against the real Nadirline server (demo data).
  * Screenshots land in tests/artifacts/widget/ (kept by CI as artifacts, ignored by git).
  */
-import { execFileSync } from 'node:child_process';
+import { execFile, execFileSync } from 'node:child_process';
 import fs from 'node:fs';
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
 import path from 'node:path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -367,5 +369,78 @@ describe('<nadir-track> on the science centre example', () => {
         await w.ctx.close();
       }
     }
+  });
+});
+
+describe('the examples', () => {
+  it('shows curl.md as a readable page at curl.html instead of a download', async () => {
+    const w = await open(`${server.url}/examples/curl.html`, { width: 320 });
+    await w.page.waitForFunction(() => document.querySelector('h1')?.textContent === 'The Nadirline API from a shell');
+    const m = await w.page.evaluate(() => ({ code: document.querySelectorAll('pre code').length, rows: document.querySelectorAll('table tbody tr').length, wide: document.documentElement.scrollWidth > innerWidth }));
+    expect(m.code).toBeGreaterThan(5);
+    expect(m.rows).toBeGreaterThan(5);
+    expect(m.wide).toBe(false);
+    expect(w.pageErrors).toEqual([]);
+    expect(w.consoleErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
+  describe('next-passes.mjs', () => {
+    const script = path.join(repoRoot, 'examples', 'next-passes.mjs');
+    let fake: http.Server;
+    let base = '';
+    const t0 = Date.parse('2026-03-04T18:00:00Z');
+    const at = (min: number) => new Date(t0 + min * 60_000).toISOString();
+    beforeAll(async () => {
+      // a stand-in /v1 with one good satellite (one whole pass, one cut by the window end), one decayed, one unknown
+      fake = http.createServer((req, res) => {
+        const u = new URL(req.url!, 'http://x');
+        const send = (status: number, body: unknown) => res.writeHead(status, { 'content-type': status < 400 ? 'application/json' : 'application/problem+json' }).end(JSON.stringify(body));
+        const m = /^\/v1\/satellites\/([^/]+)(\/passes)?$/.exec(u.pathname);
+        if (!m || m[1] === 'nope') return send(404, { status: 404, code: 'not-found', title: 'Not found', detail: `No satellite ${m?.[1]} is visible to this key.` });
+        if (!m[2]) return send(200, { id: m[1], name: m[1] === 'good' ? 'Good Sat' : 'Gone Sat', derived: { ageDays: 1.5, stale: false } });
+        if (m[1] === 'gone') return send(422, { status: 422, code: 'decayed', title: 'Decayed', detail: 'SGP4 says the object has decayed.' });
+        const pass = (rise: number, top: number, set: number, end: boolean) => ({
+          rise: { t: at(rise), azimuth: 200 },
+          culmination: { t: at(top), azimuth: 150, elevation: 41, rangeKm: 700 },
+          set: { t: at(set), azimuth: 60 },
+          visible: false,
+          inProgressAtStart: false,
+          inProgressAtEnd: end,
+        });
+        return send(200, { alwaysUp: false, passes: [pass(10, 14, 18, false), pass(2877, 2880, 2880, true)] });
+      });
+      await new Promise<void>((r) => fake.listen(0, '127.0.0.1', r));
+      base = `http://127.0.0.1:${(fake.address() as AddressInfo).port}`;
+    });
+    afterAll(() => new Promise<void>((r) => fake.close(() => r())));
+
+    const run = (...ids: string[]) =>
+      new Promise<{ code: number; out: string; err: string }>((resolve) => {
+        execFile(process.execPath, [script, '51.29', '-2.43', ...ids], { env: { ...process.env, NADIRLINE_API: base, NADIRLINE_KEY: 'nls_test', TZ: 'UTC' } }, (e, out, err) =>
+          resolve({ code: e ? Number(e.code ?? 1) : 0, out, err }),
+        );
+      });
+
+    it('goes on to the next satellite after a problem with one, and says what the problem was', async () => {
+      const r = await run('gone', 'nope', 'good');
+      expect(r.code).toBe(0);
+      expect(r.out).toContain('Good Sat (good)');
+      expect(r.err).toMatch(/Gone Sat: 422 decayed/);
+      expect(r.err).toMatch(/nope: 404 not-found/);
+    });
+
+    it('prints a pass still under way at the window end as such, not with a set equal to its highest point', async () => {
+      const r = await run('good');
+      const lines = r.out.split('\n').filter((l) => l.startsWith('  '));
+      expect(lines[0]).toMatch(/rise .* highest .* set .* min/);
+      expect(lines[1]).toMatch(/still up at .* when the window ends/);
+      expect(lines[1]).not.toMatch(/\bset /);
+      expect(r.out).toContain('rise and set are when a satellite climbs above 10°');
+    });
+
+    it('exits non-zero only when no satellite could be shown', async () => {
+      expect((await run('gone', 'nope')).code).toBe(1);
+    });
   });
 });
