@@ -207,6 +207,9 @@ describe('the console against the real server', () => {
     await page.goto(`${server.url}/o/${org}/keys`);
     await page.getByRole('button', { name: 'Create a key' }).first().click();
     await page.getByLabel('Name', { exact: true }).fill('E2E site');
+    // No origin is filled in for the person: the console's own origin is not where pages live.
+    expect(await page.getByLabel('Allowed origins').inputValue()).toBe('');
+    await page.getByLabel('Allowed origins').fill(server.url);
     await page.getByRole('button', { name: 'Create key' }).click();
     const dialog = page.getByRole('dialog', { name: 'Your new key' });
     const first = ((await dialog.locator('pre').textContent()) ?? '').trim();
@@ -362,6 +365,11 @@ describe('the console against the real server', () => {
     expect(await page.locator('select').count()).toBe(0);
     expect(await page.getByRole('button', { name: /^Remove/ }).count()).toBe(0);
     await shot(page, 'viewer-members');
+
+    // The embed builder is for roles that may edit embeds: a viewer lands on the list, told why.
+    await page.goto(`${server.url}/o/${org}/embeds/new`);
+    await page.waitForURL(new RegExp(`/o/${org}/embeds$`));
+    await page.getByText(/can look at embeds but not build them/).waitFor();
 
     // Trying anyway, with a valid session and CSRF token: 403 forbidden from the server.
     const tried = await page.evaluate(async (o) => {

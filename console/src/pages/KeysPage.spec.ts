@@ -75,6 +75,9 @@ describe('the keys page', () => {
     const name = document.body.querySelector<HTMLInputElement>('input[type="text"][maxlength="200"]')!;
     name.value = 'Museum kiosk';
     name.dispatchEvent(new Event('input'));
+    const origins = document.body.querySelector<HTMLTextAreaElement>('[role="dialog"] textarea')!;
+    origins.value = 'https://kiosk.kestrel.example';
+    origins.dispatchEvent(new Event('input'));
     await flushPromises();
     const submit = [...document.body.querySelectorAll<HTMLButtonElement>('button[type="submit"]')].find((b) => /create key/i.test(b.textContent ?? ''))!;
     submit.click();
@@ -130,6 +133,26 @@ describe('the keys page', () => {
     await flushPromises();
     expect(document.body.textContent).not.toContain(SECRET);
     expect(useKeysStore().revealed).toBeNull();
+    wrapper.unmount();
+  });
+
+  it('starts a new browser key with no origin, an example to follow, and asks for one before sending', async () => {
+    const { wrapper } = await open('admin');
+    const { calls } = serve('admin');
+    await wrapper.findAll('button').find((b) => /create a key/i.test(b.text()))!.trigger('click');
+    await flushPromises();
+    const origins = document.body.querySelector<HTMLTextAreaElement>('[role="dialog"] textarea')!;
+    expect(origins.value).toBe('');
+    expect(origins.placeholder).toBe('https://www.example.org');
+    const name = document.body.querySelector<HTMLInputElement>('input[type="text"][maxlength="200"]')!;
+    name.value = 'Museum kiosk';
+    name.dispatchEvent(new Event('input'));
+    await flushPromises();
+    [...document.body.querySelectorAll<HTMLButtonElement>('button[type="submit"]')].find((b) => /create key/i.test(b.textContent ?? ''))!.click();
+    await flushPromises();
+    expect(calls.some((c) => c.method === 'POST')).toBe(false);
+    expect(document.body.textContent).toContain('Add at least one origin');
+    expect(origins.getAttribute('aria-invalid')).toBe('true');
     wrapper.unmount();
   });
 });

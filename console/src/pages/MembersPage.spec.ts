@@ -36,13 +36,17 @@ describe('the members page', () => {
     wrapper.unmount();
   });
 
-  it("lets an admin change roles and remove members, except the owner's and their own removal", async () => {
+  it("lets an admin change roles and remove members, except the owner's and their own", async () => {
     const { wrapper } = await open('admin');
     expect(wrapper.findAll('button').some((b) => /invite a member/i.test(b.text()))).toBe(true);
     const selects = wrapper.findAll('select');
     // The admin's own row and Cato's row: never the owner's.
     expect(selects.map((s) => s.attributes('id'))).toEqual([`role-${user.id}`, 'role-u3']);
     expect(selects[0]!.findAll('option').map((o) => o.attributes('value'))).toEqual(['admin', 'editor', 'viewer']);
+    // Not their own role, though: that select is disabled and says why.
+    expect(selects[0]!.attributes('disabled')).toBeDefined();
+    expect(wrapper.find(`#${selects[0]!.attributes('aria-describedby')}`).text()).toMatch(/cannot change your own role/);
+    expect(selects[1]!.attributes('disabled')).toBeUndefined();
     const removes = wrapper.findAll('button').filter((b) => /^remove/i.test(b.text()));
     expect(removes).toHaveLength(1);
     expect(removes[0]!.text()).toContain('Cato Lindqvist');

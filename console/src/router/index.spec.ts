@@ -1,5 +1,14 @@
-import { describe, expect, it } from 'vitest';
-import { safeNext } from './index.ts';
+import { createPinia, setActivePinia } from 'pinia';
+import { afterEach, describe, expect, it, vi } from 'vitest';
+import { createMemoryHistory } from 'vue-router';
+import { useNoticesStore } from '../stores/notices.ts';
+import { mockFetch } from '../testing/fetch-mock.ts';
+import { session } from '../testing/fixtures.ts';
+import { createAppRouter, safeNext } from './index.ts';
+
+afterEach(() => {
+  vi.unstubAllGlobals();
+});
 
 describe('the return path after sign-in', () => {
   it('follows paths inside the console', () => {
@@ -10,5 +19,21 @@ describe('the return path after sign-in', () => {
     expect(safeNext('//elsewhere.example/')).toBeNull();
     expect(safeNext('/\\elsewhere.example')).toBeNull();
     expect(safeNext(['/a'])).toBeNull();
+  });
+});
+
+describe('pages a role may not use', () => {
+  it('sends a viewer from the new-embed page to the embed list, saying why, and lets an editor in', async () => {
+    for (const [role, lands] of [
+      ['viewer', '/o/org1/embeds'],
+      ['editor', '/o/org1/embeds/new'],
+    ] as const) {
+      setActivePinia(createPinia());
+      mockFetch([{ path: '/api/session', body: session(role) }]);
+      const router = createAppRouter(createMemoryHistory());
+      await router.push('/o/org1/embeds/new');
+      expect(router.currentRoute.value.fullPath).toBe(lands);
+      expect(useNoticesStore().notices.some((n) => /can look at embeds but not build them/.test(n.text))).toBe(role === 'viewer');
+    }
   });
 });

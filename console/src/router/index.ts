@@ -4,6 +4,8 @@
  * in step with the URL.
  */
 import { createRouter, createWebHistory, type RouteLocationNormalized, type RouteLocationRaw, type Router, type RouterHistory } from 'vue-router';
+import { can } from '../lib/roles.ts';
+import { useNoticesStore } from '../stores/notices.ts';
 import { useOrgStore } from '../stores/org.ts';
 import { useSessionStore } from '../stores/session.ts';
 import { routeParam, routes } from './routes.ts';
@@ -38,8 +40,14 @@ export async function guard(to: RouteLocationNormalized): Promise<RouteLocationR
   }
   const orgParam = routeParam(to.params, 'org');
   if (orgParam) {
-    if (!session.roleIn(orgParam)) return { name: 'not-found', params: { path: to.path.slice(1).split('/') } };
+    const role = session.roleIn(orgParam);
+    if (!role) return { name: 'not-found', params: { path: to.path.slice(1).split('/') } };
     org.select(orgParam);
+    // A page for an action the role lacks (a viewer building an embed): the list instead, and why.
+    if (to.meta.needs && !can(role, to.meta.needs)) {
+      if (to.meta.deniedText) useNoticesStore().push(to.meta.deniedText, 'info');
+      return { name: to.meta.deniedTo ?? 'satellites', params: { org: orgParam } };
+    }
   }
   return true;
 }

@@ -3,6 +3,7 @@
  * `router.push({ name, params })` and `<RouterLink :to>` checked by the compiler.
  */
 import type { RouteRecordInfo, RouteRecordRaw } from 'vue-router';
+import type { Action } from '../lib/roles.ts';
 
 type OrgParams = { org: string };
 
@@ -44,6 +45,11 @@ declare module 'vue-router' {
     bare?: boolean;
     /** Page title (also read out on navigation). */
     title?: string;
+    /** The role must allow this in the organization of the URL; otherwise the guard goes to `deniedTo`. */
+    needs?: Action;
+    /** Where a role without `needs` is sent instead (same organization), and what it is told. */
+    deniedTo?: 'embeds';
+    deniedText?: string;
   }
 }
 
@@ -70,7 +76,18 @@ export const routes: RouteRecordRaw[] = [
   { path: '/o/:org/satellites/:id', name: 'satellite', component: () => import('../pages/SatellitePage.vue'), props: true, meta: { title: 'Satellite' } },
   { path: '/o/:org/keys', name: 'keys', component: () => import('../pages/KeysPage.vue'), props: true, meta: { title: 'Keys' } },
   { path: '/o/:org/embeds', name: 'embeds', component: () => import('../pages/EmbedsPage.vue'), props: true, meta: { title: 'Embeds' } },
-  { path: '/o/:org/embeds/new', name: 'embed-new', component: () => import('../pages/EmbedBuilderPage.vue'), props: true, meta: { title: 'New embed' } },
+  {
+    path: '/o/:org/embeds/new',
+    name: 'embed-new',
+    component: () => import('../pages/EmbedBuilderPage.vue'),
+    props: true,
+    meta: {
+      title: 'New embed',
+      needs: 'edit-embeds',
+      deniedTo: 'embeds',
+      deniedText: 'Your role can look at embeds but not build them. An editor, an admin or the owner can.',
+    },
+  },
   { path: '/o/:org/embeds/:id', name: 'embed-edit', component: () => import('../pages/EmbedBuilderPage.vue'), props: true, meta: { title: 'Edit embed' } },
   { path: '/o/:org/usage', name: 'usage', component: () => import('../pages/UsagePage.vue'), props: true, meta: { title: 'Usage' } },
   { path: '/o/:org/members', name: 'members', component: () => import('../pages/MembersPage.vue'), props: true, meta: { title: 'Members' } },
