@@ -1,8 +1,12 @@
 /**
- * Shapes of the console API (`/api`), as written in docs/console-api.md. The server validates
- * the same shapes; when it publishes its schemas from a shared package these types should be
- * derived from them instead of restated.
+ * Shapes of the console API (`/api`), as written in docs/console-api.md. Where the answer carries
+ * an object of the orbit engine unchanged (derived elements, staleness, a set's source, Keplerian
+ * input), the type comes from `@nadirline/shared` as a type-only import, so nothing of the engine
+ * is bundled into the console and the two cannot drift apart.
  */
+import type { DerivedElements, ElementSetSource, KeplerianInput, Staleness } from '@nadirline/shared';
+
+export type { ElementSetSource, Staleness };
 
 export type Role = 'owner' | 'admin' | 'editor' | 'viewer';
 export type PlanId = 'starter' | 'mission' | 'constellation' | (string & {});
@@ -59,8 +63,6 @@ export interface InvitationPreview {
   expiresAt: string;
 }
 
-export type Staleness = 'fresh' | 'aging' | 'stale';
-export type ElementSetSource = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json' | 'kepler';
 
 export interface ElementSetSummary {
   id: string;
@@ -74,25 +76,8 @@ export interface ElementSetSummary {
   name: string;
 }
 
-/** The `/v1/satellites/{id}/elements` object. */
-export interface Derived {
-  epoch: string;
-  semiMajorAxisKm: number;
-  eccentricity: number;
-  inclinationDeg: number;
-  raanDeg: number;
-  argPerigeeDeg: number;
-  meanAnomalyDeg: number;
-  meanMotionRevPerDay: number;
-  periodMin: number;
-  apogeeAltKm: number;
-  perigeeAltKm: number;
-  nodalPrecessionDegPerDay: number;
-  westwardShiftPerRevDeg: number;
-  latitudeLimitDeg: number;
-  ageDays: number;
-  stale: boolean;
-}
+/** The `/v1/satellites/{id}/elements` object (the engine's derived elements, `staleness` included). */
+export type Derived = DerivedElements;
 
 export interface Satellite {
   id: string;
@@ -126,22 +111,8 @@ export interface UploadReport {
   rejected: number;
 }
 
-/** Keplerian elements typed by hand (angles in degrees, epoch ISO 8601 UTC). */
-export interface KeplerInput {
-  name?: string;
-  catalogNumber?: string;
-  epoch: string;
-  /** Exactly one of the next three gives the size of the orbit. */
-  semiMajorAxisKm?: number;
-  periodMin?: number;
-  meanMotionRevPerDay?: number;
-  eccentricity: number;
-  inclinationDeg: number;
-  raanDeg: number;
-  argPerigeeDeg: number;
-  meanAnomalyDeg: number;
-  bstar?: number;
-}
+/** Keplerian elements typed by hand (angles in degrees, epoch ISO 8601 UTC): what the engine's fromKeplerian takes. */
+export type KeplerInput = KeplerianInput;
 
 export type ExportFormat = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json';
 
