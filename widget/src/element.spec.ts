@@ -140,7 +140,7 @@ describe('<nadir-track>', () => {
     installFetch();
     const { root } = mount({ satellites: 'a', 'api-base': 'https://api.test', 'api-key': 'k', observer: '51.29,-2.43' });
     await settle(200);
-    expect(root().querySelector('[part="passes"]')?.textContent).toContain('Rise and set are when it climbs above 10° and sinks below it again');
+    expect(root().querySelector('[part="passes"]')?.textContent).toContain('Rise and set are at 10° above the horizon.');
   });
 
   it('keeps the host’s style and class on the host, not on its inner frame', async () => {

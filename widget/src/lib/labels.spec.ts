@@ -45,6 +45,14 @@ describe('placeLabels', () => {
     expect(placed.has('halcyon')).toBe(true);
   });
 
+  it('keeps labels off the observer’s mark', () => {
+    const mark = { id: 'a', name: 'Orrery-1', x: 200, y: 100 };
+    expect(placeLabels([mark], { width: 600, height: 300, fontPx: 13 }).get('a')!.anchor).toBe('start');
+    const spot = placeLabels([mark], { width: 600, height: 300, fontPx: 13, avoid: [{ x: 230, y: 92 }] }).get('a');
+    if (spot) expect(dist(spot.box, 230, 92)).toBeGreaterThanOrEqual(8);
+    expect(spot?.anchor === 'start' && spot.dy < 0).toBe(false);
+  });
+
   it('turns a label to the left of its marker near the right edge when nothing is there', () => {
     const placed = placeLabels([{ id: 'w', name: 'Wren Pathfinder', x: 590, y: 150 }], { width: 620, height: 310, fontPx: 13 });
     expect(placed.get('w')?.anchor).toBe('end');

@@ -36,6 +36,8 @@ export interface LabelOptions {
   fontPx: number;
   /** Id placed first (the picked satellite), so its label wins a crowded spot. */
   first?: string | null;
+  /** Other points no label may cover (the observer's mark), map pixels. */
+  avoid?: readonly { x: number; y: number }[];
   /** Text width in pixels; an estimate for the widget's semibold face by default. */
   measure?: (text: string, fontPx: number) => number;
 }
@@ -44,6 +46,9 @@ export interface LabelOptions {
 export const LABEL_GAP = 9;
 /** No other marker's centre may come this close to a label box, px: its halo plus a clear margin. */
 export const MARKER_CLEARANCE = 16;
+
+/** Clearance around points to avoid, px (the observer's diamond is 6 px from its centre). */
+const AVOID_CLEARANCE = 8;
 
 /** Work Sans semibold averages a little under 0.6 em a character for names like these. */
 const estimate = (text: string, fontPx: number) => text.length * fontPx * 0.6 + 4;
@@ -89,7 +94,8 @@ export function placeLabels(marks: readonly LabelMark[], opts: LabelOptions): Ma
         box.y0 >= 2 &&
         box.y1 <= opts.height - 2 &&
         !placed.some((p) => overlaps(p, box)) &&
-        marks.every((o) => o === m || distance(box, o.x, o.y) >= MARKER_CLEARANCE),
+        marks.every((o) => o === m || distance(box, o.x, o.y) >= MARKER_CLEARANCE) &&
+        (opts.avoid ?? []).every((o) => distance(box, o.x, o.y) >= AVOID_CLEARANCE),
     );
     if (!spot) continue;
     placed.push(spot.box);

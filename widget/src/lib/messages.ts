@@ -80,7 +80,7 @@ export function noticeFor(p: Pick<ApiProblem, 'code' | 'status' | 'retryAfterS'>
     case 'unauthenticated':
       return stop(
         'This map has no key',
-        'This map has no key, so Nadirline cannot show it. The page owner can set the api-key attribute of <nadir-track> to a browser key from the Nadirline console, or set the embed attribute to a saved embed’s id.',
+        'Without one Nadirline cannot show it. The page owner can set the api-key attribute of <nadir-track> to a browser key from the Nadirline console, or set the embed attribute to a saved embed’s id.',
       );
     case 'invalid-key':
       return stop('Map key not accepted', `Nadirline did not accept the key this map uses. ${KEY_HELP}`);
