@@ -106,8 +106,10 @@ describe('<nadir-track> on the science centre example', () => {
 
   it('lists the same passes as /v1/passes, in the reader’s time zone', async () => {
     const w = await open(`${server.url}/examples/science-centre.html`);
-    await expect.poll(() => w.v1.some((u) => u.includes('/passes?')), { timeout: 15_000 }).toBe(true);
-    const passUrl = new URL(w.v1.find((u) => u.includes('/passes?'))!);
+    // the list shows the first satellite's passes; the satellites' requests leave in any order
+    const firstPasses = `/satellites/${server.credentials.satellites[0]!.id}/passes?`;
+    await expect.poll(() => w.v1.some((u) => u.includes(firstPasses)), { timeout: 15_000 }).toBe(true);
+    const passUrl = new URL(w.v1.find((u) => u.includes(firstPasses))!);
     await w.page.waitForFunction(() => (document.querySelector('nadir-track')?.shadowRoot?.querySelectorAll('[part="passes"] .row').length ?? 0) > 0);
     const shown = await w.page.evaluate(() =>
       Array.from(document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll('[part="passes"] .row .when strong')).map((e) => e.textContent!.trim()),
@@ -120,9 +122,10 @@ describe('<nadir-track> on the science centre example', () => {
     const body = (await res.json()) as { passes: { rise: { t: string }; set: { t: string } }[] };
     const fmt = new Intl.DateTimeFormat('en-GB', { hour: '2-digit', minute: '2-digit', timeZone: ZONE });
     const now = Date.now();
-    const expected = body.passes.filter((p) => Date.parse(p.set.t) > now).slice(0, 4).map((p) => fmt.format(Date.parse(p.rise.t)));
+    // the list drops a pass within ten seconds of its set: allow for one ending just now
+    const upcoming = (from: number) => body.passes.filter((p) => Date.parse(p.set.t) > from).slice(0, 4).map((p) => fmt.format(Date.parse(p.rise.t)));
     expect(shown.length).toBeGreaterThan(0);
-    expect(shown).toEqual(expected.slice(0, shown.length));
+    expect([upcoming(now).slice(0, shown.length), upcoming(now - 15_000).slice(0, shown.length)]).toContainEqual(shown);
     await w.ctx.close();
   });
 
