@@ -1,5 +1,6 @@
 import { flushPromises } from '@vue/test-utils';
 import { afterEach, describe, expect, it, vi } from 'vitest';
+import { useNoticesStore } from '../stores/notices.ts';
 import { mockFetch, problem } from '../testing/fetch-mock.ts';
 import { session } from '../testing/fixtures.ts';
 import { mountAt } from '../testing/mount.ts';
@@ -64,6 +65,9 @@ describe('adding element sets', () => {
     const post = calls.find((c) => c.method === 'POST')!;
     expect((post.body as FormData).getAll('files[]').map((f) => (f as File).name)).toEqual(['a.tle', 'b.xml']);
     expect(wrapper.text()).toMatch(/2\s+element sets accepted/);
+
+    // The report is the visible answer; the same words are only read out, not drawn over it.
+    expect(useNoticesStore().notices.map((n) => [n.text, n.spokenOnly])).toEqual([['2 element sets accepted, 0 rejected.', true]]);
 
     // The files are sent: the list empties and the button waits for new files.
     expect(wrapper.find('ul.files').exists()).toBe(false);

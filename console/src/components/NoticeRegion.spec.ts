@@ -46,4 +46,14 @@ describe('the toasts', () => {
     expect(w.text()).not.toContain('Key saved.');
     w.unmount();
   });
+
+  it('reads out, without drawing, what the page already shows in place', async () => {
+    const w = mount(NoticeRegion, { attachTo: document.body });
+    useNoticesStore().push('2 element sets accepted, 0 rejected.', 'success', undefined, { spokenOnly: true });
+    await nextTick();
+    const said = w.find('[role="status"] .notice');
+    expect(said.text()).toContain('2 element sets accepted');
+    expect(said.classes()).toContain('sr-only');
+    w.unmount();
+  });
 });

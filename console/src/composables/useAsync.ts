@@ -33,6 +33,8 @@ export function describeError(err: ApiError): string {
 export interface AsyncOptions<R> {
   /** Said by the live region when the call succeeds. */
   success?: string | ((result: R) => string | undefined);
+  /** 'spoken': read out only, no toast, when the page shows the outcome in place. Default 'toast'. */
+  successAs?: 'toast' | 'spoken';
 }
 
 export function useAsync<A extends unknown[], R>(fn: (...args: A) => Promise<R>, options: AsyncOptions<R> = {}) {
@@ -59,7 +61,7 @@ export function useAsync<A extends unknown[], R>(fn: (...args: A) => Promise<R>,
     try {
       const result = await fn(...args);
       const said = typeof options.success === 'function' ? options.success(result) : options.success;
-      if (said) notices.push(said, 'success');
+      if (said) notices.push(said, 'success', undefined, { spokenOnly: options.successAs === 'spoken' });
       return result;
     } catch (e) {
       const err = toApiError(e);

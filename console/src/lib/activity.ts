@@ -121,7 +121,8 @@ function valueOf(key: string, v: unknown, names: ActivityNames, locale?: string)
     case 'kind':
       return v === 'browser' ? 'Browser key' : v === 'server' ? 'Server key' : String(v);
     case 'origins':
-      return Array.isArray(v) ? (v.length ? v.join(', ') : 'none') : String(v);
+      // A server key has none, and saying so is noise.
+      return Array.isArray(v) ? (v.length ? v.join(', ') : null) : String(v);
     case 'scopes':
       return Array.isArray(v) ? v.map((s) => (s === 'element-sets:write' ? 'upload element sets' : String(s))).join(', ') : String(v);
     case 'expiresAt':

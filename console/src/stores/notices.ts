@@ -10,6 +10,8 @@ export interface Notice {
   id: number;
   kind: 'success' | 'error' | 'info';
   text: string;
+  /** Read out but not drawn: the page already shows the same thing in place (an upload report). */
+  spokenOnly?: boolean;
 }
 
 export const NOTICE_TTL_MS: Record<Notice['kind'], number> = { success: 6000, info: 6000, error: 12_000 };
@@ -37,11 +39,11 @@ export const useNoticesStore = defineStore('notices', () => {
   }
 
   /** `ttlMs` 0 keeps the toast until it is dismissed. */
-  function push(text: string, kind: Notice['kind'] = 'success', ttlMs = NOTICE_TTL_MS[kind]): number {
+  function push(text: string, kind: Notice['kind'] = 'success', ttlMs = NOTICE_TTL_MS[kind], options: { spokenOnly?: boolean } = {}): number {
     const id = next++;
     const kept = notices.value.slice(-(MAX_NOTICES - 1));
     for (const n of notices.value) if (!kept.includes(n)) forget(n.id);
-    notices.value = [...kept, { id, kind, text }];
+    notices.value = [...kept, { id, kind, text, ...(options.spokenOnly ? { spokenOnly: true } : {}) }];
     if (ttlMs > 0) {
       const t: Timer = { handle: undefined, remainingMs: ttlMs, startedAt: Date.now() };
       timers.set(id, t);
