@@ -315,6 +315,20 @@ describe('<nadir-track> on the science centre example', () => {
     }
   });
 
+  it('fills the hosted embed page’s frame, the map taking the height', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 620 } });
+    const page = await ctx.newPage();
+    await page.goto(`${server.url}/embed/${server.credentials.embedId}`);
+    await page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('path.past')?.getAttribute('d'));
+    const [frameH, boxH] = await page.evaluate(() => {
+      const sr = document.querySelector('nadir-track')!.shadowRoot!;
+      return [sr.querySelector('.nadir')!.getBoundingClientRect().height, sr.querySelector('.mapbox')!.getBoundingClientRect().height];
+    });
+    expect(frameH).toBeCloseTo(620, 0);
+    expect(boxH).toBeGreaterThan(450);
+    await ctx.close();
+  });
+
   it('keeps the satellite buttons to one scrolling row at 320 px, so the map keeps its height', async () => {
     const w = await open(`${server.url}/examples/science-centre.html`, { width: 320 });
     await w.page.waitForFunction(() => (document.querySelector('nadir-track')?.shadowRoot?.querySelectorAll('button.chip').length ?? 0) >= 4);
