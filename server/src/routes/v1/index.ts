@@ -73,6 +73,71 @@ const round = (v: number, digits: number) => {
   return Math.round(v * f) / f;
 };
 
+// ---------------------------------------------------------------------------------------------
+// Track answers are built as text: a one-orbit track is about a hundred points, and an object
+// plus a Date and toISOString per point cost more than the SGP4 work (CPU profile of the bench).
+
+const PAD2 = Array.from({ length: 100 }, (_, i) => (i < 10 ? `0${i}` : String(i)));
+const DAY_MS = 86_400_000;
+let isoDay = Number.NaN;
+let isoDayText = '';
+
+/** The same text as new Date(ms).toISOString(), without a Date per call for whole milliseconds. */
+export function isoTime(ms: number): string {
+  if (!Number.isSafeInteger(ms) || ms < 0 || ms >= 253_402_300_800_000) return new Date(ms).toISOString();
+  const day = Math.floor(ms / DAY_MS);
+  if (day !== isoDay) {
+    isoDay = day;
+    isoDayText = new Date(day * DAY_MS).toISOString().slice(0, 11);
+  }
+  let r = ms - day * DAY_MS;
+  const milli = r % 1000;
+  r = (r - milli) / 1000;
+  const sec = r % 60;
+  r = (r - sec) / 60;
+  const min = r % 60;
+  const hour = (r - min) / 60;
+  return `${isoDayText}${PAD2[hour]}:${PAD2[min]}:${PAD2[sec]}.${milli < 10 ? '00' : milli < 100 ? '0' : ''}${milli}Z`;
+}
+
+/** A number as JSON writes it (non-finite numbers become null). */
+const jsonNumber = (v: number) => (Number.isFinite(v) ? String(v) : 'null');
+
+const POW10 = [1, 10, 100, 1_000, 10_000, 100_000, 1_000_000];
+
+/**
+ * round(v, digits) as JSON text, from integers: the same text as String(round(v, digits)) (the
+ * shortest form of the double nearest to a decimal of at most 15 digits is that decimal), but
+ * without a double-to-text conversion, which was the largest cost of a computed track.
+ */
+export function roundedJson(v: number, digits: number): string {
+  const f = POW10[digits] ?? 10 ** digits;
+  const n = Math.round(v * f);
+  if (!Number.isSafeInteger(n) || Math.abs(n) >= 1e15) return jsonNumber(round(v, digits));
+  const a = n < 0 ? -n : n;
+  const whole = Math.floor(a / f);
+  let frac = a - whole * f;
+  const sign = n < 0 ? '-' : '';
+  if (frac === 0) return `${sign}${whole}`;
+  let width = digits;
+  while (frac % 10 === 0) {
+    frac /= 10;
+    width--;
+  }
+  const text = String(frac);
+  return `${sign}${whole}.${text.length < width ? '0'.repeat(width - text.length) + text : text}`;
+}
+
+/** `[{ t, lat, lon, altKm, sunlit }, ...]` as JSON text: the same as JSON.stringify(samples.map(pointJson)). */
+export function trackPointsJson(samples: readonly TrackSample[]): string {
+  let out = '[';
+  for (let i = 0; i < samples.length; i++) {
+    const s = samples[i] as TrackSample;
+    out += `${i === 0 ? '' : ','}{"t":"${isoTime(s.t)}","lat":${roundedJson(s.lat, 5)},"lon":${roundedJson(s.lon, 5)},"altKm":${roundedJson(s.altKm, 3)},"sunlit":${s.sunlit ? 'true' : 'false'}}`;
+  }
+  return `${out}]`;
+}
+
 /** Map an engine failure code to our problem. */
 function engineProblem(code: string, message: string, satName: string): HttpError {
   const problem: ProblemCode = code === 'decayed' ? 'decayed' : 'propagation-failed';
@@ -155,24 +220,28 @@ function positionOf(cur: CurrentSet, atMs: number, name: string) {
   };
 }
 
-function pointJson(s: TrackSample) {
+/** One track point as an object (the shape trackPointsJson writes as text). */
+export function pointJson(s: TrackSample) {
   return { t: iso(s.t), lat: round(s.lat, 5), lon: round(s.lon, 5), altKm: round(s.altKm, 3), sunlit: s.sunlit };
 }
 
 /**
- * GeoJSON coordinates to 5 decimals, as the JSON points (about 1 m; RFC 7946 section 11.2 asks
- * for no more precision than the data has). Split points at ±180 stay exact, and both ends of a
- * split share one rounded latitude, so the parts still meet.
+ * The track's FeatureCollection as JSON text with coordinates to 5 decimals, as the JSON points
+ * (about 1 m; RFC 7946 section 11.2 asks for no more precision than the data has). Split points at
+ * ±180 stay exact, and both ends of a split share one rounded latitude, so the parts still meet.
+ * Features are written as trackToGeoJSON makes them: type, geometry, properties.
  */
-function roundTrackGeoJson(fc: ReturnType<typeof trackToGeoJSON>): void {
-  for (const f of fc.features) {
+export function trackGeoJsonText(fc: ReturnType<typeof trackToGeoJSON>): string {
+  const position = (c: readonly number[]) => `[${c.map((v) => roundedJson(v, 5)).join(',')}]`;
+  const features = fc.features.map((f) => {
     const g = f.geometry;
-    if (g.type === 'MultiLineString') {
-      for (const line of g.coordinates) for (const c of line) for (let i = 0; i < c.length; i++) c[i] = round(c[i] as number, 5);
-    } else if (g.type === 'Point') {
-      for (let i = 0; i < g.coordinates.length; i++) g.coordinates[i] = round(g.coordinates[i] as number, 5);
-    }
-  }
+    const geometry =
+      g.type === 'MultiLineString'
+        ? `{"type":"MultiLineString","coordinates":[${g.coordinates.map((line) => `[${line.map(position).join(',')}]`).join(',')}]}`
+        : `{"type":"Point","coordinates":${position(g.coordinates)}}`;
+    return `{"type":"Feature","geometry":${geometry},"properties":${JSON.stringify(f.properties ?? null)}}`;
+  });
+  return `{"type":"FeatureCollection","features":[${features.join(',')}]}`;
 }
 
 function uploadDetail(stored: number, duplicates: number, rejected: number): string {
@@ -317,7 +386,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
         errors: [{ where: 'query.step', field: 'step', message: `gives ${count} points, more than ${CAPS.trackMaxPoints}` }],
       });
     }
-    const etag = `W/"${crypto.createHash('sha1').update(`${c.satellite.id}|${cur.record.id}|${start}|${end}|${stepS}|${q.format}|${c.satellite.name}`).digest('base64url').slice(0, 22)}"`;
+    const etag = `W/"${crypto.hash('sha1', `${c.satellite.id}|${cur.record.id}|${start}|${end}|${stepS}|${q.format}|${c.satellite.name}`, 'base64url').slice(0, 22)}"`;
     const quantum = CAPS.trackCacheQuantumS * 1000;
     const explicit = q.start !== undefined && q.end !== undefined;
     res.setHeader('ETag', etag);
@@ -346,21 +415,20 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
         end: iso(end),
         stepS,
       });
-      roundTrackGeoJson(fc);
-      const body = JSON.stringify(fc);
+      const body = trackGeoJsonText(fc);
       trackAnswers.set(etag, body, 'application/geo+json; charset=utf-8');
       sendJson(res, body, 'application/geo+json; charset=utf-8');
       return;
     }
-    const body = JSON.stringify({
+    const head = JSON.stringify({
       satelliteId: c.satellite.id,
       elementSetId: cur.record.id,
       start: iso(start),
       end: iso(r.samples[r.samples.length - 1]?.t ?? end),
       stepS,
       count: r.samples.length,
-      points: r.samples.map(pointJson),
     });
+    const body = `${head.slice(0, -1)},"points":${trackPointsJson(r.samples)}}`;
     trackAnswers.set(etag, body, 'application/json; charset=utf-8');
     sendJson(res, body);
   });
