@@ -7,7 +7,7 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { ApiKey, UsageDaily } from '@nadirline/server/models/index.ts';
 import { getKeyService } from '@nadirline/server/services/keys.ts';
 import { getQuotaService, planOf } from '@nadirline/server/services/quota.ts';
-import { leoTle, PAGE_ORIGIN, startKeyedApp, type KeyedTestApp } from '../support/app.ts';
+import { leoTle, PAGE_ORIGIN, startKeyedApp, WILDCARD_ORIGIN, type KeyedTestApp } from '../support/app.ts';
 
 let t: KeyedTestApp;
 beforeAll(async () => {
@@ -44,6 +44,19 @@ describe('browser keys and origins', () => {
     expect(res.body.detail).toContain('https://copycat.example.com');
     expect(res.headers['access-control-allow-origin']).toBe('https://copycat.example.com');
     expect(res.body).not.toHaveProperty('lat');
+  });
+
+  it('names only the refused origin, never the origins the key lists (members see those in the console)', async () => {
+    const byKey = await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Origin', 'https://copycat.example.com');
+    const byEmbed = await request(t.app).get(`/v1/embeds/${t.embedId}`).set('Origin', 'https://copycat.example.com');
+    for (const res of [byKey, byEmbed]) {
+      expectProblem(res, 403, 'origin-not-allowed');
+      expect(res.body.detail).toContain('https://copycat.example.com');
+      expect(res.body.detail).toMatch(/console/);
+      expect(res.text).not.toContain(PAGE_ORIGIN);
+      expect(res.text).not.toContain(WILDCARD_ORIGIN);
+      expect(res.text).not.toContain('example.net');
+    }
   });
 
   it('judges a request without Origin by its Referer, and refuses one naming no origin at all', async () => {

@@ -136,7 +136,7 @@ function checkOrigin(ctx: AppContext, req: Request, cred: Credential): string | 
   if (o !== 'null' && (originAllowed(key.origins, o) || self.includes(o))) return origin;
   throw new HttpError(
     'origin-not-allowed',
-    `The origin ${origin} is not allowed for this ${embed ? `embed's key` : 'browser key'} (…${key.lastFour}). Allowed: ${key.origins.join(', ') || 'none'}. Add the origin to the key in the console.`,
+    `The origin ${origin} is not allowed for this ${embed ? `embed's key` : 'browser key'} (…${key.lastFour}). A member of the key's organization can add it to the key's origins in the console.`,
     { origin },
   );
 }
