@@ -180,6 +180,8 @@ describe('statuses as documented', () => {
     problem(empty, 400, 'validation-failed');
     expect(doc.paths['/v1/satellites'].post.responses['400'].description).toContain('bad-request');
     expect(doc.paths['/v1/embeds/{id}'].get.responses['404'].description).toContain('not-found');
+    // Problems carry extension members (RFC 9457 section 3.2): the schema must not forbid them.
+    expect(doc.components.schemas.Problem.additionalProperties).not.toBe(false);
   });
 
   it('answers a broken percent-encoding with a readable 400', async () => {

@@ -236,14 +236,25 @@ export const uploadSchema = z.object({
   report: z.array(reportEntrySchema),
 });
 
-export const problemSchema = z.object({
+/** Problem details (RFC 9457); extension members besides these may appear (reason, missing, limitBytes, file, report, ...). */
+export const problemSchema = z.looseObject({
   type: z.string(),
   title: z.string(),
   status: z.number().int(),
-  detail: z.string(),
-  code: z.string(),
-  instance: z.string().optional(),
-  errors: z.array(z.object({ where: z.string(), message: z.string(), line: z.number().int().optional(), column: z.number().int().optional(), field: z.string().optional() })).optional(),
+  detail: z.string().meta({ description: 'A sentence for people: what went wrong and what to do' }),
+  code: z.string().meta({ description: 'Stable problem code for programs (see /docs/problems)' }),
+  instance: z.string().optional().meta({ description: 'The request path, without its query string' }),
+  errors: z
+    .array(
+      z.object({
+        where: z.string().meta({ description: 'query.<name>, body.<field>, or a file, line and column' }),
+        message: z.string().meta({ description: 'A sentence naming the field, what it expects and what came' }),
+        line: z.number().int().optional(),
+        column: z.number().int().optional(),
+        field: z.string().optional(),
+      }),
+    )
+    .optional(),
 });
 
 export const embedSchema = z.object({ id: z.string(), name: z.string(), satellites: z.array(z.string()), options: z.record(z.string(), z.unknown()) });
