@@ -77,6 +77,17 @@ describe('who uploaded a set', () => {
     expect(history.body.elementSets[0].uploadedBy).toBe('Odile Owner');
   });
 
+  it('keeps names away from browser keys, which answer public pages', async () => {
+    const made = await owner.browser.post(`/api/orgs/${org}/keys`, { kind: 'browser', name: 'Public page', origins: ['https://www.brackwater.example'] }).expect(201);
+    const page = { Authorization: `Bearer ${made.body.secret as string}`, Origin: 'https://www.brackwater.example' };
+    const sat = (await request(t.app).post('/v1/satellites').set(v1()).send({ name: 'Brackwater-6', elements: leoTle({ catalogNumber: '99876' }) }).expect(201)).body.id as string;
+    const one = await request(t.app).get(`/v1/satellites/${sat}`).set(page).expect(200);
+    const list = await request(t.app).get('/v1/satellites').set(page).expect(200);
+    expect(one.body.current.uploadedBy).toBeNull();
+    expect(list.body.satellites.find((s: { id: string }) => s.id === sat).current.uploadedBy).toBeNull();
+    expect(JSON.stringify(list.body)).not.toContain('Odile Owner');
+  });
+
   it('names the key on the sets an upload answers with', async () => {
     const sat = (await request(t.app).post('/v1/satellites').set(v1()).send({ name: 'Brackwater-5' }).expect(201)).body.id as string;
     const up = await request(t.app).post(`/v1/satellites/${sat}/element-sets`).set(v1()).set('Content-Type', 'text/plain').send(leoTle({ catalogNumber: '99875' })).expect(201);

@@ -163,6 +163,16 @@ function visibleSatelliteNow(sats: SatelliteService, auth: V1Auth, rawId: unknow
   return seen(auth, id, hit);
 }
 
+/**
+ * Satellite views for this credential. Who uploaded a set (a member's name or a key's name) is
+ * for the organization itself: server keys and console previews see it; browser keys and embeds
+ * answer public pages, so they get `uploadedBy: null`.
+ */
+function viewsFor(auth: V1Auth, sats: SatelliteService, satellites: Parameters<SatelliteService['viewsWithUploaders']>[0]) {
+  if (auth.key.kind === 'server' || auth.via === 'preview') return sats.viewsWithUploaders(satellites);
+  return Promise.all(satellites.map((s) => sats.view(s, new Date(), undefined)));
+}
+
 function seen(auth: V1Auth, id: string, cached: CachedSatellite | null): CachedSatellite {
   if (!cached || !canSee(auth, cached.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
   return cached;
@@ -313,12 +323,13 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     const auth = authOf(res);
     const rows = await Satellite.findAll({ where: { organizationId: auth.key.organizationId }, order: [['name', 'ASC']] });
     const visible = rows.filter((s) => canSee(auth, s));
-    res.json({ satellites: await sats.viewsWithUploaders(visible) });
+    res.json({ satellites: await viewsFor(auth, sats, visible) });
   });
 
   keyed('get', '/satellites/:id', async (req, res) => {
-    const c = await visibleSatellite(sats, authOf(res), req.params.id);
-    const [view] = await sats.viewsWithUploaders([c.satellite]);
+    const auth = authOf(res);
+    const c = await visibleSatellite(sats, auth, req.params.id);
+    const [view] = await viewsFor(auth, sats, [c.satellite]);
     res.json(view);
   });
 
