@@ -199,14 +199,14 @@ describe('rate limits and quota', () => {
     const made = await t.makeKey({ kind: 'server', name: 'Slow', rateLimitPerMin: 3 });
     for (let i = 0; i < 3; i++) {
       const ok = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`).expect(200);
-      expect(ok.headers['ratelimit-policy']).toMatch(/q=3/);
-      expect(ok.headers.ratelimit).toMatch(/r=\d+/);
+      expect(ok.headers['ratelimit-policy']).toMatch(/^3;w=60$/);
+      expect(ok.headers.ratelimit).toMatch(/^limit=3, remaining=\d+, reset=\d+$/);
     }
     const res = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`);
     expectProblem(res, 429, 'rate-limited');
     expect(Number(res.headers['retry-after'])).toBeGreaterThan(0);
     expect(res.headers['retry-after']).toBeDefined();
-    expect(res.headers.ratelimit).toMatch(/r=0/);
+    expect(res.headers.ratelimit).toMatch(/remaining=0/);
     // Other keys are not affected.
     await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.serverKey}`).expect(200);
   });
