@@ -6,6 +6,8 @@ import { defineConfig } from 'vitest/config';
 //  e2e: Playwright driving Debian's Chromium against the real server (tests/e2e).
 export default defineConfig({
   test: {
+    // In CI a JSON report is written too, so .ci/run can print one plain "N passed, N failed" line.
+    reporters: process.env.CI ? ['default', ['json', { outputFile: 'test-results/vitest.json' }]] : ['default'],
     projects: [
       'shared/vitest.config.ts',
       'server/vitest.config.ts',
