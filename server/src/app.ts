@@ -2,6 +2,7 @@
  * Builds the Express app. Tests import createApp and drive it over real HTTP (supertest);
  * index.ts opens the database through it, listens and shuts down cleanly.
  */
+import type { IncomingMessage, ServerResponse } from 'node:http';
 import express from 'express';
 import pino from 'pino';
 import { pinoHttp } from 'pino-http';
@@ -9,6 +10,7 @@ import type { Config } from './config.ts';
 import type { AppContext } from './context.ts';
 import { openDatabase } from './db/index.ts';
 import { bodyTimeout, refuseControlChars } from './http/input-guards.ts';
+import { getOverLimitGate, overLimitFront } from './http/over-limit.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
@@ -28,6 +30,11 @@ function redactUrl(url: string): string {
 
 export interface NadirlineApp {
   app: express.Express;
+  /**
+   * What the HTTP server should call: the over-limit gate, then the app. Refusing a key that is
+   * over its limit here skips Express's own work per request as well (index.ts listens with it).
+   */
+  handler: (req: IncomingMessage, res: ServerResponse) => void;
   context: AppContext;
   /** Flush usage, stop the fake SMTP server, close the database. Idempotent. */
   close(): Promise<void>;
@@ -54,6 +61,11 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
+  // Keys over their rate limit are refused first: no log line, no routing, no limiter work.
+  // The server calls the gate before Express (handler below); in-process callers get it here.
+  const keys = getKeyService(context);
+  const front = overLimitFront(getOverLimitGate(context), (text) => keys.cachedKeyIdFor(text));
+  app.use(front);
   // Request lines are logged at info; below that level the middleware would only cost time.
   if (logger.isLevelEnabled('info')) app.use(
     pinoHttp({
@@ -95,5 +107,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     })();
     return closed;
   };
-  return { app, context, close };
+  const handler = (req: IncomingMessage, res: ServerResponse) => {
+    front(req as express.Request, res as express.Response, () => app(req, res));
+  };
+  return { app, handler, context, close };
 }

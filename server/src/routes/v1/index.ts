@@ -272,7 +272,7 @@ function uploadDetail(stored: number, duplicates: number, rejected: number): str
 export async function createV1Router(ctx: AppContext): Promise<Router> {
   const router = Router();
   const sats = getSatelliteService(ctx);
-  const limiter = keyRateLimit();
+  const limiter = keyRateLimit(ctx);
   const trackAnswers = new TrackAnswerCache();
   // Without PUBLIC_URL the server URL is relative: the document is right on any host and port.
   const openapi = buildOpenApi(ctx.config.PUBLIC_URL ? ctx.config.publicUrl : '/');
