@@ -1,5 +1,5 @@
 /**
- * The keyed public API, /v1 (contract in brief.md; the route table and caps in ./schemas.ts).
+ * The keyed public API, /v1 (contract in brief.md; the route table, caps and answer types in @nadirline/shared/contract).
  * Each keyed route runs: CORS headers -> credential, origin and scope -> per-key rate limit ->
  * monthly quota and usage count (memory only) -> query validation -> handler.
  * Routes only: answers are written as text in ./serialize.ts, kept in ./answer-cache.ts, and
@@ -40,7 +40,13 @@ import {
   trackQuery,
   V1_ROUTES,
   type RouteSpec,
-} from './schemas.ts';
+  type V1Passes,
+  type V1Position,
+  type V1Positions,
+  type V1SatellitePosition,
+  type V1Track,
+  type V1Upload,
+} from '@nadirline/shared/contract';
 import { sendJson, TrackAnswerCache } from './answer-cache.ts';
 import { engineProblem } from './errors.ts';
 import { iso, round, trackGeoJsonText, trackPointsJson } from './serialize.ts';
@@ -104,7 +110,7 @@ function requireSet(c: CachedSatellite): CurrentSet {
   return c.current;
 }
 
-function positionOf(cur: CurrentSet, atMs: number, name: string) {
+function positionOf(cur: CurrentSet, atMs: number, name: string): { ok: false; error: HttpError } | { ok: true; value: V1Position } {
   const p = propagateAt(cur.satrec, atMs);
   if (!p.ok) return { ok: false as const, error: engineProblem(p.code, p.message, name) };
   return {
@@ -214,7 +220,8 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       const p = positionOf(cur, at, c.satellite.name);
       if (!p.ok) throw p.error;
       res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
-      sendJson(res, { satelliteId: c.satellite.id, ...p.value });
+      const body: V1SatellitePosition = { satelliteId: c.satellite.id, ...p.value };
+      sendJson(res, body);
     };
     const c = visibleSatelliteNow(sats, authOf(res), req.params.id);
     if (c instanceof Promise) return c.then(answer);
@@ -232,14 +239,15 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       return !c || !canSee(auth, c.satellite);
     });
     if (missing.length > 0) throw new HttpError('not-found', `No satellite ${missing.join(', ')} is visible to this key.`, { missing });
-    const positions = (found as CachedSatellite[]).map((c) => {
+    const positions = (found as CachedSatellite[]).map((c): V1Positions['positions'][number] => {
       const base = { id: c.satellite.id, name: c.satellite.name };
       if (!c.current) return { ...base, error: { code: 'no-element-set', detail: `${c.satellite.name} has no element set yet.` } };
       const p = positionOf(c.current, at, c.satellite.name);
       return p.ok ? { ...base, ...p.value } : { ...base, error: { code: p.error.code, detail: p.error.detail } };
     });
     res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
-    res.json({ t: iso(at), positions });
+    const body: V1Positions = { t: iso(at), positions };
+    res.json(body);
   });
 
   keyed('get', '/satellites/:id/track', async (req, res) => {
@@ -298,14 +306,15 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       sendJson(res, body, 'application/geo+json; charset=utf-8');
       return;
     }
-    const head = JSON.stringify({
+    const headFields: Omit<V1Track, 'points'> = {
       satelliteId: c.satellite.id,
       elementSetId: cur.record.id,
       start: iso(start),
       end: iso(r.samples[r.samples.length - 1]?.t ?? end),
       stepS,
       count: r.samples.length,
-    });
+    };
+    const head = JSON.stringify(headFields);
     const body = `${head.slice(0, -1)},"points":${trackPointsJson(r.samples)}}`;
     trackAnswers.set(etag, body, 'application/json; charset=utf-8');
     sendJson(res, body);
@@ -324,7 +333,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       throw engineProblem(r.code, r.message, c.satellite.name);
     }
     res.setHeader('Cache-Control', q.start !== undefined ? 'private, max-age=300' : 'private, max-age=60');
-    res.json({
+    const body: V1Passes = {
       satelliteId: c.satellite.id,
       observer: { lat: q.lat, lon: q.lon, altM: q.altM },
       start: iso(start),
@@ -344,7 +353,8 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
         inProgressAtStart: p.inProgressAtStart,
         inProgressAtEnd: p.inProgressAtEnd,
       })),
-    });
+    };
+    res.json(body);
   });
 
   // -- writes ----------------------------------------------------------------------------------
@@ -409,15 +419,16 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     const first = result.created[0];
     const stored = result.created.length;
     // accepted counts the sets stored by this request; duplicates (epochs already stored) apart.
-    res.status(stored > 0 ? 201 : 200).json({
+    const body: V1Upload = {
       detail: uploadDetail(stored, result.duplicates, result.rejected),
-      elementSet: first ? { ...summaries[0], elements: parsedOf(first) } : null,
+      elementSet: first && summaries[0] ? { ...summaries[0], elements: { ...parsedOf(first) } } : null,
       elementSets: summaries,
       accepted: stored,
       duplicates: result.duplicates,
       rejected: result.rejected,
       report: result.report,
-    });
+    };
+    res.status(stored > 0 ? 201 : 200).json(body);
   });
 
   // -- public ----------------------------------------------------------------------------------
