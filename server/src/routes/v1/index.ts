@@ -146,7 +146,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   const router = Router();
   const sats = getSatelliteService(ctx);
   const limiter = keyRateLimit(ctx);
-  const trackAnswers = new TrackAnswerCache();
+  const trackAnswers = new TrackAnswerCache({ maxBytes: ctx.config.TRACK_CACHE_MB * 1024 * 1024 });
   // Without PUBLIC_URL the server URL is relative: the document is right on any host and port.
   const openapi = buildOpenApi(ctx.config.PUBLIC_URL ? ctx.config.publicUrl : '/');
   const openapiText = JSON.stringify(openapi, null, 2);
