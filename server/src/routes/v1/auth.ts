@@ -185,6 +185,9 @@ function previewCredential(ctx: AppContext, text: string): Credential {
       `This console preview token expired at ${new Date((v.claims?.exp ?? 0) * 1000).toISOString()}. The console fetches a new one before the old one ends; reload the page if the preview stays stopped.`,
     );
   }
+  if (v.reason === 'too-long') {
+    throw new HttpError('invalid-key', 'This console preview token claims to last longer than the 15 minutes preview tokens are issued for, so this server did not issue it. Reload the console page to get a new one.');
+  }
   throw new HttpError('invalid-key', 'This console preview token is not valid: it was changed, or signed by another server. Reload the console page to get a new one.');
 }
 
