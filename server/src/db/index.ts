@@ -15,12 +15,14 @@ import type { Config } from '../config.ts';
 import { initModels } from '../models/index.ts';
 import * as m0001 from './migrations/0001-initial.ts';
 import * as m0002 from './migrations/0002-element-set-epoch-unique.ts';
+import * as m0003 from './migrations/0003-session-ids-hashed.ts';
 import { DatabaseBusyError, isDatabaseBusy, WriteLock } from './write-lock.ts';
 
 /** Migrations in order. Add a new file and append it here; never edit a shipped one. */
 const MIGRATIONS = [
   { name: '0001-initial', ...m0001 },
   { name: '0002-element-set-epoch-unique', ...m0002 },
+  { name: '0003-session-ids-hashed', ...m0003 },
 ];
 
 /** How long an SQLite connection waits for a lock held by another connection or process, ms. */

@@ -83,7 +83,7 @@ export function accountRoutes(ctx: AppContext): ApiRoutes {
     res.json({
       user: user ? serializeUser(user) : null,
       memberships: user ? await membershipsOf(user.id) : [],
-      csrfToken: csrfToken(req),
+      csrfToken: csrfToken(req, res, ctx.config),
     });
   });
 
