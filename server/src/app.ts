@@ -18,11 +18,11 @@ import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
 
-/** Keys and one-time tokens never reach the logs. */
-function redactUrl(url: string): string {
+/** Keys and one-time tokens (in queries, invitation links and their API paths) never reach the logs. */
+export function redactUrl(url: string): string {
   return url
-    .replace(/([?&](?:key|token)=)[^&]+/g, '$1[hidden]')
-    .replace(/(\/api\/invitations\/)[^/?]+/, '$1[hidden]');
+    .replace(/([?&](?:key|token)=)[^&#]+/gi, '$1[hidden]')
+    .replace(/(\/(?:api\/invitations|invite)\/)[^/?#]+/gi, '$1[hidden]');
 }
 
 export interface NadirlineApp {
@@ -74,7 +74,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.use(await createSiteRouter(context));
 
   app.use(notFoundHandler);
-  app.use(errorHandler({ exposeInternals: !config.isProduction, logger }));
+  // Stack traces go to the log; answers carry them only under NODE_ENV=test.
+  app.use(errorHandler({ exposeInternals: config.isTest, logger }));
 
   let closed: Promise<void> | undefined;
   const close = () => {

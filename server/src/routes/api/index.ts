@@ -41,7 +41,7 @@ export async function createApiRouter(ctx: AppContext): Promise<Router> {
     next();
   });
   router.use(createSessionMiddleware(ctx));
-  router.use(csrfProtection);
+  router.use(csrfProtection(ctx.config));
   router.use(express.json({ limit: '2mb' }));
   const routes = buildApiRoutes(ctx);
   ctx.services.apiRoutes = routes.map((r) => ({ method: r.method, path: r.path, action: r.action, access: ACCESS[r.action] }));
