@@ -19,6 +19,7 @@ import {
   trackToGeoJSON,
 } from '@nadirline/shared';
 import type { AppContext } from '../../context.ts';
+import { readMultipart, refuseNulInJson } from '../../http/input-guards.ts';
 import { HttpError, withUploadLimits } from '../../http/problem.ts';
 import { safeParseMarked, validationProblem } from '../../http/validate.ts';
 import { Satellite } from '../../models/index.ts';
@@ -360,7 +361,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   // -- writes ----------------------------------------------------------------------------------
 
   const jsonBody = express.json({ limit: CAPS.uploadMaxBytes });
-  keyed('post', '/satellites', jsonBody, async (req, res) => {
+  keyed('post', '/satellites', jsonBody, refuseNulInJson, async (req, res) => {
     if (!req.is('application/json')) throw new HttpError('unsupported-media-type', 'Send JSON: { "name": "...", "elements": "<TLE or OMM text>" }.');
     const r = safeParseMarked(createSatelliteBody, req.body);
     if (!r.success) throw validationProblem(createSatelliteBody, req.body, r.error.issues, 'body', 'sentence');
@@ -379,14 +380,17 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   });
 
   const textBody = express.text({ type: ['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'], limit: CAPS.uploadMaxBytes });
-  const files = multer({ storage: multer.memoryStorage(), limits: { fileSize: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles, fields: 10 } }).any();
+  const files = readMultipart(
+    multer({ storage: multer.memoryStorage(), limits: { fileSize: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles, fields: 10 } }).any(),
+    (err) => withUploadLimits(err, { fileBytes: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles }),
+  );
   keyed('post', '/satellites/:id/element-sets', async (req, res, next) => {
     // Check the satellite before reading any body.
     const auth = authOf(res);
     const id = checkId(req.params.id);
     const c = await sats.current(id);
     if (!c || !canSee(auth, c.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
-    if (req.is('multipart/form-data')) files(req, res, (err?: unknown) => next(err ? withUploadLimits(err, { fileBytes: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles }) : undefined));
+    if (req.is('multipart/form-data')) files(req, res, next);
     else if (req.is(['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'])) textBody(req, res, next);
     else throw new HttpError('unsupported-media-type', 'Send the element set as text/plain (TLE or OMM KVN), application/xml (OMM XML), application/json (OMM JSON) or multipart/form-data files.');
   }, async (req, res) => {
