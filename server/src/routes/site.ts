@@ -1,10 +1,17 @@
 /**
  * Static hosting and pages served by the app:
  *   /widget/*          widget/dist: hashed files cached for a year (immutable), nadir-track.js and
- *                      nadir-track.iife.js for 5 minutes; readable from any origin (CORS *, CORP
- *                      cross-origin), since pages on other sites load them.
+ *                      nadir-track.iife.js for 5 minutes (revalidated by ETag); readable from any
+ *                      origin (CORS *, CORP cross-origin), since pages on other sites load them.
+ *                      /widget/nadir-track.<version>.js and nadir-track.iife.<version>.js are the
+ *                      same scripts under a versioned name (the first 10 hex digits of the file's
+ *                      SHA-256), cached for a year; /widget/versions.json names the current ones.
+ *                      A version that is no longer built redirects (302, short cache) to the plain URL.
+ *                      Text answers are compressed (gzip or brotli) by the app (app.ts).
  *   /embed/:id         a page holding only <nadir-track embed="ID"> for a saved embed; framable by
- *                      the origins of the embed's key.
+ *                      the origins of the embed's key. Framed by a page of another origin (its
+ *                      Referer) the key does not list, it answers our own short refusal page,
+ *                      framable anywhere, instead of a frame the browser would blank.
  *   /examples/*        examples/: in demo mode, {{BROWSER_KEY}}, {{SATELLITE_IDS}}, {{EMBED_ID}} and
  *                      {{API_BASE}} in .html/.js files are replaced from the demo credentials.
  *   /docs/api          API reference rendered from the OpenAPI document; /docs/problems the problem codes.
@@ -13,6 +20,7 @@
  *                      under /v1, /api, /dev get index.html (history fallback).
  * Missing builds answer a clear page (HTML) or problem (anything else).
  */
+import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import { createRequire } from 'node:module';
 import path from 'node:path';
@@ -22,7 +30,7 @@ import type { AppContext } from '../context.ts';
 import { HttpError, PROBLEM_TYPE_BASE, sendProblem } from '../http/problem.ts';
 import { securityHeaders } from '../http/security.ts';
 import { getEmbedService } from '../services/embeds.ts';
-import { getKeyService } from '../services/keys.ts';
+import { getKeyService, originAllowed } from '../services/keys.ts';
 import { buildOpenApi, PROBLEM_DOCS } from '../services/openapi.ts';
 
 /** The Nadirline mark: a ring (the orbit) with the point beneath it (the nadir). */
@@ -221,6 +229,57 @@ function substituteDemo(text: string, creds: DemoCredentialsFile | null, apiBase
     .replaceAll('{{API_BASE}}', apiBase);
 }
 
+/** The built widget scripts under their versioned names, re-read when a build changes them. */
+export interface WidgetVersions {
+  /** versioned file name -> plain file name in widget/dist */
+  files: Map<string, string>;
+  module: string;
+  classic: string;
+}
+
+const WIDGET_SCRIPTS = [
+  { plain: 'nadir-track.js', stem: 'nadir-track' },
+  { plain: 'nadir-track.iife.js', stem: 'nadir-track.iife' },
+] as const;
+const VERSIONED = /^nadir-track(?:\.iife)?\.([0-9a-f]{10})\.js$/;
+
+export function widgetVersionReader(dist: string): () => WidgetVersions | null {
+  let cached: { stamp: string; value: WidgetVersions } | undefined;
+  return () => {
+    let stamp = '';
+    try {
+      stamp = WIDGET_SCRIPTS.map((f) => {
+        const st = fs.statSync(path.join(dist, f.plain));
+        return `${st.mtimeMs}:${st.size}`;
+      }).join('|');
+    } catch {
+      return null;
+    }
+    if (cached?.stamp === stamp) return cached.value;
+    const files = new Map<string, string>();
+    const names: string[] = [];
+    for (const f of WIDGET_SCRIPTS) {
+      const hash = createHash('sha256').update(fs.readFileSync(path.join(dist, f.plain))).digest('hex').slice(0, 10);
+      const name = `${f.stem}.${hash}.js`;
+      files.set(name, f.plain);
+      names.push(name);
+    }
+    cached = { stamp, value: { files, module: names[0]!, classic: names[1]! } };
+    return cached.value;
+  };
+}
+
+/** Our own page for a hosted embed framed by a site its key does not list. */
+function refusedEmbedPage(origin: string): string {
+  return `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="color-scheme" content="light dark"><title>Not allowed on this site · Nadirline</title>
+<style>${PAGE_CSS} body{background:transparent} main{padding:1.25rem;max-width:36rem} h1{font-size:1.15rem;margin:0 0 .5rem} p{margin:.25rem 0}</style></head>
+<body><main role="alert"><h1>This map is not allowed on this site</h1>
+<p>The Nadirline embed shown here may only appear on the sites its key lists, and <code>${esc(origin)}</code> is not one of them.</p>
+<p class="muted">The site owner can add this address to the key’s allowed origins in the Nadirline console.</p></main></body></html>`;
+}
+
 function missingBuild(res: Response, req: Request, what: string, command: string): void {
   if (req.accepts(['html', 'json']) === 'html') {
     res
@@ -230,6 +289,26 @@ function missingBuild(res: Response, req: Request, what: string, command: string
     return;
   }
   sendProblem(res, 'unavailable', `The ${what} is not built; run ${command}.`, {}, req.originalUrl);
+}
+
+/**
+ * The origin of the page framing this request, when the browser says it is framed (Sec-Fetch-Dest)
+ * and names the page (Referer) and that page is of another origin. Null otherwise: a framer
+ * that sends no Referer is left to the frame-ancestors policy.
+ */
+function framingOrigin(req: Request): string | null {
+  if (req.get('sec-fetch-dest') !== 'iframe' && req.get('sec-fetch-dest') !== 'frame') return null;
+  if (req.get('sec-fetch-site') === 'same-origin') return null;
+  const referer = req.get('referer');
+  if (!referer) return null;
+  try {
+    const origin = new URL(referer).origin;
+    const host = req.get('host');
+    if (!origin || origin === 'null' || (host && origin === `${req.protocol}://${host}`)) return null;
+    return origin;
+  } catch {
+    return null;
+  }
 }
 
 export async function createSiteRouter(ctx: AppContext): Promise<Router> {
@@ -262,6 +341,25 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
     }
     next();
   });
+  const widgetVersions = widgetVersionReader(widgetDist);
+  router.get('/widget/versions.json', (_req, res) => {
+    const v = widgetVersions();
+    res.setHeader('Cache-Control', 'public, max-age=300, must-revalidate');
+    res.json({ module: `/widget/${v?.module}`, classic: `/widget/${v?.classic}` });
+  });
+  router.get('/widget/:file', (req, res, next) => {
+    const file = String(req.params.file);
+    if (!VERSIONED.test(file)) return next();
+    const v = widgetVersions();
+    const plain = v?.files.get(file);
+    if (!plain) {
+      // an older build: the current script under its plain name keeps the page working
+      res.setHeader('Cache-Control', 'public, max-age=300');
+      res.redirect(302, `/widget/${file.includes('.iife.') ? 'nadir-track.iife.js' : 'nadir-track.js'}`);
+      return;
+    }
+    res.sendFile(path.join(widgetDist, plain), { headers: { 'Cache-Control': `public, max-age=${YEAR_S}, immutable` }, cacheControl: false });
+  });
   router.use(
     '/widget',
     express.static(widgetDist, {
@@ -286,6 +384,16 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
     }
     const key = embed.apiKeyId ? await getKeyService(ctx).findById(embed.apiKeyId) : null;
     const ancestors = ["'self'", ...(key?.origins ?? [])].join(' ');
+    // Framed by another site's page: a site the key does not list gets our words, not a blanked frame.
+    const framer = framingOrigin(req);
+    if (framer && !originAllowed(key?.origins ?? [], framer)) {
+      res.setHeader('Content-Security-Policy', "default-src 'none'; style-src 'unsafe-inline'; base-uri 'none'; form-action 'none'; frame-ancestors *");
+      res.setHeader('X-Content-Type-Options', 'nosniff');
+      res.setHeader('Cache-Control', 'no-store');
+      res.setHeader('Vary', 'Referer, Sec-Fetch-Dest');
+      res.status(403).type('html').send(refusedEmbedPage(framer));
+      return;
+    }
     const size = (v: unknown, d: string) => (typeof v === 'string' && /^[0-9.]+(px|rem|em|vh|vw|%)$/.test(v) ? v : d);
     res.setHeader(
       'Content-Security-Policy',
@@ -296,7 +404,13 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
     res.setHeader('Cache-Control', 'no-cache');
     const template = path.join(repoRoot, 'widget', 'embed.html');
     if (fs.existsSync(template)) {
-      const html = fs.readFileSync(template, 'utf8').replaceAll('{{EMBED_ID}}', esc(embed.id)).replaceAll('{{EMBED_NAME}}', esc(embed.name));
+      const v = widgetVersions();
+      const html = fs
+        .readFileSync(template, 'utf8')
+        .replaceAll('{{EMBED_ID}}', esc(embed.id))
+        .replaceAll('{{EMBED_NAME}}', esc(embed.name))
+        .replaceAll('/widget/nadir-track.js', `/widget/${v?.module ?? 'nadir-track.js'}`)
+        .replaceAll('/widget/nadir-track.iife.js', `/widget/${v?.classic ?? 'nadir-track.iife.js'}`);
       res.type('html').send(html);
       return;
     }
