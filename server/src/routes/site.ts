@@ -35,7 +35,7 @@ import { buildOpenApi, PROBLEM_DOCS } from '../services/openapi.ts';
 
 /** The Nadirline mark: a ring (the orbit) with the point beneath it (the nadir). */
 const FAVICON_SVG =
-  "<svg xmlns='http://www.w3.org/2000/svg' viewBox='0 0 32 32'><circle cx='16' cy='16' r='13' fill='none' stroke='#b3541e' stroke-width='3'/><circle cx='16' cy='27' r='3' fill='#b3541e'/></svg>";
+  "<svg xmlns='http://www.w3.org/2000/svg' viewBox='0 0 32 32'><circle cx='16' cy='16' r='13' fill='none' stroke='#08646f' stroke-width='3'/><circle cx='16' cy='27' r='3' fill='#08646f'/></svg>";
 
 const YEAR_S = 31_536_000;
 const HASHED = /[.-][A-Za-z0-9_-]{8,}\.[a-z0-9]+$/;
@@ -59,12 +59,12 @@ function fontDir(): string | null {
   }
 }
 
-/** Calm paper palette of the server's own pages (docs, placeholders). */
+/** The Nadirline palette (console/src/styles/tokens.css, Day and Night) for the server's own pages (docs, placeholders). */
 const PAGE_CSS = `
 @font-face { font-family: 'Work Sans'; font-weight: 400; font-style: normal; font-display: swap; src: url(/fonts/work-sans-latin-400-normal.woff2) format('woff2'); }
 @font-face { font-family: 'Work Sans'; font-weight: 600; font-style: normal; font-display: swap; src: url(/fonts/work-sans-latin-600-normal.woff2) format('woff2'); }
-:root { --paper: #f7f4ed; --ink: #2a2925; --muted: #6a655a; --rule: #dcd5c6; --accent: #1d5e63; --code: #efe9dc; --warn: #8a4b16; }
-@media (prefers-color-scheme: dark) { :root { --paper: #1c1d1f; --ink: #e8e4da; --muted: #a59f92; --rule: #3a3a38; --accent: #7cc2c4; --code: #27292b; --warn: #e0a86a; } }
+:root { --paper: #f2f5f8; --ink: #0f1b2a; --muted: #3b4859; --rule: #d2dae3; --accent: #08646f; --code: #e4eaf0; --warn: #7a4f00; }
+@media (prefers-color-scheme: dark) { :root { --paper: #0b1118; --ink: #e4ebf2; --muted: #b3c0cd; --rule: #243140; --accent: #4fc3cc; --code: #131b25; --warn: #e7bf62; } }
 * { box-sizing: border-box; }
 body { margin: 0; background: var(--paper); color: var(--ink); font: 16px/1.55 'Work Sans', system-ui, sans-serif; }
 main { max-width: 58rem; margin: 0 auto; padding: 2rem 1.25rem 4rem; }
