@@ -118,3 +118,32 @@ export function ageWords(ageDays: number): string {
   const d = ageDays < 10 ? ageDays.toFixed(1) : String(Math.round(ageDays));
   return `${d} days`;
 }
+
+/**
+ * A time zone as people say it, in the reader's language: "Eastern Time", "Mitteleuropäische
+ * Zeit", "heure d’Europe centrale" (Intl's generic long name, else its long name at `atMs`),
+ * never the raw "America/New_York". An unknown zone or an engine without these names falls back
+ * to the zone id read as words ("New York"), then to `fallback`.
+ */
+export function zoneWords(timeZone: string | undefined, locale: string | undefined, atMs: number, fallback = 'local time'): string {
+  let zone = timeZone;
+  try {
+    zone ||= Intl.DateTimeFormat().resolvedOptions().timeZone;
+  } catch {
+    zone = undefined;
+  }
+  if (!zone) return fallback;
+  for (const style of ['longGeneric', 'long'] as const) {
+    try {
+      const part = new Intl.DateTimeFormat(locale || undefined, { timeZone: zone, timeZoneName: style })
+        .formatToParts(atMs)
+        .find((p) => p.type === 'timeZoneName')?.value;
+      // engines without a name for the zone give an offset ("GMT-5"), which is no better than the city
+      if (part && !/^(GMT|UTC)[+−-]\d/.test(part)) return part;
+    } catch {
+      // unknown zone or style: try the next
+    }
+  }
+  if (/^(Etc\/)?(UTC|GMT|UCT|Zulu)$/i.test(zone)) return 'UTC';
+  return zone.split('/').pop()!.replace(/_/g, ' ') || fallback;
+}
