@@ -13,7 +13,16 @@ const ASSETS = [
   { key: '600', src: '@fontsource/work-sans/files/work-sans-latin-600-normal.woff2', name: 'work-sans-latin-600', ext: 'woff2' },
 ] as const;
 
-function hashedAssets(): { files: { fileName: string; source: Buffer }[]; define: { world: string; fonts: Record<string, string> } } {
+/** The widget's words in the languages beyond English, fetched only by pages that need them (src/lib/words.ts). */
+const LOCALES = ['de', 'fr', 'es'] as const;
+
+function hashedAssets(): { files: { fileName: string; source: Buffer }[]; define: { world: string; fonts: Record<string, string>; words: Record<string, string> } } {
+  const words = LOCALES.map((lang) => {
+    // parsed and written again: a broken file fails the build, and the copy is minified
+    const source = Buffer.from(JSON.stringify(JSON.parse(readFileSync(new URL(`./src/locales/${lang}.json`, import.meta.url), 'utf8'))));
+    const hash = createHash('sha256').update(source).digest('hex').slice(0, 10);
+    return { lang, fileName: `assets/words-${lang}.${hash}.json`, source };
+  });
   const files = ASSETS.map((a) => {
     const source = readFileSync(require.resolve(a.src));
     const hash = createHash('sha256').update(source).digest('hex').slice(0, 10);
@@ -21,7 +30,10 @@ function hashedAssets(): { files: { fileName: string; source: Buffer }[]; define
   });
   const world = files.find((f) => f.key === 'world')!.fileName;
   const fonts = Object.fromEntries(files.filter((f) => f.key !== 'world').map((f) => [f.key, f.fileName]));
-  return { files, define: { world, fonts } };
+  return {
+    files: [...files, ...words],
+    define: { world, fonts, words: Object.fromEntries(words.map((w) => [w.lang, w.fileName])) },
+  };
 }
 
 /** Emits the map and font files and tells the code their names through __NADIR_ASSETS__. */
