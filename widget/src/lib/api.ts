@@ -124,6 +124,7 @@ export interface EmbedConfig {
     theme: string;
     timeZone: string;
     locale: string;
+    observerName: string;
   }>;
   apiKey?: string;
 }
