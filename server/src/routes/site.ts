@@ -143,6 +143,39 @@ function fieldsTable(schema: Json | undefined): string {
   return stackTable(['field', 'type', 'meaning'], rows);
 }
 
+/** Values that make each route's example runnable against the demo data (the README shows how to set KEY and SAT). */
+const EXAMPLE_VALUES: Record<string, string> = {
+  id: '$SAT',
+  ids: '$SAT,$SAT2',
+  lat: '51.38',
+  lon: '-2.36',
+  step: '60',
+  days: '2',
+};
+
+/**
+ * A curl line for one route: the base URL, the path with its ids, the required query parameters
+ * (and a telling optional one), the credential the route takes, and a body for uploads.
+ */
+export function exampleRequest(method: string, p: string, op: Json, baseUrl: string): string {
+  const params = (op.parameters as Json[] | undefined) ?? [];
+  const path = p.replace(/\{(\w+)\}/g, (_m, name: string) => (name === 'id' && p.startsWith('/v1/embeds') ? '$EMBED' : (EXAMPLE_VALUES[name] ?? `$${name.toUpperCase()}`)));
+  const query = params
+    .filter((x) => x.in === 'query' && x.name !== 'key' && x.name !== 'embed' && (x.required || x.name === 'step' || x.name === 'days'))
+    .map((x) => `${String(x.name)}=${EXAMPLE_VALUES[String(x.name)] ?? String((x.schema as Json | undefined)?.example ?? (x as Json).example ?? '')}`);
+  const url = `${baseUrl}${path}${query.length ? `?${query.join('&')}` : ''}`;
+  const secured = ((op.security as unknown[] | undefined) ?? []).length > 0;
+  const parts = ['curl'];
+  if (method === 'post') parts.push('-X POST');
+  if (secured) parts.push(method === 'post' ? '-H "Authorization: Bearer $SERVER_KEY"' : '-H "Authorization: Bearer $KEY"');
+  const body = op.requestBody as Json | undefined;
+  const types = body ? Object.keys(body.content as Json) : [];
+  if (types.includes('text/plain')) parts.push('-H "Content-Type: text/plain" --data-binary @elements.tle');
+  else if (types.includes('application/json')) parts.push(`-H "Content-Type: application/json" -d '{"name": "Kestrel-2", "elements": "<TLE or OMM text>"}'`);
+  parts.push(`"${url}"`);
+  return parts.join(' ');
+}
+
 export function renderApiReference(doc: ReturnType<typeof buildOpenApi>, baseUrl: string): string {
   const info = doc.info as Json;
   const sections: string[] = [];
@@ -173,6 +206,8 @@ ${op.description ? `<p class="muted">${prose(String(op.description))}</p>` : ''}
 <p class="muted">Credential: ${(op.security as unknown[]).length === 0 ? 'none' : method === 'post' ? 'server key with <code>element-sets:write</code> (Authorization: Bearer)' : 'any key (Authorization: Bearer), or <code>?key=</code> with a browser key, or <code>?embed=</code>'}</p>
 ${paramRows.length ? stackTable(['parameter', 'in', 'type', 'meaning'], paramRows) : ''}
 ${bodyTypes.length ? `<h3>Body</h3><p>${bodyTypes.map((t) => `<code>${esc(t)}</code>`).join(', ')}</p>${fieldsTable(bodyJson)}` : ''}
+<h3>Example</h3>
+<pre><code>${esc(exampleRequest(method, p, op, baseUrl))}</code></pre>
 ${responses}
 </section>`);
     }
@@ -184,6 +219,13 @@ ${responses}
 <h1>${esc(String(info.title))}</h1>
 <p class="muted">Version ${esc(String(info.version))} · base URL <code>${esc(baseUrl)}/v1</code></p>
 <p>${prose(String(info.description))}</p>
+<h2>Trying the examples</h2>
+<p>Each route below has a <code>curl</code> example. With the demo data (<code>npm start</code>), set the shell variables from <code>data/demo-credentials.json</code> first:</p>
+<pre><code>KEY=$(node -p "require('./data/demo-credentials.json').serverKey")
+SERVER_KEY=$KEY
+SAT=$(node -p "require('./data/demo-credentials.json').satellites[0].id")
+SAT2=$(node -p "require('./data/demo-credentials.json').satellites[1].id")
+EMBED=$(node -p "require('./data/demo-credentials.json').embedId")</code></pre>
 <h2>Keys</h2>
 <p><strong>Browser keys</strong> (<code>nlb_…</code>) are read-only and work only from web pages of the origins they list (exact, like <code>https://www.example.org</code>, or a wildcard, like <code>https://*.example.org</code>, which matches subdomains at any depth but not <code>https://example.org</code> itself); they may go in page source and in <code>?key=</code> on GET. A request with a browser key that names no origin (no Origin or Referer header, as from curl) is refused. <strong>Server keys</strong> (<code>nls_…</code>) are secret and belong on your backend, in the <code>Authorization: Bearer</code> header only; with the <code>element-sets:write</code> scope they may upload element sets. A rotated key keeps working until its grace period ends; a revoked key stops at once.</p>
 <h2>Limits</h2>
