@@ -3,6 +3,7 @@
  * index.ts opens the database through it, listens and shuts down cleanly.
  */
 import type { IncomingMessage, ServerResponse } from 'node:http';
+import compression from 'compression';
 import express from 'express';
 import pino from 'pino';
 import { pinoHttp } from 'pino-http';
@@ -21,11 +22,11 @@ import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
 
-/** Keys and one-time tokens never reach the logs. */
-function redactUrl(url: string): string {
+/** Keys and one-time tokens (in queries, invitation links and their API paths) never reach the logs. */
+export function redactUrl(url: string): string {
   return url
-    .replace(/([?&](?:key|token)=)[^&]+/g, '$1[hidden]')
-    .replace(/(\/api\/invitations\/)[^/?]+/, '$1[hidden]');
+    .replace(/([?&](?:key|token)=)[^&#]+/gi, '$1[hidden]')
+    .replace(/(\/(?:api\/invitations|invite)\/)[^/?#]+/gi, '$1[hidden]');
 }
 
 export interface NadirlineApp {
@@ -82,6 +83,11 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.use(bodyTimeout(config.BODY_TIMEOUT_MS));
   app.use(refuseControlChars);
 
+  // Text answers (widget script, map data, JSON, pages) go out gzip- or brotli-compressed when the
+  // client accepts it; fonts and images are already compressed and are left alone (the filter
+  // looks at the content type). Answers under 1 KB are not worth it.
+  app.use(compression({ threshold: 1024 }));
+
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
   });
@@ -91,7 +97,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.use(await createSiteRouter(context));
 
   app.use(notFoundHandler);
-  app.use(errorHandler({ exposeInternals: !config.isProduction, logger }));
+  // Stack traces go to the log; answers carry them only under NODE_ENV=test.
+  app.use(errorHandler({ exposeInternals: config.isTest, logger }));
 
   let closed: Promise<void> | undefined;
   const close = () => {

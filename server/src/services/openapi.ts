@@ -58,6 +58,7 @@ const MEANINGS: Record<ProblemCode, string> = {
   'quota-exceeded': 'The organization used its plan\u2019s monthly requests. The quota resets on the first day of the next month (UTC); the owner can move to a larger plan.',
   'too-many-attempts': 'Too many sign-in, sign-up or e-mail attempts in a short time. Wait the minutes the detail names, then try again.',
   'internal': 'Something failed on the server\u2019s side; it is logged. Retry later, and tell the operator if it keeps happening.',
+  'busy': 'The database was busy with other writes for longer than the server waits; nothing was stored by this request. Send it again after `Retry-After` seconds.',
   'unavailable': 'A part of this server is not ready (the console or widget is not built, or a provider is not set up); the detail says which. Retry later, or ask the server\u2019s operator.',
 };
 

@@ -25,6 +25,7 @@
  *   Actor = { userId?: string | null, keyId?: string | null }
  */
 import { nanoid } from 'nanoid';
+import { UniqueConstraintError } from 'sequelize';
 import {
   deriveElements,
   fromKeplerian,
@@ -317,13 +318,33 @@ export class SatelliteService {
     return read.entries;
   }
 
+  /**
+   * Store the usable entries of a batch in one transaction. The epochs already stored are read
+   * inside it, after the satellite's row is locked (PostgreSQL: FOR UPDATE; SQLite: the
+   * transaction is IMMEDIATE and queued, see db/write-lock.ts), so two uploads of one epoch cannot
+   * both miss each other. The unique (satelliteId, epoch) index is the backstop: should it still
+   * refuse a row, the whole batch runs again and finds that epoch stored.
+   */
   private async storeEntries(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
+    for (let attempt = 1; ; attempt++) {
+      try {
+        return await this.storeEntriesOnce(satellite, batch, actor);
+      } catch (err) {
+        if (!(err instanceof UniqueConstraintError) || attempt >= 3) throw err;
+      }
+    }
+  }
+
+  private async storeEntriesOnce(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
     const report: ReportEntry[] = [];
     const created: ElementSetRecord[] = [];
-    const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'] });
-    const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
     let catalog = satellite.catalogNumber;
     await this.ctx.sequelize.transaction(async (transaction) => {
+      const locked = await Satellite.findByPk(satellite.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ['id', 'catalogNumber'] });
+      if (!locked) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
+      catalog = locked.catalogNumber;
+      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'], transaction });
+      const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
       for (const { entry, file, raw } of batch) {
         const base = reportOf(entry, file);
         if (!entry.result.ok) {

@@ -42,7 +42,7 @@ export async function createApiRouter(ctx: AppContext): Promise<Router> {
     next();
   });
   router.use(createSessionMiddleware(ctx));
-  router.use(csrfProtection);
+  router.use(csrfProtection(ctx.config));
   router.use(express.json({ limit: '2mb' }));
   router.use(refuseNulInJson);
   const routes = buildApiRoutes(ctx);
