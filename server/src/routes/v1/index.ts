@@ -288,9 +288,9 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   const trackEtag = (c: CachedSatellite, cur: CurrentSet, start: number, end: number, stepS: number, format: string) =>
     `W/"${crypto.hash('sha1', `${c.satellite.id}|${cur.record.id}|${start}|${end}|${stepS}|${format}|${c.satellite.name}`, 'base64url').slice(0, 22)}"`;
   /** The JSON text of one track answer, from the finished-answer cache or computed and kept there. Throws the engine's problem. */
-  const trackJson = (c: CachedSatellite, cur: CurrentSet, start: number, end: number, stepS: number, etag: string, extra: Record<string, string> = {}): string => {
-    const cachedAnswer = trackAnswers.get(etag);
-    let body = cachedAnswer?.body;
+  const trackJson = (c: CachedSatellite, cur: CurrentSet, start: number, end: number, stepS: number, etag: string, extra: Record<string, string> = {}): string | Buffer => {
+    // A cached answer is its UTF-8 bytes, sent as they are when nothing is added.
+    let body: string | Buffer | undefined = trackAnswers.get(etag)?.body;
     if (body === undefined) {
       const r = sampleTrack(cur.satrec, { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
       if (!r.ok) throw engineProblem(r.code, r.message, c.satellite.name);
@@ -307,7 +307,9 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       trackAnswers.set(etag, body, 'application/json; charset=utf-8');
     }
     const more = Object.entries(extra);
-    return more.length === 0 ? body : `${body.slice(0, -1)},${more.map(([k, v]) => `${JSON.stringify(k)}:${JSON.stringify(v)}`).join(',')}}`;
+    if (more.length === 0) return body;
+    const text = typeof body === 'string' ? body : body.toString('utf8');
+    return `${text.slice(0, -1)},${more.map(([k, v]) => `${JSON.stringify(k)}:${JSON.stringify(v)}`).join(',')}}`;
   };
 
   keyed('get', '/satellites/:id/track', async (req, res) => {
