@@ -11,9 +11,11 @@ import { openDatabase } from './db/index.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
+import { createPaymentsWebhookRouter } from './routes/payments-webhook.ts';
 import { createV1Router } from './routes/v1/index.ts';
 import { getEmbedService } from './services/embeds.ts';
 import { getKeyService } from './services/keys.ts';
+import { getPayments } from './services/payments.ts';
 import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
@@ -49,6 +51,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   getQuotaService(context);
   getEmbedService(context);
   getSatelliteService(context);
+  // The payment provider's client (and the local fake outside production).
+  await getPayments(context);
 
   const app = express();
   app.disable('x-powered-by');
@@ -68,6 +72,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
   });
+  // Raw body, before the console's JSON, session and CSRF stack.
+  app.use(createPaymentsWebhookRouter(context));
   app.use('/v1', await createV1Router(context));
   app.use('/api', await createApiRouter(context));
   if (!config.isProduction) app.use('/dev', await (await import('./routes/dev.ts')).createDevRouter(context));

@@ -96,6 +96,27 @@ async function freshEmbed(): Promise<string> {
   return (await ownerPost(`/api/orgs/${f.orgId}/embeds`, { name: 'Fresh embed', satelliteIds: [f.satelliteId], apiKeyId: f.browserKeyId, options: {} })).body.embed.id as string;
 }
 
+/** A fresh organization (four roles) with a paid Mission subscription at the fake provider. */
+async function paidOrg(opts: { cancelAtPeriodEnd?: boolean } = {}): Promise<string> {
+  const id = await freshOrg();
+  const fake = f.t.context.services.payments?.fake;
+  if (!fake) throw new Error('the fake payment provider did not start');
+  const made = fake.createPaidSubscription({ priceId: 'price_nl_mission', email: f.people.owner.email, name: 'Matrix', metadata: { organizationId: id } });
+  made.subscription['cancel_at_period_end'] = Boolean(opts.cancelAtPeriodEnd);
+  await f.t.context.sequelize.models['Organization']!.update({ plan: 'mission' }, { where: { id } });
+  await f.t.context.sequelize.models['Subscription']!.create({
+    id: `s_${id}`,
+    organizationId: id,
+    plan: 'mission',
+    status: 'active',
+    providerCustomerId: made.customer.id,
+    providerSubscriptionId: made.subscription.id,
+    currentPeriodEnd: new Date(Date.now() + 30 * 86_400_000),
+    cancelAtPeriodEnd: Boolean(opts.cancelAtPeriodEnd),
+  });
+  return id;
+}
+
 async function mailedToken(email: string): Promise<string> {
   return (await f.t.lastMailTo(email)).token;
 }
@@ -234,6 +255,9 @@ export const TABLE: Row[] = [
   { route: 'POST /orgs/:org/preview-token', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'post', url: org('/preview-token') }) },
   { route: 'GET /orgs/:org/billing', allowed: OWNER, ok: 200, call: async () => ({ method: 'get', url: org('/billing') }) },
   { route: 'POST /orgs/:org/billing/checkout', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await freshOrg()}/billing/checkout`, body: { plan: 'mission' } }) },
+  { route: 'POST /orgs/:org/billing/portal', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/portal` }) },
+  { route: 'POST /orgs/:org/billing/cancel', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/cancel` }) },
+  { route: 'POST /orgs/:org/billing/resume', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg({ cancelAtPeriodEnd: true })}/billing/resume` }) },
 ];
 
 async function send(c: Call, b: Browser): Promise<Response> {

@@ -3,14 +3,18 @@
  * is set. The schema comes from migrations (umzug), never from sync().
  */
 import fs from 'node:fs';
-import { Sequelize } from 'sequelize';
+import { Sequelize, Transaction } from 'sequelize';
 import { SequelizeStorage, Umzug } from 'umzug';
 import type { Config } from '../config.ts';
 import { initModels } from '../models/index.ts';
 import * as m0001 from './migrations/0001-initial.ts';
+import * as m0011 from './migrations/0011-payments.ts';
 
 /** Migrations in order. Add a new file and append it here; never edit a shipped one. */
-const MIGRATIONS = [{ name: '0001-initial', ...m0001 }];
+const MIGRATIONS = [
+  { name: '0001-initial', ...m0001 },
+  { name: '0011-payments', ...m0011 },
+];
 
 export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE_FILE' | 'dataDir'>): Promise<Sequelize> {
   let sequelize: Sequelize;
@@ -23,6 +27,14 @@ export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE
     await sequelize.query('PRAGMA journal_mode = WAL;');
     await sequelize.query('PRAGMA busy_timeout = 5000;');
     await sequelize.query('PRAGMA foreign_keys = ON;');
+    // Sequelize opens one more SQLite connection per transaction; each waits for a writer too.
+    const manager = sequelize.connectionManager as unknown as { getConnection(o?: unknown): Promise<{ configure(k: 'busyTimeout', ms: number): void }> };
+    const getConnection = manager.getConnection.bind(manager);
+    manager.getConnection = async (o) => {
+      const connection = await getConnection(o);
+      connection.configure('busyTimeout', 5000);
+      return connection;
+    };
   }
   initModels(sequelize);
   await migrate(sequelize);
@@ -41,4 +53,13 @@ export async function migrate(sequelize: Sequelize): Promise<void> {
     logger: undefined,
   });
   await umzug.up();
+}
+
+/**
+ * A transaction that writes: on SQLite it takes the write lock at BEGIN (IMMEDIATE), so two
+ * transactions that read then write wait for each other instead of failing with SQLITE_BUSY.
+ * PostgreSQL ignores the type.
+ */
+export function writeTransaction<T>(sequelize: Sequelize, fn: (t: Transaction) => Promise<T>): Promise<T> {
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, fn);
 }

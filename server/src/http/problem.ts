@@ -20,6 +20,7 @@ export const PROBLEM_TYPES = {
   'bad-request': { status: 400, title: 'Bad request' },
   'validation-failed': { status: 400, title: 'Request parameters are not valid' },
   'invalid-token': { status: 400, title: 'Link not valid or expired' },
+  'signature-invalid': { status: 400, title: 'Signature not valid' },
   'unauthenticated': { status: 401, title: 'Authentication required' },
   'invalid-credentials': { status: 401, title: 'E-mail address or password not right' },
   'invalid-key': { status: 401, title: 'API key not recognised' },

@@ -11,6 +11,9 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { initBillingModels } from './billing.ts';
+
+export { Invoice, PaymentEvent } from './billing.ts';
 
 export const ROLES = ['owner', 'admin', 'editor', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
@@ -158,6 +161,14 @@ export class Subscription extends Model<InferAttributes<Subscription>, InferCrea
   declare providerCustomerId: string | null;
   declare providerSubscriptionId: string | null;
   declare currentPeriodEnd: Date | null;
+  /** The provider ends the subscription at currentPeriodEnd (migration 0011). */
+  declare cancelAtPeriodEnd: CreationOptional<boolean>;
+  /** After a failed payment: the paid plan is kept until then. */
+  declare graceUntil: CreationOptional<Date | null>;
+  /** When the organization fell back to Starter because the grace ran out. */
+  declare lapsedAt: CreationOptional<Date | null>;
+  /** Creation time of the newest provider event applied (older events do not undo it). */
+  declare providerEventAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -314,6 +325,10 @@ export function initModels(sequelize: Sequelize): void {
       providerCustomerId: { type: DataTypes.STRING(100), allowNull: true },
       providerSubscriptionId: { type: DataTypes.STRING(100), allowNull: true },
       currentPeriodEnd: { type: DataTypes.DATE, allowNull: true },
+      cancelAtPeriodEnd: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      graceUntil: { type: DataTypes.DATE, allowNull: true },
+      lapsedAt: { type: DataTypes.DATE, allowNull: true },
+      providerEventAt: { type: DataTypes.DATE, allowNull: true },
       ...timestamps,
     },
     { sequelize, tableName: 'subscriptions' },
@@ -332,6 +347,8 @@ export function initModels(sequelize: Sequelize): void {
     },
     { sequelize, tableName: 'audit_events', updatedAt: false },
   );
+
+  initBillingModels(sequelize);
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Organization, { foreignKey: 'organizationId', as: 'organization' });

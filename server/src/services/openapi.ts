@@ -28,6 +28,7 @@ const MEANINGS: Record<ProblemCode, string> = {
   'bad-request': 'The request could not be read: the body is not valid JSON, the URL holds a broken percent-encoding, or a form upload is malformed. The detail names which; fix the request and send it again.',
   'validation-failed': 'A query parameter or body field is missing, malformed, given twice or outside its cap; `errors` names each one with what it expects. Correct them and send again.',
   'invalid-token': 'A link from an e-mail (address confirmation, password reset, invitation) is unknown, used already or expired. Ask for a new one: from the sign-in page, or from the admin who invited you.',
+  'signature-invalid': 'A payment provider webhook came without a signature, with one that does not match the body, or with one older than five minutes. It was not handled; the provider sends it again with a fresh signature.',
   'unauthenticated': 'No credential was sent. For /v1 use `Authorization: Bearer <key>`, or `?key=` with a browser key on GET; in the console, sign in again.',
   'invalid-credentials': 'The e-mail address and password do not match an account. Check both, or reset the password from the sign-in page.',
   'invalid-key': 'The key text is unknown (mistyped, cut short, or deleted), a server key was put in a URL, or an embed id names no embed. Copy the key again, or create a new one in the console; send server keys only in the Authorization header.',
