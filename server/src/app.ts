@@ -15,7 +15,9 @@ import { createPaymentsWebhookRouter } from './routes/payments-webhook.ts';
 import { createV1Router } from './routes/v1/index.ts';
 import { getEmbedService } from './services/embeds.ts';
 import { getKeyService } from './services/keys.ts';
+import { registerNoticeJobs } from './services/notices.ts';
 import { getPayments } from './services/payments.ts';
+import { startScheduler } from './services/scheduler.ts';
 import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
@@ -53,6 +55,10 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   getSatelliteService(context);
   // The payment provider's client (and the local fake outside production).
   await getPayments(context);
+  // Notices and scheduled work (grace ends, quota thresholds, the daily stale digest); run once
+  // across processes through job_leases. Tests drive runDueJobs with their own clock instead.
+  registerNoticeJobs(context);
+  if (!config.isTest) startScheduler(context);
 
   const app = express();
   app.disable('x-powered-by');

@@ -167,6 +167,8 @@ export const TABLE: Row[] = [
     },
   },
   { route: 'PATCH /me', allowed: 'signed-in', ok: 200, call: async (fx, role) => ({ method: 'patch', url: '/api/me', body: { name: fx.people[role].name } }) },
+  { route: 'GET /me/notices', allowed: 'signed-in', ok: 200, call: async () => ({ method: 'get', url: '/api/me/notices' }) },
+  { route: 'PATCH /me/notices', allowed: 'signed-in', ok: 200, call: async () => ({ method: 'patch', url: '/api/me/notices', body: { 'stale-digest': true } }) },
   {
     route: 'GET /invitations/:token',
     allowed: 'anyone',
@@ -253,6 +255,7 @@ export const TABLE: Row[] = [
   { route: 'GET /orgs/:org/usage.csv', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/usage.csv') }) },
   { route: 'GET /orgs/:org/activity', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/activity') }) },
   { route: 'POST /orgs/:org/preview-token', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'post', url: org('/preview-token') }) },
+  { route: 'GET /orgs/:org/notices', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/notices') }) },
   { route: 'GET /orgs/:org/billing', allowed: OWNER, ok: 200, call: async () => ({ method: 'get', url: org('/billing') }) },
   { route: 'POST /orgs/:org/billing/checkout', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await freshOrg()}/billing/checkout`, body: { plan: 'mission' } }) },
   { route: 'POST /orgs/:org/billing/portal', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/portal` }) },

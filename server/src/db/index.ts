@@ -9,11 +9,13 @@ import type { Config } from '../config.ts';
 import { initModels } from '../models/index.ts';
 import * as m0001 from './migrations/0001-initial.ts';
 import * as m0011 from './migrations/0011-payments.ts';
+import * as m0012 from './migrations/0012-notices.ts';
 
 /** Migrations in order. Add a new file and append it here; never edit a shipped one. */
 const MIGRATIONS = [
   { name: '0001-initial', ...m0001 },
   { name: '0011-payments', ...m0011 },
+  { name: '0012-notices', ...m0012 },
 ];
 
 export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE_FILE' | 'dataDir'>): Promise<Sequelize> {

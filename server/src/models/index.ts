@@ -12,8 +12,10 @@ import {
   type Sequelize,
 } from 'sequelize';
 import { initBillingModels } from './billing.ts';
+import { initNoticeModels } from './notices.ts';
 
 export { Invoice, PaymentEvent } from './billing.ts';
+export { JobLease, Notice, NoticePreference } from './notices.ts';
 
 export const ROLES = ['owner', 'admin', 'editor', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
@@ -349,6 +351,7 @@ export function initModels(sequelize: Sequelize): void {
   );
 
   initBillingModels(sequelize);
+  initNoticeModels(sequelize);
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Organization, { foreignKey: 'organizationId', as: 'organization' });

@@ -29,6 +29,7 @@ import { Op, UniqueConstraintError, type Transaction } from 'sequelize';
 import type Stripe from 'stripe';
 import type { AppContext } from '../context.ts';
 import { writeTransaction } from '../db/index.ts';
+import { now } from './clock.ts';
 import { HttpError } from '../http/problem.ts';
 import type { OrgAuth } from '../http/roles.ts';
 import { Invoice, Membership, Organization, PaymentEvent, Subscription, User, type Plan } from '../models/index.ts';
@@ -94,13 +95,7 @@ declare module '../context.ts' {
   interface AppServices {
     /** onPlanChanged listeners, in registration order. */
     planListeners?: PlanListener[];
-    /** The clock billing and scheduled work read (tests replace it); default Date.now. */
-    clock?: () => number;
   }
-}
-
-export function now(ctx: AppContext): Date {
-  return new Date((ctx.services.clock ?? Date.now)());
 }
 
 /** Now, cut to the whole second the provider stamps its events with (so an event of this same second still applies). */
