@@ -250,17 +250,18 @@ describe('usage, activity and plan', () => {
     expect((next.body.events as Array<{ id: number }>).every((e) => e.id < ids.at(-1)!)).toBe(true);
   });
 
-  it('lists the plans and changes the plan at once when no payment provider is configured', async () => {
+  it('lists the plans and answers the payment page for a paid plan, leaving the plan as it is until paid', async () => {
     const billing = await owner.browser.get(api('/billing')).expect(200);
     expect(billing.body.plan).toBe('starter');
     expect(billing.body.plans.map((p: { id: string }) => p.id)).toEqual(['starter', 'mission', 'constellation']);
+    expect(billing.body.paymentsAvailable).toBe(true);
     const checkout = await owner.browser.post(api('/billing/checkout'), { plan: 'mission' });
     expect(checkout.status).toBe(200);
-    expect(checkout.body.url).toBe(`/o/${orgId}/plan?checkout=done`);
+    expect(checkout.body.url).toMatch(/^http:\/\/127\.0\.0\.1:\d+\/pay\/cs_test_/);
     const session = await owner.browser.session();
-    expect(session.body.memberships[0].organization.plan).toBe('mission');
-    expect((await owner.browser.get(api('/usage'))).body.quota.plan).toBe('mission');
-    const again = await owner.browser.post(api('/billing/checkout'), { plan: 'mission' });
+    expect(session.body.memberships[0].organization.plan).toBe('starter');
+    expect((await owner.browser.get(api('/usage'))).body.quota.plan).toBe('starter');
+    const again = await owner.browser.post(api('/billing/checkout'), { plan: 'starter' });
     expect(again.status).toBe(409);
   });
 });

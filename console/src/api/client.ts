@@ -24,13 +24,17 @@ import type {
   KeyUpdateInput,
   Member,
   Membership,
+  NoticeKind,
+  NoticePreference,
   Organization,
+  OrgNotice,
   PreviewToken,
   ProblemBody,
   Role,
   Satellite,
   SatelliteListItem,
   SessionInfo,
+  Subscription,
   UploadReport,
   UsageReport,
   User,
@@ -385,6 +389,25 @@ export class ApiClient {
   }
   checkout(org: string, plan: string) {
     return this.post<{ url: string }>(`/orgs/${seg(org)}/billing/checkout`, { plan });
+  }
+  /** The payment provider's billing page (card, invoices, cancel). */
+  billingPortal(org: string) {
+    return this.post<{ url: string }>(`/orgs/${seg(org)}/billing/portal`);
+  }
+  cancelSubscription(org: string) {
+    return this.post<{ subscription: Subscription }>(`/orgs/${seg(org)}/billing/cancel`);
+  }
+  resumeSubscription(org: string) {
+    return this.post<{ subscription: Subscription }>(`/orgs/${seg(org)}/billing/resume`);
+  }
+  notices(org: string) {
+    return this.get<{ notices: OrgNotice[] }>(`/orgs/${seg(org)}/notices`);
+  }
+  noticePreferences() {
+    return this.get<{ preferences: NoticePreference[] }>('/me/notices');
+  }
+  setNoticePreferences(changes: Partial<Record<NoticeKind, boolean>>) {
+    return this.patch<{ preferences: NoticePreference[] }>('/me/notices', changes);
   }
 }
 

@@ -221,10 +221,61 @@ export interface PreviewToken {
   expiresIn: number;
 }
 
+export interface Subscription {
+  plan: PlanId;
+  /** The provider's word: active, past_due, canceled, ... ('none' when no paid subscription backs the plan). */
+  status: string;
+  currentPeriodEnd: string | null;
+  cancelAtPeriodEnd: boolean;
+  /** After a failed payment the paid plan is kept until then. */
+  graceUntil: string | null;
+  /** When the organization fell back to Starter because payment stayed overdue. */
+  lapsedAt: string | null;
+  provider: 'none' | 'external';
+}
+
+export interface Invoice {
+  id: string;
+  number: string | null;
+  status: string;
+  /** Minor units (cents). */
+  amountDue: number;
+  amountPaid: number;
+  currency: string;
+  periodStart: string | null;
+  periodEnd: string | null;
+  issuedAt: string;
+  hostedUrl: string | null;
+  pdfUrl: string | null;
+}
+
 export interface Billing {
   plan: PlanId;
   plans: Plan[];
-  subscription: { status: string; currentPeriodEnd?: string | null; plan?: PlanId } | null;
+  subscription: Subscription | null;
+  /** False when the server has no payment provider: paid plans cannot be bought. */
+  paymentsAvailable: boolean;
+  invoices: Invoice[];
+}
+
+export type NoticeKind = 'quota' | 'stale-digest' | 'payment-failed' | 'plan-changed';
+
+/** GET /api/orgs/:org/notices */
+export interface OrgNotice {
+  id: number;
+  kind: NoticeKind;
+  subject: string;
+  body: string;
+  createdAt: string;
+  detail: Record<string, unknown>;
+}
+
+/** GET /api/me/notices */
+export interface NoticePreference {
+  kind: NoticeKind;
+  label: string;
+  roles: Role[];
+  email: boolean;
 }
 
 /** One field-level problem (problem+json `errors[]`). */

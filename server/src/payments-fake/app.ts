@@ -74,8 +74,10 @@ export interface FakeProvider {
   idle(): Promise<void>;
   url(): string;
   close(): Promise<void>;
-  /** Makes a paid, active subscription without the checkout page (fixtures and role tests). */
-  createPaidSubscription(input: { priceId: string; email: string; name: string; metadata: Record<string, string> }): { customer: Obj; subscription: Obj; invoice: Obj };
+  /** Makes a paid, active subscription without the checkout page (fixtures, role tests, the demo seed); `events: false` sends no webhooks. */
+  createPaidSubscription(input: { priceId: string; email: string; name: string; metadata: Record<string, string>; events?: boolean }): { customer: Obj; subscription: Obj; invoice: Obj };
+  /** Puts back a customer and subscription Nadirline already knows (the fake forgets all on restart); no events. */
+  restoreSubscription(input: { customerId: string; subscriptionId: string; priceId: string; email: string; name: string; metadata: Record<string, string>; periodEnd: number; cancelAtPeriodEnd: boolean }): void;
   /** Ends the period of a subscription: a new invoice, paid or failed, and its events. */
   renew(subscriptionId: string, outcome: 'paid' | 'failed'): Obj;
 }
@@ -641,9 +643,29 @@ export function createFakeProvider(options: FakeProviderOptions): FakeProvider {
       const customer = newCustomer({ email: input.email, name: input.name, metadata: input.metadata });
       const subscription = newSubscription(customer.id, price, input.metadata);
       const invoice = newInvoice(subscription, 'paid', 'subscription_create');
-      emit('customer.subscription.created', subscription);
-      emit('invoice.paid', invoice);
+      if (input.events !== false) {
+        emit('customer.subscription.created', subscription);
+        emit('invoice.paid', invoice);
+      }
       return { customer, subscription, invoice };
+    },
+    restoreSubscription(input) {
+      const price = prices.get(input.priceId);
+      if (!price || store.subscriptions.has(input.subscriptionId)) return;
+      if (!store.customers.has(input.customerId)) {
+        const c = newCustomer({ email: input.email, name: input.name, metadata: input.metadata });
+        store.customers.delete(c.id);
+        c.id = input.customerId;
+        store.customers.set(c.id, c);
+      }
+      const sub = newSubscription(input.customerId, price, input.metadata);
+      store.subscriptions.delete(sub.id);
+      sub.id = input.subscriptionId;
+      sub['cancel_at_period_end'] = input.cancelAtPeriodEnd;
+      const item = items(sub)[0] as Obj;
+      item['current_period_end'] = input.periodEnd;
+      item['current_period_start'] = input.periodEnd - period;
+      store.subscriptions.set(sub.id, sub);
     },
     renew,
   };
