@@ -169,7 +169,8 @@ export function createFakeProvider(options: FakeProviderOptions): FakeProvider {
   async function deliver(event: Obj): Promise<boolean> {
     if (!webhookUrl) return false;
     const payload = JSON.stringify(event);
-    for (let attempt = 0; attempt < 4; attempt++) {
+    // Eight tries over about half a minute (100 ms doubling, capped at 8 s), then the event waits for a resend.
+    for (let attempt = 0; attempt < 8; attempt++) {
       const header = signer.webhooks.generateTestHeaderString({ payload, secret: options.webhookSecret, timestamp: Math.floor(Date.now() / 1000) });
       try {
         const res = await fetch(webhookUrl, { method: 'POST', headers: { 'content-type': 'application/json', 'stripe-signature': header }, body: payload });
@@ -179,7 +180,7 @@ export function createFakeProvider(options: FakeProviderOptions): FakeProvider {
       } catch (err) {
         log(`webhook ${event['type'] as string} failed: ${(err as Error).message}`);
       }
-      await new Promise((r) => setTimeout(r, 100 * 2 ** attempt));
+      await new Promise((r) => setTimeout(r, Math.min(8_000, 100 * 2 ** attempt)));
     }
     return false;
   }
