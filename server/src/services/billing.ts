@@ -36,6 +36,7 @@ import { Invoice, Membership, Organization, PaymentEvent, Subscription, User, ty
 import { recordAudit } from './audit.ts';
 import { getPayments, type Payments } from './payments.ts';
 import { PLAN_CATALOG, getQuotaService, planOf } from './quota.ts';
+import type { Billing } from '@nadirline/shared/contract';
 
 /** Plan prices (services/quota.ts PLAN_CATALOG priceMonthly) are in euros. */
 export const PLAN_CURRENCY = 'EUR';
@@ -45,41 +46,11 @@ const LIVE = new Set(['active', 'trialing', 'past_due']);
 /** Provider statuses that end the paid plan. */
 const ENDED = new Set(['canceled', 'unpaid', 'incomplete_expired']);
 
-export interface SubscriptionJson {
-  plan: Plan;
-  status: string;
-  currentPeriodEnd: string | null;
-  cancelAtPeriodEnd: boolean;
-  /** After a failed payment: the paid plan is kept until then. */
-  graceUntil: string | null;
-  /** When the organization fell back to Starter because payment stayed overdue. */
-  lapsedAt: string | null;
-  provider: 'none' | 'external';
-}
+export type SubscriptionJson = NonNullable<Billing['subscription']>;
+export type InvoiceJson = Billing['invoices'][number];
 
-export interface InvoiceJson {
-  id: string;
-  number: string | null;
-  status: string;
-  /** Minor units (cents). */
-  amountDue: number;
-  amountPaid: number;
-  currency: string;
-  periodStart: string | null;
-  periodEnd: string | null;
-  issuedAt: string;
-  hostedUrl: string | null;
-  pdfUrl: string | null;
-}
-
-export interface BillingOverview {
-  plan: Plan;
-  plans: Array<{ id: Plan; name: string; monthlyRequests: number; priceMonthly: number; currency: string }>;
-  subscription: SubscriptionJson | null;
-  /** False when no payment provider is configured: paid plans cannot be bought here. */
-  paymentsAvailable: boolean;
-  invoices: InvoiceJson[];
-}
+/** GET /api/orgs/:org/billing: the contract's Billing. */
+export type BillingOverview = Billing;
 
 export interface PlanChange {
   organizationId: string;
