@@ -8,6 +8,7 @@ import { pinoHttp } from 'pino-http';
 import type { Config } from './config.ts';
 import type { AppContext } from './context.ts';
 import { openDatabase } from './db/index.ts';
+import { bodyTimeout, refuseControlChars } from './http/input-guards.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
@@ -64,6 +65,10 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
       },
     }),
   );
+
+  // Before any route: a body that never arrives, and control characters in the URL.
+  app.use(bodyTimeout(config.BODY_TIMEOUT_MS));
+  app.use(refuseControlChars);
 
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });

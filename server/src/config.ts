@@ -47,6 +47,8 @@ const schema = z.object({
   PAYMENTS_API_BASE: z.string().optional(),
   PAYMENTS_SECRET_KEY: z.string().optional(),
   PAYMENTS_WEBHOOK_SECRET: z.string().optional(),
+  /** How long a request body may take to arrive after its headers, ms (0 = no limit): then 408 and the connection closes. */
+  BODY_TIMEOUT_MS: z.coerce.number().int().min(0).max(600_000).default(10_000),
 });
 
 export type Config = z.infer<typeof schema> & {

@@ -36,6 +36,7 @@ export const PROBLEM_TYPES = {
   'email-mismatch': { status: 403, title: 'Signed in with another e-mail address' },
   'not-found': { status: 404, title: 'Not found' },
   'method-not-allowed': { status: 405, title: 'Method not allowed' },
+  'request-timeout': { status: 408, title: 'Request body not received in time' },
   'conflict': { status: 409, title: 'Conflict' },
   'owner-protected': { status: 409, title: 'The owner cannot be removed or demoted' },
   'payload-too-large': { status: 413, title: 'Payload too large' },
