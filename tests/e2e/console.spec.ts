@@ -97,7 +97,7 @@ describe('the console against the real server', () => {
     // A common password is refused, and the form says why beside the field.
     await page.getByLabel('Password').fill('password1234');
     await page.getByRole('button', { name: 'Create account' }).click();
-    await page.getByText(/too easy to guess/).waitFor();
+    await page.locator('p.error', { hasText: 'too easy to guess' }).waitFor();
     await shot(page, 'sign-up-weak-password');
     await page.getByLabel('Password').fill(password);
     await page.getByRole('button', { name: 'Create account' }).click();
