@@ -22,6 +22,9 @@ function zxcvbn(): ZxcvbnFactory {
     dictionary: { ...common.dictionary, ...en.dictionary },
     graphs: common.adjacencyGraphs,
     translations: en.translations,
+    // Fewer l33t variants per password: about 7x quicker (tens of ms at most for 72 bytes, on the
+    // event loop), and the common l33t spellings are still found.
+    l33tMaxSubstitutions: 10,
   });
   return checker;
 }
