@@ -2,6 +2,7 @@
  * Builds the Express app. Tests import createApp and drive it over real HTTP (supertest);
  * index.ts opens the database through it, listens and shuts down cleanly.
  */
+import compression from 'compression';
 import express from 'express';
 import pino from 'pino';
 import { pinoHttp } from 'pino-http';
@@ -69,6 +70,11 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   // Before any route: a body that never arrives, and control characters in the URL.
   app.use(bodyTimeout(config.BODY_TIMEOUT_MS));
   app.use(refuseControlChars);
+
+  // Text answers (widget script, map data, JSON, pages) go out gzip- or brotli-compressed when the
+  // client accepts it; fonts and images are already compressed and are left alone (the filter
+  // looks at the content type). Answers under 1 KB are not worth it.
+  app.use(compression({ threshold: 1024 }));
 
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
