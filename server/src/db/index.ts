@@ -38,7 +38,9 @@ export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE
     fs.mkdirSync(config.dataDir, { recursive: true });
     sequelize = new Sequelize({ dialect: 'sqlite', storage: config.SQLITE_FILE, logging: false, transactionType: Transaction.TYPES.IMMEDIATE });
     busyTimeoutOnEveryConnection(sequelize);
-    queueTransactions(sequelize, new WriteLock());
+    const lock = new WriteLock();
+    writeLocks.set(sequelize, lock);
+    queueTransactions(sequelize, lock);
     // WAL lets readers run while a writer writes.
     await sequelize.query('PRAGMA journal_mode = WAL;');
     await sequelize.query('PRAGMA foreign_keys = ON;');
@@ -46,6 +48,13 @@ export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE
   initModels(sequelize);
   await migrate(sequelize);
   return sequelize;
+}
+
+const writeLocks = new WeakMap<Sequelize, WriteLock>();
+
+/** The queue of an SQLite database's transactions (undefined on PostgreSQL). */
+export function writeLockOf(sequelize: Sequelize): WriteLock | undefined {
+  return writeLocks.get(sequelize);
 }
 
 interface SqliteConnection {
