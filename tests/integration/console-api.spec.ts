@@ -52,16 +52,21 @@ describe('keys', () => {
     expect(writes.status).toBe(400);
   });
 
-  it('rotates with a grace period, then revokes, and records each step without the key text', async () => {
+  it('rotates (the old key retires when quiet), then revokes, and records each step without the key text', async () => {
     const created = await owner.browser.post(api('/keys'), { kind: 'browser', name: 'Public site', origins: ['https://alder.example', 'https://*.alder.example'] }).expect(201);
     const id = created.body.key.id as string;
-    const rotated = await owner.browser.post(api(`/keys/${id}/rotate`), { graceHours: 2 });
+    const retireBy = new Date(Date.now() + 5 * 86_400_000).toISOString();
+    const rotated = await owner.browser.post(api(`/keys/${id}/rotate`), { name: 'Public site 2027', quietMinutes: 120, retireBy });
     expect(rotated.status).toBe(201);
     expect(rotated.body.secret).toMatch(/^nlb_/);
-    expect(rotated.body.previous).toMatchObject({ id, state: 'grace', replacedById: rotated.body.key.id });
-    const hours = (Date.parse(rotated.body.previous.graceUntil) - Date.now()) / 3_600_000;
+    expect(rotated.body.key).toMatchObject({ name: 'Public site 2027', replacesId: id, state: 'active' });
+    expect(rotated.body.previous).toMatchObject({ id, name: 'Public site', state: 'retiring', replacedById: rotated.body.key.id, retireQuietMinutes: 120, retireBy });
+    const hours = (Date.parse(rotated.body.previous.retiresAt) - Date.now()) / 3_600_000;
     expect(hours).toBeGreaterThan(1.9);
     expect(hours).toBeLessThanOrEqual(2);
+    const sameName = await owner.browser.post(api(`/keys/${rotated.body.key.id}/rotate`), { name: 'Public site 2027' });
+    expect(sameName.status).toBe(400);
+    expect(sameName.body.errors[0].field).toBe('name');
     expect(rotated.body.key.origins).toEqual(['https://alder.example', 'https://*.alder.example']);
 
     const revoked = await owner.browser.post(api(`/keys/${rotated.body.key.id}/revoke`));

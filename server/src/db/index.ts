@@ -8,9 +8,15 @@ import { SequelizeStorage, Umzug } from 'umzug';
 import type { Config } from '../config.ts';
 import { initModels } from '../models/index.ts';
 import * as m0001 from './migrations/0001-initial.ts';
+import * as m0009 from './migrations/0009-key-retire-when-quiet.ts';
+import * as m0010 from './migrations/0010-usage-hourly-and-origins.ts';
 
 /** Migrations in order. Add a new file and append it here; never edit a shipped one. */
-const MIGRATIONS = [{ name: '0001-initial', ...m0001 }];
+const MIGRATIONS = [
+  { name: '0001-initial', ...m0001 },
+  { name: '0009-key-retire-when-quiet', ...m0009 },
+  { name: '0010-usage-hourly-and-origins', ...m0010 },
+];
 
 export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE_FILE' | 'dataDir'>): Promise<Sequelize> {
   let sequelize: Sequelize;

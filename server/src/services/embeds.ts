@@ -11,7 +11,8 @@
  *   deleteEmbed(orgId, id) -> Promise<void>
  *   serializeEmbed(embed) -> { id, name, satelliteIds, options, apiKeyId, updatedAt }
  *   publicEmbed(embed) -> { id, name, satellites, options }      (the GET /v1/embeds/{id} answer)
- *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; invalid-key / key problems;
+ *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; the key is the current successor
+ *                         of the embed's key when that was replaced; invalid-key / key problems;
  *                         an unknown id: invalid-key with reason EMBED_NOT_FOUND)
  *   resolveForReadCached(id) -> the same or undefined, without waiting (request fast path)
  *   embedOptionsSchema, embedInputSchema (zod)
@@ -175,7 +176,8 @@ export class EmbedService {
     const embed = await this.findEmbed(id);
     if (!embed) throw new HttpError('invalid-key', `No embed ${id} exists; it may have been deleted.`, { reason: EMBED_NOT_FOUND });
     if (!embed.apiKeyId) throw new HttpError('invalid-key', `Embed ${id} has no key attached; choose a browser key for it in the console.`);
-    const key = await this.keys.findById(embed.apiKeyId);
+    // A replaced key hands its embeds to its successor at once (the rotation also moves the row).
+    const key = await this.keys.currentSuccessor(embed.apiKeyId);
     if (!key) throw new HttpError('invalid-key', `The key of embed ${id} no longer exists; choose another browser key in the console.`);
     assertKeyWorks(key, now);
     return { embed, key };
@@ -185,7 +187,7 @@ export class EmbedService {
   resolveForReadCached(id: string, now: Date = new Date()): { embed: EmbedRecord; key: KeyRecord } | undefined {
     const hit = this.cache.get(id);
     if (!hit?.record?.apiKeyId || Date.now() - hit.at >= EMBED_CACHE_TTL_MS) return undefined;
-    const key = this.keys.cachedById(hit.record.apiKeyId);
+    const key = this.keys.cachedSuccessor(hit.record.apiKeyId);
     if (!key) return undefined;
     assertKeyWorks(key, now);
     return { embed: hit.record, key };
@@ -193,6 +195,11 @@ export class EmbedService {
 
   invalidate(id: string): void {
     this.cache.delete(id);
+  }
+
+  /** Drop every cached embed (after a rotation moved embeds to a new key). */
+  invalidateAll(): void {
+    this.cache.clear();
   }
 
   private async checkRefs(orgId: string, satelliteIds: string[] | undefined, apiKeyId: string | undefined): Promise<void> {
