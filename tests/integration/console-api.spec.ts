@@ -202,6 +202,39 @@ describe('embeds', () => {
     expect((await owner.browser.delete(api(`/embeds/${id}`))).status).toBe(404);
   });
 
+  it('records what an edit changed, before and after, and nothing for an edit that changed nothing', async () => {
+    const sat = await owner.browser.post(api('/satellites'), { name: 'Audit sat', description: 'first words' }).expect(201);
+    const key = await owner.browser.post(api('/keys'), { kind: 'browser', name: 'Audit key', origins: ['https://alder.example'] }).expect(201);
+    const created = await owner.browser.post(api('/embeds'), { name: 'Audited', satelliteIds: [sat.body.satellite.id], apiKeyId: key.body.key.id, options: { projection: 'globe', theme: 'dark', observer: '51.5,-0.1' } }).expect(201);
+    const id = created.body.embed.id as string;
+    await owner.browser.patch(api(`/embeds/${id}`), { name: 'Audited', options: { projection: 'globe', theme: 'light', observer: '51.5,-0.1' } }).expect(200);
+    await owner.browser.patch(api(`/embeds/${id}`), { name: 'Audited', options: { projection: 'globe', theme: 'light', observer: '51.5,-0.1' } }).expect(200);
+    await owner.browser.patch(api(`/satellites/${sat.body.satellite.id}`), { name: 'Audit sat', description: 'second words' }).expect(200);
+    await owner.browser.patch(api(`/satellites/${sat.body.satellite.id}`), { name: 'Audit sat', description: 'second words' }).expect(200);
+    const activity = await owner.browser.get(api('/activity?limit=200')).expect(200);
+    const events = activity.body.events as Array<{ action: string; targetId: string; detail: Record<string, unknown> }>;
+    const embedEdits = events.filter((e) => e.action === 'embed.update' && e.targetId === id);
+    expect(embedEdits).toHaveLength(1);
+    expect(embedEdits[0]!.detail).toEqual({ name: 'Audited', changes: { theme: { from: 'dark', to: 'light' } } });
+    const satEdits = events.filter((e) => e.action === 'satellite.update' && e.targetId === sat.body.satellite.id);
+    expect(satEdits).toHaveLength(1);
+    expect(satEdits[0]!.detail).toEqual({ name: 'Audit sat', changes: { description: { from: 'first words', to: 'second words' } } });
+  });
+
+  it('lists with each key the embeds that use it, and moves them to the new key on replacement', async () => {
+    const sat = await owner.browser.post(api('/satellites'), { name: 'Use sat' }).expect(201);
+    const key = await owner.browser.post(api('/keys'), { kind: 'browser', name: 'Used key', origins: ['https://alder.example'] }).expect(201);
+    const embed = await owner.browser.post(api('/embeds'), { name: 'Uses it', satelliteIds: [sat.body.satellite.id], apiKeyId: key.body.key.id, options: {} }).expect(201);
+    const listed = (await owner.browser.get(api('/keys')).expect(200)).body.keys.find((k: { id: string }) => k.id === key.body.key.id);
+    expect(listed.use.embeds).toEqual([{ id: embed.body.embed.id, name: 'Uses it' }]);
+    expect(listed.use.origins).toEqual([]);
+    const rotated = await owner.browser.post(api(`/keys/${key.body.key.id}/rotate`), { name: 'Used key, new' }).expect(201);
+    expect(rotated.body.embedsMoved).toBe(1);
+    expect(rotated.body.key.use.embeds).toEqual([{ id: embed.body.embed.id, name: 'Uses it' }]);
+    expect(rotated.body.previous.use.embeds).toEqual([]);
+    expect((await owner.browser.get(api('/embeds'))).body.embeds.find((e: { id: string }) => e.id === embed.body.embed.id).apiKeyId).toBe(rotated.body.key.id);
+  });
+
   it('refuses an embed over a satellite of another organization', async () => {
     const other = await signUpAndVerify(t, { organizationName: 'Elsewhere Lab' });
     const theirs = await other.browser.post(`/api/orgs/${other.orgId}/satellites`, { name: 'Not yours' }).expect(201);

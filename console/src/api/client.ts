@@ -34,6 +34,7 @@ import type {
   UploadReport,
   UsageReport,
   User,
+  KeyRotateInput,
 } from './types.ts';
 
 export class ApiError extends Error {
@@ -345,8 +346,8 @@ export class ApiClient {
   updateKey(org: string, id: string, input: KeyUpdateInput) {
     return this.patch<{ key: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}`, input);
   }
-  rotateKey(org: string, id: string, graceHours: number) {
-    return this.post<{ key: ApiKey; secret: string; previous: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}/rotate`, { graceHours });
+  rotateKey(org: string, id: string, input: KeyRotateInput) {
+    return this.post<{ key: ApiKey; secret: string; previous: ApiKey; embedsMoved: number }>(`/orgs/${seg(org)}/keys/${seg(id)}/rotate`, input);
   }
   revokeKey(org: string, id: string) {
     return this.post<{ key: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}/revoke`);

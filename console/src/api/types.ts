@@ -117,7 +117,31 @@ export type KeplerInput = KeplerianInput;
 export type ExportFormat = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json';
 
 export type KeyKind = 'browser' | 'server';
-export type KeyState = 'active' | 'grace' | 'expired' | 'revoked';
+/** retiring: replaced, still answering until quiet (or its retire-by date); retired: replaced and stopped. */
+export type KeyState = 'active' | 'retiring' | 'retired' | 'expired' | 'revoked';
+
+/** An origin that called a key lately ('' = requests that named none, e.g. a backend). */
+export interface KeyOrigin {
+  origin: string;
+  count: number;
+  lastDay: string;
+}
+
+/** What uses a key: the embeds reading with it and the origins that called it since `originsSince` (UTC day). */
+export interface KeyUse {
+  embeds: { id: string; name: string }[];
+  origins: KeyOrigin[];
+  originsSince: string;
+}
+
+export interface KeyRotateInput {
+  /** The new key's name; it must differ from the old one's. */
+  name: string;
+  /** The old key retires once unused this many minutes (0 = at once). */
+  quietMinutes: number;
+  /** ... and at the latest at this time (ISO 8601). */
+  retireBy: string;
+}
 export type KeyScope = 'read' | 'element-sets:write' | (string & {});
 
 export interface ApiKey {
@@ -131,10 +155,16 @@ export interface ApiKey {
   expiresAt: string | null;
   revokedAt: string | null;
   replacedById: string | null;
-  graceUntil: string | null;
+  replacesId: string | null;
+  replacedAt: string | null;
+  retireQuietMinutes: number | null;
+  retireBy: string | null;
+  /** When a replaced key retires if nothing calls it again (past: when it retired). */
+  retiresAt: string | null;
   lastUsedAt: string | null;
   createdAt: string;
   state: KeyState;
+  use: KeyUse;
 }
 
 export interface KeyCreateInput {
@@ -188,6 +218,12 @@ export interface EmbedInput {
 
 export interface UsageReport {
   days: { day: string; count: number }[];
+  /** UTC hours 'YYYY-MM-DDTHH' of the first 31 days of the range. */
+  hours: { hour: string; count: number }[];
+  /** Answers by HTTP status; all of them count against the quota. */
+  byStatus: { status: number; count: number }[];
+  /** Requests by calling origin ('' = none named). */
+  byOrigin: { origin: string; count: number }[];
   byKey: { apiKeyId: string | null; name: string; count: number }[];
   byRoute: { endpoint: string; count: number }[];
   rows: { day: string; apiKeyId: string | null; endpoint: string; count: number }[];

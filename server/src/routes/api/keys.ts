@@ -4,7 +4,7 @@ import { HttpError } from '../../http/problem.ts';
 import { orgAuth } from '../../http/roles.ts';
 import { parseBody } from '../../http/validate.ts';
 import { ApiKey, Embed } from '../../models/index.ts';
-import { recordAudit } from '../../services/audit.ts';
+import { changesOf, recordAudit } from '../../services/audit.ts';
 import { getEmbedService } from '../../services/embeds.ts';
 import { getKeyService, keyInputSchema, keyUpdateSchema, rotateInputSchema, type KeyJson } from '../../services/keys.ts';
 import { getUsageRecorder, utcDay, type KeyOrigin } from '../../services/usage.ts';
@@ -82,10 +82,7 @@ export function keyRoutes(ctx: AppContext): ApiRoutes {
     const before = await keyOfOrg(auth.organization.id, param(req, 'id'));
     const was = { name: before.name, origins: before.origins, scopes: before.scopes, rateLimitPerMin: before.rateLimitPerMin, expiresAt: before.expiresAt };
     const key = await keys.updateKey(before.id, body);
-    const changes: Record<string, { from: unknown; to: unknown }> = {};
-    for (const field of Object.keys(was) as Array<keyof typeof was>) {
-      if (JSON.stringify(was[field]) !== JSON.stringify(key[field])) changes[field] = { from: was[field], to: key[field] };
-    }
+    const changes = changesOf(was, { name: key.name, origins: key.origins, scopes: key.scopes, rateLimitPerMin: key.rateLimitPerMin, expiresAt: key.expiresAt });
     if (Object.keys(changes).length > 0) {
       await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'key.update', targetType: 'key', targetId: key.id, detail: { name: key.name, lastFour: key.lastFour, changes } });
     }
