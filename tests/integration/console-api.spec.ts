@@ -235,6 +235,32 @@ describe('embeds', () => {
     expect((await owner.browser.get(api('/embeds'))).body.embeds.find((e: { id: string }) => e.id === embed.body.embed.id).apiKeyId).toBe(rotated.body.key.id);
   });
 
+  it('refuses an embed with an observer that is not a place, or passes without an observer, and stores nothing', async () => {
+    const sat = await owner.browser.post(api('/satellites'), { name: 'Observer sat' }).expect(201);
+    const key = await owner.browser.post(api('/keys'), { kind: 'browser', name: 'Observer key', origins: ['https://alder.example'] }).expect(201);
+    const base = { name: 'Observed', satelliteIds: [sat.body.satellite.id], apiKeyId: key.body.key.id };
+    const before = (await owner.browser.get(api('/embeds'))).body.embeds.length as number;
+    for (const [options, says] of [
+      [{ observer: '123,0', layers: ['passes'] }, /latitude "123"/],
+      [{ observer: '51.5,abc', layers: ['passes'] }, /longitude "abc"/],
+      [{ observer: 'None' }, /not an observer/],
+      [{ observer: '', layers: ['footprint', 'passes'] }, /passes layer needs an observer/],
+      [{ layers: ['passes'] }, /passes layer needs an observer/],
+    ] as const) {
+      const res = await owner.browser.post(api('/embeds'), { ...base, options });
+      expect(res.status, JSON.stringify(options)).toBe(400);
+      expect(res.body.code).toBe('validation-failed');
+      expect(res.body.errors.map((e: { field: string }) => e.field)).toContain('options.observer');
+      expect((res.body.errors as Array<{ message: string }>).map((e) => e.message).join(' ')).toMatch(says);
+    }
+    expect((await owner.browser.get(api('/embeds'))).body.embeds.length).toBe(before);
+    const fine = await owner.browser.post(api('/embeds'), { ...base, options: { observer: '51.48,-0.01,45', layers: ['passes'] } });
+    expect(fine.status).toBe(201);
+    const edit = await owner.browser.patch(api(`/embeds/${fine.body.embed.id}`), { options: { observer: '-91,0', layers: ['passes'] } });
+    expect(edit.status).toBe(400);
+    expect((await owner.browser.get(api('/embeds'))).body.embeds.find((e: { id: string }) => e.id === fine.body.embed.id).options.observer).toBe('51.48,-0.01,45');
+  });
+
   it('refuses an embed over a satellite of another organization', async () => {
     const other = await signUpAndVerify(t, { organizationName: 'Elsewhere Lab' });
     const theirs = await other.browser.post(`/api/orgs/${other.orgId}/satellites`, { name: 'Not yours' }).expect(201);
