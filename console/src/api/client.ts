@@ -235,8 +235,11 @@ export class ApiClient {
     this.csrfToken = s.csrfToken ?? '';
     return { user: s.user ?? null, memberships: s.memberships ?? [], csrfToken: s.csrfToken ?? '' };
   }
-  signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }) {
-    return this.post<{ user: User }>('/auth/signup', input);
+  /** Signing up from an invitation signs in at once: the answer then carries the session (`signedIn`, memberships, CSRF token). */
+  async signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }) {
+    const s = await this.post<{ user: User; signedIn?: boolean; memberships?: Membership[]; csrfToken?: string }>('/auth/signup', input);
+    if (s.csrfToken) this.csrfToken = s.csrfToken;
+    return s;
   }
   verifyEmail(token: string) {
     return this.post<{ user: User }>('/auth/verify-email', { token });

@@ -89,8 +89,16 @@ export function accountRoutes(ctx: AppContext): ApiRoutes {
 
   r.post('/auth/signup', 'account.signup', async (req, res) => {
     const body = parseBody(SignupBody, req);
-    const { user } = await signUp(ctx, body);
-    res.status(201).json({ user: serializeUser(user) });
+    const { user, verified } = await signUp(ctx, body);
+    if (verified && body.invitationToken) {
+      // An invitation proved the address and made the membership: the new member is signed in at
+      // once, with no second sign-in (the session and CSRF token are those of /auth/signin).
+      await signIn(req, res, user);
+      const csrfToken = renewCsrfToken(req);
+      res.status(201).json({ user: serializeUser(user), signedIn: true, memberships: await membershipsOf(user.id), csrfToken });
+      return;
+    }
+    res.status(201).json({ user: serializeUser(user), signedIn: false });
   });
 
   r.post('/auth/verify-email', 'account.verify-email', async (req, res) => {
