@@ -30,6 +30,7 @@ import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, Embed, KEY_KINDS, KEY_SCOPES, Organization, type KeyKind, type KeyScope } from '../models/index.ts';
 import { planOf } from './quota.ts';
+import type { ApiKey as ApiKeyJson, KeyState as KeyStateOfContract } from '@nadirline/shared/contract';
 
 export const KEY_PREFIX: Record<KeyKind, string> = { browser: 'nlb_', server: 'nls_' };
 /** Length of the random part of a key text (nanoid alphabet, ~190 bits). */
@@ -43,11 +44,7 @@ export const MAX_QUIET_MINUTES = 30 * 24 * 60;
 export const DEFAULT_RETIRE_BY_DAYS = 14;
 export const MAX_RETIRE_BY_DAYS = 90;
 
-/**
- * active: in use; retiring: replaced, still answering until it is quiet (or its retire-by date);
- * retired: replaced and no longer answering; expired: past expiresAt; revoked: stopped by hand.
- */
-export type KeyState = 'active' | 'retiring' | 'retired' | 'expired' | 'revoked';
+export type KeyState = KeyStateOfContract;
 
 /** Plain, immutable copy of an ApiKey row, as cached for the request path. */
 export interface KeyRecord {
@@ -72,30 +69,8 @@ export interface KeyRecord {
   createdAt: Date;
 }
 
-export interface KeyJson {
-  id: string;
-  kind: KeyKind;
-  name: string;
-  lastFour: string;
-  origins: string[];
-  scopes: KeyScope[];
-  rateLimitPerMin: number;
-  expiresAt: string | null;
-  revokedAt: string | null;
-  replacedById: string | null;
-  /** The key this one replaced (set by the key list and the rotate answer). */
-  replacesId: string | null;
-  replacedAt: string | null;
-  /** A replaced key retires once unused this many minutes (null: only retireBy applies). */
-  retireQuietMinutes: number | null;
-  /** A replaced key retires at this time at the latest. */
-  retireBy: string | null;
-  /** When a replaced key retires if nothing calls it again (past: when it retired). */
-  retiresAt: string | null;
-  lastUsedAt: string | null;
-  createdAt: string;
-  state: KeyState;
-}
+/** The console's key object (GET /api/orgs/:org/keys) without `use`, which the key routes add: the contract's ApiKey. */
+export type KeyJson = Omit<ApiKeyJson, 'use'>;
 
 export function hashKeyText(text: string): string {
   return crypto.createHash('sha256').update(text, 'utf8').digest('hex');

@@ -20,35 +20,16 @@
 import { Op } from 'sequelize';
 import type { AppContext } from '../context.ts';
 import { ApiKey, UsageDaily, UsageHourly, UsageOriginDaily } from '../models/index.ts';
+import type { KeyOrigin, UsageReport as UsageAnswer } from '@nadirline/shared/contract';
 
 const SEP = '\u0000';
 
-export interface UsageRow {
-  day: string;
-  apiKeyId: string;
-  endpoint: string;
-  count: number;
-}
+export type UsageRow = UsageAnswer['rows'][number];
 
-export interface KeyOrigin {
-  /** '' when the requests named no origin (a backend, the command line). */
-  origin: string;
-  count: number;
-  lastDay: string;
-}
+export type { KeyOrigin };
 
-export interface UsageReport {
-  days: Array<{ day: string; count: number }>;
-  /** Requests per UTC hour (YYYY-MM-DDTHH) of the range, each hour present. */
-  hours: Array<{ hour: string; count: number }>;
-  /** Answers by HTTP status; every one of them counted against the quota. */
-  byStatus: Array<{ status: number; count: number }>;
-  /** Requests by calling origin ('' = none named). */
-  byOrigin: Array<{ origin: string; count: number }>;
-  byKey: Array<{ apiKeyId: string; name: string; count: number }>;
-  byRoute: Array<{ endpoint: string; count: number }>;
-  rows: UsageRow[];
-}
+/** The counts of GET /api/orgs/:org/usage (the route adds the window and the quota). */
+export type UsageReport = Omit<UsageAnswer, 'from' | 'to' | 'quota'>;
 
 let dayCache = { index: Number.NaN, text: '' };
 /** UTC day YYYY-MM-DD of a time (the last answer is kept: the request path asks many times a day). */
