@@ -221,7 +221,7 @@ export const TABLE: Row[] = [
   { route: 'GET /orgs/:org/keys', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/keys') }) },
   { route: 'POST /orgs/:org/keys', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org('/keys'), body: { kind: 'server', name: 'Pipeline', scopes: ['read', 'element-sets:write'] } }) },
   { route: 'PATCH /orgs/:org/keys/:id', allowed: MANAGERS, ok: 200, call: async (fx) => ({ method: 'patch', url: org(`/keys/${fx.serverKeyId}`), body: { name: 'Renamed pipeline' } }) },
-  { route: 'POST /orgs/:org/keys/:id/rotate', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/rotate`), body: { graceHours: 1 } }) },
+  { route: 'POST /orgs/:org/keys/:id/rotate', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/rotate`), body: { name: 'Rotated by role test', quietMinutes: 60 } }) },
   { route: 'POST /orgs/:org/keys/:id/revoke', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/revoke`) }) },
 
   // ---- satellites and element sets

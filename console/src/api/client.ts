@@ -38,6 +38,7 @@ import type {
   UploadReport,
   UsageReport,
   User,
+  KeyRotateInput,
 } from './types.ts';
 
 export class ApiError extends Error {
@@ -238,8 +239,11 @@ export class ApiClient {
     this.csrfToken = s.csrfToken ?? '';
     return { user: s.user ?? null, memberships: s.memberships ?? [], csrfToken: s.csrfToken ?? '' };
   }
-  signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }) {
-    return this.post<{ user: User }>('/auth/signup', input);
+  /** Signing up from an invitation signs in at once: the answer then carries the session (`signedIn`, memberships, CSRF token). */
+  async signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }) {
+    const s = await this.post<{ user: User; signedIn?: boolean; memberships?: Membership[]; csrfToken?: string }>('/auth/signup', input);
+    if (s.csrfToken) this.csrfToken = s.csrfToken;
+    return s;
   }
   verifyEmail(token: string) {
     return this.post<{ user: User }>('/auth/verify-email', { token });
@@ -349,8 +353,8 @@ export class ApiClient {
   updateKey(org: string, id: string, input: KeyUpdateInput) {
     return this.patch<{ key: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}`, input);
   }
-  rotateKey(org: string, id: string, graceHours: number) {
-    return this.post<{ key: ApiKey; secret: string; previous: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}/rotate`, { graceHours });
+  rotateKey(org: string, id: string, input: KeyRotateInput) {
+    return this.post<{ key: ApiKey; secret: string; previous: ApiKey; embedsMoved: number }>(`/orgs/${seg(org)}/keys/${seg(id)}/rotate`, input);
   }
   revokeKey(org: string, id: string) {
     return this.post<{ key: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}/revoke`);

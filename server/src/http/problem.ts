@@ -27,7 +27,7 @@ export const PROBLEM_TYPES = {
   'invalid-key': { status: 401, title: 'API key not recognised' },
   'key-expired': { status: 401, title: 'API key expired' },
   'key-revoked': { status: 401, title: 'API key revoked' },
-  'key-rotated': { status: 401, title: 'API key replaced and its grace period is over' },
+  'key-rotated': { status: 401, title: 'API key replaced and retired' },
   'forbidden': { status: 403, title: 'Not allowed' },
   'origin-not-allowed': { status: 403, title: 'Origin not allowed for this key' },
   'scope-missing': { status: 403, title: 'Key lacks the required scope' },

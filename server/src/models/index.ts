@@ -123,8 +123,12 @@ export class ApiKey extends Model<InferAttributes<ApiKey>, InferCreationAttribut
   declare revokedAt: Date | null;
   /** Set on the old key when it is rotated. */
   declare replacedById: string | null;
-  /** Rotated keys keep working until this time. */
+  /** A replaced key retires at this time at the latest (the owner's "retire by" date). */
   declare graceUntil: Date | null;
+  /** When the key was replaced (null: never). */
+  declare replacedAt: CreationOptional<Date | null>;
+  /** A replaced key retires once unused this many minutes (null: only the retire-by date applies). */
+  declare retireQuietMinutes: CreationOptional<number | null>;
   declare lastUsedAt: Date | null;
   declare createdByUserId: string | null;
   declare createdAt: CreationOptional<Date>;
@@ -138,6 +142,28 @@ export class UsageDaily extends Model<InferAttributes<UsageDaily>, InferCreation
   /** Route template, e.g. "GET /v1/satellites/{id}/track". */
   declare endpoint: string;
   /** UTC day, YYYY-MM-DD. */
+  declare day: string;
+  declare count: number;
+}
+
+export class UsageHourly extends Model<InferAttributes<UsageHourly>, InferCreationAttributes<UsageHourly>> {
+  declare id: CreationOptional<number>;
+  declare organizationId: string;
+  declare apiKeyId: string;
+  declare endpoint: string;
+  /** UTC hour, YYYY-MM-DDTHH. */
+  declare hour: string;
+  /** HTTP status of the answer. */
+  declare status: number;
+  declare count: number;
+}
+
+export class UsageOriginDaily extends Model<InferAttributes<UsageOriginDaily>, InferCreationAttributes<UsageOriginDaily>> {
+  declare id: CreationOptional<number>;
+  declare organizationId: string;
+  declare apiKeyId: string;
+  /** Calling origin, '' when the request named none (a backend). */
+  declare origin: string;
   declare day: string;
   declare count: number;
 }
@@ -289,6 +315,8 @@ export function initModels(sequelize: Sequelize): void {
       revokedAt: { type: DataTypes.DATE, allowNull: true },
       replacedById: { type: DataTypes.STRING(40), allowNull: true },
       graceUntil: { type: DataTypes.DATE, allowNull: true },
+      replacedAt: { type: DataTypes.DATE, allowNull: true },
+      retireQuietMinutes: { type: DataTypes.INTEGER, allowNull: true },
       lastUsedAt: { type: DataTypes.DATE, allowNull: true },
       createdByUserId: { type: DataTypes.STRING(40), allowNull: true },
       ...timestamps,
@@ -305,6 +333,29 @@ export function initModels(sequelize: Sequelize): void {
       count: { type: DataTypes.INTEGER, allowNull: false },
     },
     { sequelize, tableName: 'usage_daily', timestamps: false },
+  );
+  UsageHourly.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      organizationId: { type: DataTypes.STRING(40), allowNull: false },
+      apiKeyId: { type: DataTypes.STRING(40), allowNull: false },
+      endpoint: { type: DataTypes.STRING(120), allowNull: false },
+      hour: { type: DataTypes.STRING(13), allowNull: false },
+      status: { type: DataTypes.INTEGER, allowNull: false },
+      count: { type: DataTypes.INTEGER, allowNull: false },
+    },
+    { sequelize, tableName: 'usage_hourly', timestamps: false },
+  );
+  UsageOriginDaily.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      organizationId: { type: DataTypes.STRING(40), allowNull: false },
+      apiKeyId: { type: DataTypes.STRING(40), allowNull: false },
+      origin: { type: DataTypes.STRING(300), allowNull: false },
+      day: { type: DataTypes.STRING(10), allowNull: false },
+      count: { type: DataTypes.INTEGER, allowNull: false },
+    },
+    { sequelize, tableName: 'usage_origins_daily', timestamps: false },
   );
   Embed.init(
     {

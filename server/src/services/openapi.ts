@@ -35,7 +35,7 @@ const MEANINGS: Record<ProblemCode, string> = {
   'invalid-key': 'The key text is unknown (mistyped, cut short, or deleted), a server key was put in a URL, or an embed id names no embed. Copy the key again, or create a new one in the console; send server keys only in the Authorization header.',
   'key-expired': 'The key passed its expiry date. Create a new key or extend the expiry in the console.',
   'key-revoked': 'The key was revoked; it stopped working at once. Use another key.',
-  'key-rotated': 'The key was replaced by rotation and its grace period is over; the detail says when it stopped. Use the new key.',
+  'key-rotated': 'The key was replaced by a new one and has retired (it was quiet for the spell its owner chose, or its retire-by date came); the detail says when. Use the key that replaced it.',
   'forbidden': 'Your role in this organization does not allow this action (the console lists what each role may do). Ask an admin or the owner to do it, or to give you another role.',
   'origin-not-allowed': 'A browser key (or an embed) was used from a page whose origin the key does not list, or without any origin; or a server key was used from a web page. A member adds the page\u2019s origin to the key in the console; server keys belong on a backend.',
   'scope-missing': 'The server key lacks the element-sets:write scope needed for this write. An admin can add the scope in the console, or use a key that has it.',

@@ -121,8 +121,16 @@ export function accountRoutes(ctx: AppContext): ApiRoutes {
   r.post('/auth/signup', 'account.signup', signupThrottle, async (req, res) => {
     const body = parseBody(SignupBody, req);
     // The same answer for a taken address (services/accounts.ts signUp).
-    const { user } = await signUp(ctx, body);
-    res.status(201).json({ user });
+    const { user, created, verified } = await signUp(ctx, body);
+    if (created && verified && body.invitationToken) {
+      // An invitation proved the address and made the membership: the new member is signed in at
+      // once, with no second sign-in (the session and CSRF token are those of /auth/signin).
+      await signIn(req, res, created);
+      const csrfToken = renewCsrfToken(req);
+      res.status(201).json({ user, signedIn: true, memberships: await membershipsOf(created.id), csrfToken });
+      return;
+    }
+    res.status(201).json({ user, signedIn: false });
   });
 
   r.post('/auth/verify-email', 'account.verify-email', async (req, res) => {
