@@ -15,9 +15,13 @@ import { getOverLimitGate, overLimitFront } from './http/over-limit.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
+import { createPaymentsWebhookRouter } from './routes/payments-webhook.ts';
 import { createV1Router } from './routes/v1/index.ts';
 import { getEmbedService } from './services/embeds.ts';
 import { getKeyService } from './services/keys.ts';
+import { registerNoticeJobs } from './services/notices.ts';
+import { getPayments } from './services/payments.ts';
+import { startScheduler } from './services/scheduler.ts';
 import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
@@ -58,6 +62,12 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   getQuotaService(context);
   getEmbedService(context);
   getSatelliteService(context);
+  // The payment provider's client (and the local fake outside production).
+  await getPayments(context);
+  // Notices and scheduled work (grace ends, quota thresholds, the daily stale digest); run once
+  // across processes through job_leases. Tests drive runDueJobs with their own clock instead.
+  registerNoticeJobs(context);
+  if (!config.isTest) startScheduler(context);
 
   const app = express();
   app.disable('x-powered-by');
@@ -91,6 +101,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
   });
+  // Raw body, before the console's JSON, session and CSRF stack.
+  app.use(createPaymentsWebhookRouter(context));
   app.use('/v1', await createV1Router(context));
   app.use('/api', await createApiRouter(context));
   if (!config.isProduction) app.use('/dev', await (await import('./routes/dev.ts')).createDevRouter(context));

@@ -21,6 +21,9 @@ const address = server.address();
 const port = typeof address === 'object' && address ? address.port : config.PORT;
 noteListening(config, port);
 logger.info({ port, host: config.HOST }, `Nadirline listening on ${config.HOST} port ${port}`);
+// The built-in fake payment provider sends its webhook events to this process.
+const loopback = ['0.0.0.0', '::', '127.0.0.1', 'localhost'].includes(config.HOST) ? '127.0.0.1' : config.HOST;
+context.services.payments?.fake?.setWebhookUrl(`http://${loopback.includes(':') ? `[${loopback}]` : loopback}:${port}/webhooks/payments`);
 
 if (config.demo) {
   const demo = await seedDemo(context, { port });

@@ -96,6 +96,27 @@ async function freshEmbed(): Promise<string> {
   return (await ownerPost(`/api/orgs/${f.orgId}/embeds`, { name: 'Fresh embed', satelliteIds: [f.satelliteId], apiKeyId: f.browserKeyId, options: {} })).body.embed.id as string;
 }
 
+/** A fresh organization (four roles) with a paid Mission subscription at the fake provider. */
+async function paidOrg(opts: { cancelAtPeriodEnd?: boolean } = {}): Promise<string> {
+  const id = await freshOrg();
+  const fake = f.t.context.services.payments?.fake;
+  if (!fake) throw new Error('the fake payment provider did not start');
+  const made = fake.createPaidSubscription({ priceId: 'price_nl_mission', email: f.people.owner.email, name: 'Matrix', metadata: { organizationId: id } });
+  made.subscription['cancel_at_period_end'] = Boolean(opts.cancelAtPeriodEnd);
+  await f.t.context.sequelize.models['Organization']!.update({ plan: 'mission' }, { where: { id } });
+  await f.t.context.sequelize.models['Subscription']!.create({
+    id: `s_${id}`,
+    organizationId: id,
+    plan: 'mission',
+    status: 'active',
+    providerCustomerId: made.customer.id,
+    providerSubscriptionId: made.subscription.id,
+    currentPeriodEnd: new Date(Date.now() + 30 * 86_400_000),
+    cancelAtPeriodEnd: Boolean(opts.cancelAtPeriodEnd),
+  });
+  return id;
+}
+
 async function mailedToken(email: string): Promise<string> {
   return (await f.t.lastMailTo(email)).token;
 }
@@ -146,6 +167,8 @@ export const TABLE: Row[] = [
     },
   },
   { route: 'PATCH /me', allowed: 'signed-in', ok: 200, call: async (fx, role) => ({ method: 'patch', url: '/api/me', body: { name: fx.people[role].name } }) },
+  { route: 'GET /me/notices', allowed: 'signed-in', ok: 200, call: async () => ({ method: 'get', url: '/api/me/notices' }) },
+  { route: 'PATCH /me/notices', allowed: 'signed-in', ok: 200, call: async () => ({ method: 'patch', url: '/api/me/notices', body: { 'stale-digest': true } }) },
   {
     route: 'GET /invitations/:token',
     allowed: 'anyone',
@@ -198,7 +221,7 @@ export const TABLE: Row[] = [
   { route: 'GET /orgs/:org/keys', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/keys') }) },
   { route: 'POST /orgs/:org/keys', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org('/keys'), body: { kind: 'server', name: 'Pipeline', scopes: ['read', 'element-sets:write'] } }) },
   { route: 'PATCH /orgs/:org/keys/:id', allowed: MANAGERS, ok: 200, call: async (fx) => ({ method: 'patch', url: org(`/keys/${fx.serverKeyId}`), body: { name: 'Renamed pipeline' } }) },
-  { route: 'POST /orgs/:org/keys/:id/rotate', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/rotate`), body: { graceHours: 1 } }) },
+  { route: 'POST /orgs/:org/keys/:id/rotate', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/rotate`), body: { name: 'Rotated by role test', quietMinutes: 60 } }) },
   { route: 'POST /orgs/:org/keys/:id/revoke', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/revoke`) }) },
 
   // ---- satellites and element sets
@@ -232,8 +255,12 @@ export const TABLE: Row[] = [
   { route: 'GET /orgs/:org/usage.csv', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/usage.csv') }) },
   { route: 'GET /orgs/:org/activity', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/activity') }) },
   { route: 'POST /orgs/:org/preview-token', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'post', url: org('/preview-token') }) },
+  { route: 'GET /orgs/:org/notices', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/notices') }) },
   { route: 'GET /orgs/:org/billing', allowed: OWNER, ok: 200, call: async () => ({ method: 'get', url: org('/billing') }) },
   { route: 'POST /orgs/:org/billing/checkout', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await freshOrg()}/billing/checkout`, body: { plan: 'mission' } }) },
+  { route: 'POST /orgs/:org/billing/portal', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/portal` }) },
+  { route: 'POST /orgs/:org/billing/cancel', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/cancel` }) },
+  { route: 'POST /orgs/:org/billing/resume', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg({ cancelAtPeriodEnd: true })}/billing/resume` }) },
 ];
 
 async function send(c: Call, b: Browser): Promise<Response> {

@@ -11,6 +11,11 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { initBillingModels } from './billing.ts';
+import { initNoticeModels } from './notices.ts';
+
+export { Invoice, PaymentEvent } from './billing.ts';
+export { JobLease, Notice, NoticePreference } from './notices.ts';
 
 export const ROLES = ['owner', 'admin', 'editor', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
@@ -118,8 +123,12 @@ export class ApiKey extends Model<InferAttributes<ApiKey>, InferCreationAttribut
   declare revokedAt: Date | null;
   /** Set on the old key when it is rotated. */
   declare replacedById: string | null;
-  /** Rotated keys keep working until this time. */
+  /** A replaced key retires at this time at the latest (the owner's "retire by" date). */
   declare graceUntil: Date | null;
+  /** When the key was replaced (null: never). */
+  declare replacedAt: CreationOptional<Date | null>;
+  /** A replaced key retires once unused this many minutes (null: only the retire-by date applies). */
+  declare retireQuietMinutes: CreationOptional<number | null>;
   declare lastUsedAt: Date | null;
   declare createdByUserId: string | null;
   declare createdAt: CreationOptional<Date>;
@@ -133,6 +142,28 @@ export class UsageDaily extends Model<InferAttributes<UsageDaily>, InferCreation
   /** Route template, e.g. "GET /v1/satellites/{id}/track". */
   declare endpoint: string;
   /** UTC day, YYYY-MM-DD. */
+  declare day: string;
+  declare count: number;
+}
+
+export class UsageHourly extends Model<InferAttributes<UsageHourly>, InferCreationAttributes<UsageHourly>> {
+  declare id: CreationOptional<number>;
+  declare organizationId: string;
+  declare apiKeyId: string;
+  declare endpoint: string;
+  /** UTC hour, YYYY-MM-DDTHH. */
+  declare hour: string;
+  /** HTTP status of the answer. */
+  declare status: number;
+  declare count: number;
+}
+
+export class UsageOriginDaily extends Model<InferAttributes<UsageOriginDaily>, InferCreationAttributes<UsageOriginDaily>> {
+  declare id: CreationOptional<number>;
+  declare organizationId: string;
+  declare apiKeyId: string;
+  /** Calling origin, '' when the request named none (a backend). */
+  declare origin: string;
   declare day: string;
   declare count: number;
 }
@@ -158,6 +189,14 @@ export class Subscription extends Model<InferAttributes<Subscription>, InferCrea
   declare providerCustomerId: string | null;
   declare providerSubscriptionId: string | null;
   declare currentPeriodEnd: Date | null;
+  /** The provider ends the subscription at currentPeriodEnd (migration 0011). */
+  declare cancelAtPeriodEnd: CreationOptional<boolean>;
+  /** After a failed payment: the paid plan is kept until then. */
+  declare graceUntil: CreationOptional<Date | null>;
+  /** When the organization fell back to Starter because the grace ran out. */
+  declare lapsedAt: CreationOptional<Date | null>;
+  /** Creation time of the newest provider event applied (older events do not undo it). */
+  declare providerEventAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -276,6 +315,8 @@ export function initModels(sequelize: Sequelize): void {
       revokedAt: { type: DataTypes.DATE, allowNull: true },
       replacedById: { type: DataTypes.STRING(40), allowNull: true },
       graceUntil: { type: DataTypes.DATE, allowNull: true },
+      replacedAt: { type: DataTypes.DATE, allowNull: true },
+      retireQuietMinutes: { type: DataTypes.INTEGER, allowNull: true },
       lastUsedAt: { type: DataTypes.DATE, allowNull: true },
       createdByUserId: { type: DataTypes.STRING(40), allowNull: true },
       ...timestamps,
@@ -292,6 +333,29 @@ export function initModels(sequelize: Sequelize): void {
       count: { type: DataTypes.INTEGER, allowNull: false },
     },
     { sequelize, tableName: 'usage_daily', timestamps: false },
+  );
+  UsageHourly.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      organizationId: { type: DataTypes.STRING(40), allowNull: false },
+      apiKeyId: { type: DataTypes.STRING(40), allowNull: false },
+      endpoint: { type: DataTypes.STRING(120), allowNull: false },
+      hour: { type: DataTypes.STRING(13), allowNull: false },
+      status: { type: DataTypes.INTEGER, allowNull: false },
+      count: { type: DataTypes.INTEGER, allowNull: false },
+    },
+    { sequelize, tableName: 'usage_hourly', timestamps: false },
+  );
+  UsageOriginDaily.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      organizationId: { type: DataTypes.STRING(40), allowNull: false },
+      apiKeyId: { type: DataTypes.STRING(40), allowNull: false },
+      origin: { type: DataTypes.STRING(300), allowNull: false },
+      day: { type: DataTypes.STRING(10), allowNull: false },
+      count: { type: DataTypes.INTEGER, allowNull: false },
+    },
+    { sequelize, tableName: 'usage_origins_daily', timestamps: false },
   );
   Embed.init(
     {
@@ -314,6 +378,10 @@ export function initModels(sequelize: Sequelize): void {
       providerCustomerId: { type: DataTypes.STRING(100), allowNull: true },
       providerSubscriptionId: { type: DataTypes.STRING(100), allowNull: true },
       currentPeriodEnd: { type: DataTypes.DATE, allowNull: true },
+      cancelAtPeriodEnd: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      graceUntil: { type: DataTypes.DATE, allowNull: true },
+      lapsedAt: { type: DataTypes.DATE, allowNull: true },
+      providerEventAt: { type: DataTypes.DATE, allowNull: true },
       ...timestamps,
     },
     { sequelize, tableName: 'subscriptions' },
@@ -332,6 +400,9 @@ export function initModels(sequelize: Sequelize): void {
     },
     { sequelize, tableName: 'audit_events', updatedAt: false },
   );
+
+  initBillingModels(sequelize);
+  initNoticeModels(sequelize);
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Organization, { foreignKey: 'organizationId', as: 'organization' });

@@ -68,3 +68,23 @@ describe('the demo satellites', () => {
     expect(Math.abs(separation - 90)).toBeLessThan(1);
   });
 });
+
+describe('the demo seed\u2019s payments', () => {
+  it('has Ostwick paying for Mission with one paid invoice at the fake provider, and a second organization on Starter', async () => {
+    const { Invoice, Organization, Subscription } = await import('../models/index.ts');
+    const { DEMO_STARTER_ORG_ID } = await import('./demo-billing.ts');
+    await seedDemo(t.context, { port: 8080 });
+    const sub = await Subscription.findOne({ where: { organizationId: DEMO_ORG_ID } });
+    expect(sub).toMatchObject({ plan: 'mission', status: 'active' });
+    expect((await Organization.findByPk(DEMO_ORG_ID))?.plan).toBe('mission');
+    const invoices = await Invoice.findAll({ where: { organizationId: DEMO_ORG_ID } });
+    expect(invoices.map((i) => [i.status, i.amountPaid, i.currency])).toEqual([['paid', 3900, 'eur']]);
+    expect((await Organization.findByPk(DEMO_STARTER_ORG_ID))?.plan).toBe('starter');
+    // The fake forgets on restart; a later seed puts the subscription back under the stored ids.
+    const fake = t.context.services.payments!.fake!;
+    fake.store.subscriptions.clear();
+    await seedDemo(t.context, { port: 8080 });
+    expect(fake.store.subscriptions.get(sub!.providerSubscriptionId!)?.['status']).toBe('active');
+    expect(await Subscription.count({ where: { organizationId: DEMO_ORG_ID } })).toBe(1);
+  });
+});

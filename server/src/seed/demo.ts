@@ -24,6 +24,7 @@ import type { AppContext } from '../context.ts';
 import { ApiKey, Embed, Membership, Organization, Satellite, User, type Role } from '../models/index.ts';
 import { hashPassword } from '../services/accounts.ts';
 import { recordAudit, type AuditInput } from '../services/audit.ts';
+import { seedDemoBilling } from './demo-billing.ts';
 import { getEmbedService } from '../services/embeds.ts';
 import { getKeyService, normalizeOrigin } from '../services/keys.ts';
 import { getSatelliteService } from '../services/satellites.ts';
@@ -290,6 +291,9 @@ export async function seedDemo(
 
   // -- activity log (first run only) ------------------------------------------------------------
   for (const e of events) await recordAudit(ctx, e);
+
+  // -- payments: Ostwick pays for Mission (one invoice); a second organization on Starter ------
+  await seedDemoBilling(ctx, owner);
 
   const credentials: DemoCredentials = {
     signInUrl,

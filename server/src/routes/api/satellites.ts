@@ -12,7 +12,7 @@ import { HttpError, withUploadLimits } from '../../http/problem.ts';
 import { orgAuth } from '../../http/roles.ts';
 import { parseBody, parseQuery } from '../../http/validate.ts';
 import { ElementSetRecord, type Satellite } from '../../models/index.ts';
-import { recordAudit } from '../../services/audit.ts';
+import { changesOf, recordAudit } from '../../services/audit.ts';
 import { parsedOf } from '../../services/orbit-cache.ts';
 import { EXPORT_FORMATS, getSatelliteService, unprocessable, type ElementFormat, type UploadResult } from '../../services/satellites.ts';
 import { param } from './params.ts';
@@ -105,14 +105,17 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     const before = await sats.getSatellite(auth.organization.id, param(req, 'id'));
     const was = { name: before.name, description: before.description };
     const satellite = await sats.updateSatellite(auth.organization.id, before.id, body);
-    await recordAudit(ctx, {
-      organizationId: auth.organization.id,
-      actorUserId: auth.user.id,
-      action: 'satellite.update',
-      targetType: 'satellite',
-      targetId: satellite.id,
-      detail: { name: satellite.name, ...(was.name !== satellite.name ? { renamedFrom: was.name } : {}), descriptionChanged: was.description !== satellite.description },
-    });
+    const changes = changesOf(was, { name: satellite.name, description: satellite.description });
+    if (Object.keys(changes).length > 0) {
+      await recordAudit(ctx, {
+        organizationId: auth.organization.id,
+        actorUserId: auth.user.id,
+        action: 'satellite.update',
+        targetType: 'satellite',
+        targetId: satellite.id,
+        detail: { name: satellite.name, changes },
+      });
+    }
     const [view] = await views([satellite]);
     res.json({ satellite: view });
   });

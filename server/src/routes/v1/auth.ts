@@ -166,6 +166,8 @@ export function previewKey(orgId: string): KeyRecord {
       revokedAt: null,
       replacedById: null,
       graceUntil: null,
+      replacedAt: null,
+      retireQuietMinutes: null,
       lastUsedAt: null,
       createdByUserId: null,
       createdAt: new Date(0),
@@ -348,12 +350,22 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
   const quota = getQuotaService(ctx);
   const usage = getUsageRecorder(ctx);
   const keys = getKeyService(ctx);
-  const count = (key: KeyRecord, now: number) => {
+  const count = (res: Response, key: KeyRecord, origin: string | null, now: number) => {
     usage.record(key.organizationId, key.id, template, now);
     keys.touch(key.id, now);
+    // The answer's status (errors count against the quota too, so the console shows them) and
+    // the calling origin, once the answer is sent or the connection closes.
+    let done = false;
+    const outcome = () => {
+      if (done) return;
+      done = true;
+      usage.recordOutcome(key.organizationId, key.id, template, now, res.statusCode, origin);
+    };
+    res.once('finish', outcome);
+    res.once('close', outcome);
   };
   return (_req, res, next) => {
-    const { key, via } = authOf(res);
+    const { key, via, origin } = authOf(res);
     if (via === 'preview') {
       next();
       return;
@@ -361,13 +373,13 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
     const now = Date.now();
     const under = quota.underQuota(key.organizationId, now);
     if (under === true) {
-      count(key, now);
+      count(res, key, origin, now);
       next();
       return;
     }
     // Not cached yet, or spent: the full check reads what it needs and throws quota-exceeded.
     return quota.check(key.organizationId, new Date(now)).then(() => {
-      count(key, now);
+      count(res, key, origin, now);
       next();
     });
   };
