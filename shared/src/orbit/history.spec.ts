@@ -8,9 +8,10 @@ import { parseTle } from '../elements/tle.ts';
 import { toSatrec } from '../elements/satrec.ts';
 import { AIAA_2006_6753_CASES } from '../elements/verification-cases.ts';
 import { MS_PER_DAY } from './constants.ts';
-import { ageDaysAt, byEpoch, indexInForce, piecewiseWindows, sampleTrackAcrossSets, setInForce } from './history.ts';
+import { ageDaysAt, byEpoch, findPassesAcrossSets, indexInForce, piecewiseWindows, sampleTrackAcrossSets, setInForce } from './history.ts';
 import { propagateEci } from './propagate.ts';
 import { sampleTrack } from './track.ts';
+import { findPasses } from './passes.ts';
 import { TEST_EPOCH_MS, TEST_ORBITS } from './testing/orbits.ts';
 import { synthTle } from './testing/synth-tle.ts';
 
@@ -112,5 +113,37 @@ describe('sampleTrackAcrossSets', () => {
         expect(p.velocity.x).toBeCloseTo(st.v[0], 8);
       }
     }
+  });
+});
+
+describe('findPassesAcrossSets', () => {
+  const observer = { latDeg: 47.1, lonDeg: 8.5, altM: 400 };
+  const r = parseTle(synthTle(TEST_ORBITS.lowInclined).join('\n'));
+  if (!r.ok) throw new Error(r.message);
+  const satrec = toSatrec(r.elementSet);
+  const opts = { startMs: TEST_EPOCH_MS, days: 2, minElevationDeg: 10 };
+  const single = findPasses(satrec, observer, opts);
+  if (!single.ok) throw new Error(single.message);
+
+  it('gives the single-set passes when the window is cut, a pass cut at a set change joined again', () => {
+    // The same orbit under two labels, the second "epoch" in the middle of the second pass:
+    // the cut must not change the passes (a pass under way at the cut is joined).
+    const second = single.passes[1];
+    if (!second) throw new Error('needs two passes');
+    const cut = (second.rise.t + second.set.t) / 2;
+    const sets = [{ epochMs: TEST_EPOCH_MS, satrec, id: 'a' }, { epochMs: cut, satrec, id: 'b' }];
+    const across = findPassesAcrossSets(sets, observer, opts);
+    if (!across.ok) throw new Error(across.message);
+    expect(across.sets.map((s) => s.id)).toEqual(['a', 'b']);
+    expect(across.passes).toHaveLength(single.passes.length);
+    across.passes.forEach((p, i) => {
+      const q = single.passes[i];
+      expect(Math.abs(p.rise.t - (q?.rise.t ?? 0))).toBeLessThan(100);
+      expect(Math.abs(p.set.t - (q?.set.t ?? 0))).toBeLessThan(100);
+      expect(p.culmination.elevationDeg).toBeCloseTo(q?.culmination.elevationDeg ?? 0, 1);
+      expect(p.inProgressAtStart).toBe(false);
+    });
+    expect(across.passes[1]?.inForce.id).toBe('a');
+    expect(across.passes[2]?.inForce.id).toBe('b');
   });
 });

@@ -9,6 +9,9 @@
 import type { SatRec } from 'satellite.js';
 import type { Result, TrackSample } from '../types.ts';
 import { MS_PER_DAY } from './constants.ts';
+import type { Observer } from './observer.ts';
+import { findPasses } from './passes.ts';
+import type { Pass, PassErrorCode, PassOptions } from './passes.ts';
 import { DEFAULT_MAX_TRACK_SAMPLES, sampleTrack } from './track.ts';
 import type { TrackErrorCode, TrackWindow } from './track.ts';
 
@@ -133,4 +136,44 @@ export function sampleTrackAcrossSets<T extends PropagatableSet>(
     parts.push({ set: w.set, samples: r.samples });
   }
   return { ok: true, parts };
+}
+
+/** A pass and the set it was computed from (the set in force at its rise). */
+export type PassFromSet<T> = Pass & { inForce: T };
+
+/**
+ * Passes over a window that may span several sets: each part of the window is searched with
+ * its own set, and a pass cut by a set change (under way at the end of one part and at the
+ * start of the next) is joined into one, named by the set in force at its rise.
+ */
+export function findPassesAcrossSets<T extends PropagatableSet>(
+  sorted: readonly T[],
+  observer: Observer,
+  options: PassOptions,
+): Result<{ passes: PassFromSet<T>[]; alwaysUp: boolean; sets: T[] }, PassErrorCode> {
+  const endMs = options.startMs + options.days * MS_PER_DAY;
+  const parts = piecewiseWindows(sorted, options.startMs, endMs).filter((p, i, all) => p.endMs > p.startMs || all.length === 1);
+  const passes: PassFromSet<T>[] = [];
+  let alwaysUp = parts.length > 0;
+  for (const part of parts) {
+    const days = Math.max((part.endMs - part.startMs) / MS_PER_DAY, 1e-9);
+    const r = findPasses(part.set.satrec, observer, { ...options, startMs: part.startMs, days });
+    if (!r.ok) return r;
+    alwaysUp &&= r.alwaysUp;
+    for (const p of r.passes) {
+      const prev = passes[passes.length - 1];
+      if (prev && prev.inProgressAtEnd && p.inProgressAtStart && Math.abs(p.rise.t - prev.set.t) < 1000) {
+        passes[passes.length - 1] = {
+          ...prev,
+          culmination: p.culmination.elevationDeg > prev.culmination.elevationDeg ? p.culmination : prev.culmination,
+          set: p.set,
+          visible: prev.visible || p.visible,
+          inProgressAtEnd: p.inProgressAtEnd,
+        };
+      } else {
+        passes.push({ ...p, inForce: part.set });
+      }
+    }
+  }
+  return { ok: true, passes, alwaysUp: alwaysUp && passes.length === 0, sets: parts.map((p) => p.set) };
 }

@@ -47,8 +47,8 @@ export type { Pass, PassList, PassOptions, PassErrorCode } from './passes.ts';
  * check `findPasses` against. Not for serving requests.
  */
 export { findPassesBruteForce } from './passes-bruteforce.ts';
-export { byEpoch, indexInForce, setInForce, ageDaysAt, piecewiseWindows, sampleTrackAcrossSets } from './history.ts';
-export type { HasEpoch, WindowPart, PropagatableSet, TrackPart } from './history.ts';
+export { byEpoch, indexInForce, setInForce, ageDaysAt, piecewiseWindows, sampleTrackAcrossSets, findPassesAcrossSets } from './history.ts';
+export type { HasEpoch, WindowPart, PropagatableSet, TrackPart, PassFromSet } from './history.ts';
 export { checkContinuity, classify, CONTINUITY_POLICY, CONTINUITY_WORDS } from './continuity.ts';
 export type { ContinuityClass, ContinuityReport, ContinuityErrorCode } from './continuity.ts';
 export { skyPath, skyPathStepS, SKY_PATH_STEP_S, SKY_PATH_MAX_POINTS } from './sky-path.ts';
