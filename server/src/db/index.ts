@@ -8,9 +8,15 @@ import { SequelizeStorage, Umzug } from 'umzug';
 import type { Config } from '../config.ts';
 import { initModels } from '../models/index.ts';
 import * as m0001 from './migrations/0001-initial.ts';
+import * as m0006 from './migrations/0006-element-set-continuity.ts';
+import * as m0007 from './migrations/0007-confirm-suspicious-sets.ts';
 
 /** Migrations in order. Add a new file and append it here; never edit a shipped one. */
-const MIGRATIONS = [{ name: '0001-initial', ...m0001 }];
+const MIGRATIONS = [
+  { name: '0001-initial', ...m0001 },
+  { name: '0006-element-set-continuity', ...m0006 },
+  { name: '0007-confirm-suspicious-sets', ...m0007 },
+];
 
 export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE_FILE' | 'dataDir'>): Promise<Sequelize> {
   let sequelize: Sequelize;

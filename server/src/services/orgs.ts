@@ -33,6 +33,8 @@ export interface OrganizationJson {
   id: string;
   name: string;
   plan: Plan;
+  /** Hold element sets that do not continue the orbit until an editor confirms them. */
+  confirmSuspiciousSets: boolean;
   createdAt: string;
 }
 
@@ -54,7 +56,7 @@ export interface InvitationJson {
 }
 
 export function serializeOrganization(org: Organization): OrganizationJson {
-  return { id: org.id, name: org.name, plan: org.plan, createdAt: new Date(org.createdAt).toISOString() };
+  return { id: org.id, name: org.name, plan: org.plan, confirmSuspiciousSets: Boolean(org.confirmSuspiciousSets), createdAt: new Date(org.createdAt).toISOString() };
 }
 
 function hashToken(token: string): string {

@@ -145,4 +145,11 @@ describe('checkContinuity on synthesized cases', () => {
     expect(classify(f).classification).toBe('continues');
     expect(classify({ ...f, spanDays: 0.5 }).classification).toBe('does-not-continue');
   });
+
+  it('a raised orbit whose position still lies within the tolerance is a manoeuvre all the same', () => {
+    const f = { spanDays: 3, positionDifferenceKm: 20, radialKm: -20, alongTrackKm: 0, crossTrackKm: 0, alongTrackTimingS: 0, semiMajorAxisChangeKm: 20, eccentricityChange: 0, inclinationChangeDeg: 0, raanChangeDeg: 0, catalogNumberChanged: false, previousEpoch: '', epoch: '' };
+    expect(classify(f).classification).toBe('manoeuvre');
+    // Drag allowance: 1 km + 0.5 km/day of span (CONTINUITY_POLICY).
+    expect(classify({ ...f, semiMajorAxisChangeKm: -2.4, positionDifferenceKm: 5 }).classification).toBe('continues');
+  });
 });

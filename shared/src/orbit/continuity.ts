@@ -66,9 +66,12 @@ export const CONTINUITY_POLICY = {
   basePositionKm: 10,
   /** Extra position tolerance per day of span, km/day. */
   positionKmPerDay: 10,
-  /** Semi-major axis change beyond which a burn is likely, km, plus a drag allowance per day. */
+  /**
+   * Semi-major axis change beyond which a burn is likely, km, plus a drag allowance per day
+   * (checked before the position: a raised orbit can still sit near the old prediction).
+   */
   semiMajorAxisKm: 1,
-  semiMajorAxisKmPerDay: 0.2,
+  semiMajorAxisKmPerDay: 0.5,
   /** Eccentricity change beyond which a burn is likely. */
   eccentricity: 0.001,
   /** Plane changes beyond which the new set is taken to be another object, deg. */
@@ -155,19 +158,19 @@ export function classify(f: Figures): { classification: ContinuityClass; reason:
       reason: `The orbit plane moved: inclination by ${f.inclinationChangeDeg.toFixed(3)}\u00b0, RAAN by ${f.raanChangeDeg.toFixed(3)}\u00b0 (more than ${P.inclinationDeg}\u00b0 / ${raanTol.toFixed(2)}\u00b0).`,
     };
   }
-  const posTol = P.basePositionKm + P.positionKmPerDay * span;
-  if (f.positionDifferenceKm <= posTol) {
-    return {
-      classification: 'continues',
-      reason: `The previous set predicts the new epoch's position within ${km(f.positionDifferenceKm)} (tolerance ${km(posTol)} over ${span.toFixed(2)} days).`,
-    };
-  }
   const aTol = P.semiMajorAxisKm + P.semiMajorAxisKmPerDay * span;
   if (Math.abs(f.semiMajorAxisChangeKm) > aTol || Math.abs(f.eccentricityChange) > P.eccentricity) {
     const dir = f.semiMajorAxisChangeKm >= 0 ? 'raised' : 'lowered';
     return {
       classification: 'manoeuvre',
       reason: `Same plane, but the orbit was ${dir}: semi-major axis ${f.semiMajorAxisChangeKm >= 0 ? '+' : ''}${f.semiMajorAxisChangeKm.toFixed(2)} km, eccentricity ${f.eccentricityChange >= 0 ? '+' : ''}${f.eccentricityChange.toFixed(5)}; the positions differ by ${km(f.positionDifferenceKm)}.`,
+    };
+  }
+  const posTol = P.basePositionKm + P.positionKmPerDay * span;
+  if (f.positionDifferenceKm <= posTol) {
+    return {
+      classification: 'continues',
+      reason: `The previous set predicts the new epoch's position within ${km(f.positionDifferenceKm)} (tolerance ${km(posTol)} over ${span.toFixed(2)} days).`,
     };
   }
   return {

@@ -149,7 +149,29 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     }
     await auditUpload(auth, satellite, result, how);
     if (result.accepted === 0) throw unprocessable(result.report);
-    res.status(201).json({ report: result.report, accepted: result.accepted, rejected: result.rejected });
+    const now = new Date();
+    const uploaders = await sats.uploaderNames(result.created);
+    res.status(201).json({
+      report: result.report,
+      accepted: result.accepted,
+      rejected: result.rejected,
+      elementSets: result.created.map((rec) => sats.summary(rec, parsedOf(rec), now, uploaders)),
+    });
+  });
+
+  r.post('/orgs/:org/element-sets/:esId/confirm', 'element-sets.confirm', async (req, res) => {
+    const auth = orgAuth(res);
+    const record = await sats.confirmElementSet(auth.organization.id, param(req, 'esId'), auth.user.id);
+    await recordAudit(ctx, {
+      organizationId: auth.organization.id,
+      actorUserId: auth.user.id,
+      action: 'element-set.confirm',
+      targetType: 'satellite',
+      targetId: record.satelliteId,
+      detail: { elementSetId: record.id, epoch: parsedOf(record).epochIso, continuity: record.continuityClass },
+    });
+    const uploaders = await sats.uploaderNames([record]);
+    res.json({ elementSet: sats.summary(record, parsedOf(record), new Date(), uploaders) });
   });
 
   r.get('/orgs/:org/element-sets/:esId/export', 'satellites.read', async (req, res) => {
