@@ -292,3 +292,16 @@ describe('passes: sky paths and calendars', () => {
     expect(bad.headers['content-type']).toMatch(/problem\+json/);
   });
 });
+
+describe('OpenAPI', () => {
+  it('documents the calendar, the history, path=true, elementSet and the cap relative to the epoch', async () => {
+    const doc = (await request(t.app).get('/v1/openapi.json').expect(200)).body;
+    const ics = doc.paths['/v1/satellites/{id}/passes.ics'].get;
+    expect(Object.keys(ics.responses['200'].content)).toContain('text/calendar');
+    expect(doc.paths['/v1/satellites/{id}/element-sets'].get).toBeTruthy();
+    const passes = doc.paths['/v1/satellites/{id}/passes'].get;
+    expect(passes.parameters.map((p: { name: string }) => p.name)).toContain('path');
+    expect(doc.paths['/v1/satellites/{id}/position'].get.description).toContain('365 days');
+    expect(JSON.stringify(doc.paths['/v1/satellites/{id}/position'].get.responses['200'])).toContain('ageDays');
+  });
+});

@@ -442,7 +442,11 @@ export const V1_ROUTES: RouteSpec[] = [
     access: 'read',
     query: passesIcsQuery,
     responses: {
-      '200': { description: 'The calendar', mediaTypes: ['text/calendar'] },
+      '200': {
+        description: 'The calendar',
+        schema: z.string().meta({ description: 'An iCalendar document (RFC 5545): VCALENDAR with one VEVENT per pass; lines end in CRLF and are folded at 75 octets' }),
+        mediaTypes: ['text/calendar'],
+      },
       '304': { description: 'Not modified (If-None-Match matched the ETag)' },
     },
     problems: ['not-found', 'validation-failed', 'no-element-set', 'decayed', 'propagation-failed'],
