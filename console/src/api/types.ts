@@ -27,6 +27,8 @@ export interface OrganizationRef {
 
 export interface Organization extends OrganizationRef {
   createdAt: string;
+  /** Hold element sets that do not continue the orbit until an editor confirms them. */
+  confirmSuspiciousSets?: boolean;
 }
 
 export interface Membership {
@@ -74,6 +76,34 @@ export interface ElementSetSummary {
   createdAt: string;
   catalogNumber: string;
   name: string;
+  /** The continuity check made when the set arrived (null for the first set; absent from older servers). */
+  continuity?: Continuity | null;
+  /** Held until an editor confirms it (organization setting confirmSuspiciousSets). */
+  awaitingConfirmation?: boolean;
+  /** Figures for the history chart (GET element-sets only). */
+  meanMotionRevPerDay?: number;
+  apogeeAltKm?: number;
+  perigeeAltKm?: number;
+}
+
+/** The /api continuity object (docs/console-api.md). */
+export interface Continuity {
+  classification: 'continues' | 'manoeuvre' | 'does-not-continue' | 'not-checked';
+  summary: string;
+  reason: string;
+  previousElementSetId: string;
+  previousEpoch: string;
+  spanDays: number;
+  positionDifferenceKm?: number;
+  radialKm?: number;
+  alongTrackKm?: number;
+  crossTrackKm?: number;
+  alongTrackTimingS?: number;
+  semiMajorAxisChangeKm?: number;
+  eccentricityChange?: number;
+  inclinationChangeDeg?: number;
+  raanChangeDeg?: number;
+  catalogNumberChanged?: boolean;
 }
 
 /** The `/v1/satellites/{id}/elements` object (the engine's derived elements, `staleness` included). */
@@ -103,6 +133,8 @@ export interface UploadReportEntry {
   message?: string;
   column?: number;
   file?: string;
+  continuity?: Continuity | null;
+  awaitingConfirmation?: boolean;
 }
 
 export interface UploadReport {

@@ -126,7 +126,19 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     const records = await sats.listElementSets(satellite.id);
     const uploaders = await sats.uploaderNames(records);
     const now = new Date();
-    res.json({ elementSets: records.map((rec) => sats.summary(rec, parsedOf(rec), now, uploaders)) });
+    // With the figures the history chart draws: apogee and perigee altitude (km), mean motion (rev/day).
+    res.json({
+      elementSets: records.map((rec) => {
+        const es = parsedOf(rec);
+        const d = sats.derived(es, now);
+        return {
+          ...sats.summary(rec, es, now, uploaders),
+          meanMotionRevPerDay: es.meanMotionRevPerDay,
+          apogeeAltKm: Math.round(d.apogeeAltKm * 1000) / 1000,
+          perigeeAltKm: Math.round(d.perigeeAltKm * 1000) / 1000,
+        };
+      }),
+    });
   });
 
   r.post('/orgs/:org/satellites/:id/element-sets', 'element-sets.write', upload.any(), async (req, res) => {
