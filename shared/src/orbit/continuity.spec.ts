@@ -9,7 +9,7 @@ import { describe, expect, it } from 'vitest';
 import { parseTle } from '../elements/tle.ts';
 import { toSatrec } from '../elements/satrec.ts';
 import type { ElementSet } from '../types.ts';
-import { checkContinuity, classify, type ContinuityReport } from './continuity.ts';
+import { carryForward, checkContinuity, classify, type ContinuityReport } from './continuity.ts';
 import { MS_PER_DAY } from './constants.ts';
 import { TEST_ORBITS } from './testing/orbits.ts';
 import { synthTle, type SynthElements } from './testing/synth-tle.ts';
@@ -151,5 +151,17 @@ describe('checkContinuity on synthesized cases', () => {
     expect(classify(f).classification).toBe('manoeuvre');
     // Drag allowance: 1 km + 0.5 km/day of span (CONTINUITY_POLICY).
     expect(classify({ ...f, semiMajorAxisChangeKm: -2.4, positionDifferenceKm: 5 }).classification).toBe('continues');
+  });
+});
+
+describe('carryForward', () => {
+  it('makes a successor that continues the orbit (under a kilometre a day later)', () => {
+    const prev = set(base);
+    const next = carryForward(prev.elementSet, prev.satrec, prev.elementSet.epochMs + MS_PER_DAY);
+    expect(next.epochIso).toBe(new Date(prev.elementSet.epochMs + MS_PER_DAY).toISOString().replace('Z', '000Z'));
+    const r = checkContinuity(prev, { elementSet: next, satrec: toSatrec(next) });
+    if (!r.ok) throw new Error(r.message);
+    expect(r.classification).toBe('continues');
+    expect(r.positionDifferenceKm).toBeLessThan(1);
   });
 });

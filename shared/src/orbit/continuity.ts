@@ -9,6 +9,7 @@
  * carrying the previous node forward by its secular drift.
  */
 import type { SatRec } from 'satellite.js';
+import { toSatrec } from '../elements/satrec.ts';
 import type { ElementSet, Result } from '../types.ts';
 import { MS_PER_DAY, MS_PER_MIN } from './constants.ts';
 import type { Vec3 } from './frames.ts';
@@ -177,4 +178,41 @@ export function classify(f: Figures): { classification: ContinuityClass; reason:
     classification: 'does-not-continue',
     reason: `Same plane and size, but the positions differ by ${km(f.positionDifferenceKm)} (${f.alongTrackTimingS.toFixed(0)} s along the track; tolerance ${km(posTol)}).`,
   };
+}
+
+/**
+ * The element set a clean successor would carry at `epochMs`: the same mean elements with mean
+ * anomaly, node and perigee moved by SGP4's secular rates (satrec.mdot, nodedot, argpdot,
+ * rad/min; AIAA 2006-6753 sgp4init), drag terms left out. For synthesized sets (the demo) that
+ * must continue the orbit of the set before them.
+ */
+export function carryForward(es: ElementSet, satrec: SatRec, epochMs: number): ElementSet {
+  const min = (epochMs - es.epochMs) / MS_PER_MIN;
+  const wrap = (d: number) => ((d % 360) + 360) % 360;
+  let next: ElementSet = {
+    ...es,
+    epochMs,
+    epochIso: isoMicros(epochMs),
+    meanAnomalyDeg: wrap(es.meanAnomalyDeg + satrec.mdot * min * RAD_TO_DEG),
+    raanDeg: wrap(es.raanDeg + satrec.nodedot * min * RAD_TO_DEG),
+    argPerigeeDeg: wrap(es.argPerigeeDeg + satrec.argpdot * min * RAD_TO_DEG),
+  };
+  // Drag moves the satellite along its track beyond the secular rates: shift the mean anomaly
+  // until the new set sits where the previous one predicts (a few Newton steps, along-track km
+  // over the radius as an angle).
+  for (let i = 0; i < 4; i++) {
+    const r = checkContinuity({ elementSet: es, satrec }, { elementSet: next, satrec: toSatrec(next) });
+    if (!r.ok) break;
+    if (Math.abs(r.alongTrackKm) < 1e-4) break;
+    const radiusKm = semiMajorAxisKmFromMeanMotion(next.meanMotionRevPerDay);
+    next = { ...next, meanAnomalyDeg: wrap(next.meanAnomalyDeg + (r.alongTrackKm / radiusKm) * RAD_TO_DEG) };
+  }
+  return next;
+}
+
+/** ISO 8601 with six decimals, as ElementSet.epochIso holds it. */
+function isoMicros(ms: number): string {
+  const whole = Math.floor(ms);
+  const us = Math.round((ms - whole) * 1000);
+  return `${new Date(whole).toISOString().slice(0, 23)}${String(us).padStart(3, '0')}Z`;
 }
