@@ -101,6 +101,8 @@ export class Tracker {
   private readonly reported = new Map<string, 'lasting' | 'passing'>();
   private readonly windows = new Map<string, Map<number, Sample[]>>();
   private readonly passKey = new Map<string, string>();
+  /** The time the map shows (time control, `at`); null: now. Track windows follow it, passes stay on now. */
+  private shown: (() => number) | null = null;
 
   constructor(private readonly opts: TrackerOptions) {
     this.now = opts.now ?? Date.now;
@@ -151,6 +153,19 @@ export class Tracker {
     this.state.observer = obs;
     this.passKey.clear();
     for (const s of this.state.sats) s.passes = null;
+    if (this.running) {
+      this.pause();
+      this.resume();
+    }
+  }
+
+  /**
+   * Show the map at another time (the time control or the `at` attribute): track windows are
+   * planned around `shown()` from now on, and the missing ones are asked for at once (if
+   * running; a paused tracker asks nothing). Passes stay those after the real now.
+   */
+  setShownTime(shown: (() => number) | null): void {
+    this.shown = shown;
     if (this.running) {
       this.pause();
       this.resume();
@@ -254,9 +269,10 @@ export class Tracker {
     // Meanwhile the window around now is asked for on the guess of a low orbit (the common case),
     // so the first track is drawn one round trip sooner; a high orbit just ignores that answer.
     const rung0 = LADDER[0]!;
+    const shownMs = this.shown ? this.shown() : now;
     let early: { start: number; answer: Promise<ApiResult<Sample[]>> } | null = null;
     if (!sat.elements) {
-      const start = Math.floor(now / rung0.spanMs) * rung0.spanMs;
+      const start = Math.floor(shownMs / rung0.spanMs) * rung0.spanMs;
       early = { start, answer: this.api.track(sat.id, start, start + rung0.spanMs, rung0.stepS, signal) };
       const meta = await this.api.satellite(sat.id, signal);
       if (signal.aborted) return undefined;
@@ -289,7 +305,7 @@ export class Tracker {
 
     // track windows not yet held, all at once
     const s = this.state.settings;
-    const plan = planWindows(now, sat.elements.periodMin || FALLBACK_PERIOD_MIN, s.orbitsBehind, s.orbitsAhead);
+    const plan = planWindows(shownMs, sat.elements.periodMin || FALLBACK_PERIOD_MIN, s.orbitsBehind, s.orbitsAhead);
     let held = this.windows.get(sat.id);
     if (!held || (sat.plan && sat.plan.spanMs !== plan.spanMs)) {
       held = new Map();
