@@ -5,7 +5,8 @@
  * Vue reactivity carries the state to the components; sample arrays are kept raw for speed.
  */
 import { markRaw, reactive } from 'vue';
-import { NadirApi, type ApiProblem, type ApiResult, type ElementsInfo, type EmbedConfig, type FetchLike, type Pass } from './api.ts';
+import { NadirApi, PASS_MIN_ELEVATION_DEG, type ApiProblem, type ApiResult, type ElementsInfo, type EmbedConfig, type FetchLike, type Pass } from './api.ts';
+import type { SkyPathPoint } from './skyplot.ts';
 import { settle, type Observer, type RawOptions, type Settings } from './config.ts';
 import { actionFor, noticeFor, type Notice } from './messages.ts';
 import { LADDER, mergeSamples, planWindows, type Sample, type WindowPlan } from './track.ts';
@@ -170,6 +171,40 @@ export class Tracker {
       this.pause();
       this.resume();
     }
+  }
+
+  /**
+   * The sky path of one pass over the observer (GET .../passes?path=true over the pass alone).
+   * Asked only when the reader opens the sky plot; null when it cannot be had.
+   */
+  async skyPath(satId: string, pass: Pass, signal?: AbortSignal): Promise<SkyPathPoint[] | null> {
+    const obs = this.state.observer;
+    if (!obs) return null;
+    const rise = Date.parse(pass.rise.t);
+    const set = Date.parse(pass.set.t);
+    const start = rise - 60_000;
+    const days = Math.max(0.01, (set - start + 60_000) / 86_400_000);
+    const r = await this.api.get<{ passes: (Pass & { path?: SkyPathPoint[] })[] }>(
+      `v1/satellites/${encodeURIComponent(satId)}/passes`,
+      { lat: Math.round(obs.lat * 100) / 100, lon: Math.round(obs.lon * 100) / 100, altM: Math.round(obs.altM), start: new Date(start).toISOString(), days: Math.round(days * 1e4) / 1e4, minElevation: PASS_MIN_ELEVATION_DEG, path: 'true' },
+      signal,
+    );
+    if (!r.ok) return null;
+    const match = r.value.passes.find((p) => Math.abs(Date.parse(p.culmination.t) - Date.parse(pass.culmination.t)) < 120_000);
+    return match?.path ?? null;
+  }
+
+  /** Link to the pass calendar of a satellite over the observer (iCalendar), or null without an observer. */
+  calendarUrl(satId: string): string | null {
+    const obs = this.state.observer;
+    if (!obs) return null;
+    return this.api.url(`v1/satellites/${encodeURIComponent(satId)}/passes.ics`, {
+      lat: Math.round(obs.lat * 100) / 100,
+      lon: Math.round(obs.lon * 100) / 100,
+      altM: Math.round(obs.altM),
+      days: 7,
+      minElevation: PASS_MIN_ELEVATION_DEG,
+    });
   }
 
   private useSettings(settings: Settings): void {
