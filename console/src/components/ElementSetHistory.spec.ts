@@ -22,7 +22,7 @@ const manoeuvre: Continuity = {
   raanChangeDeg: 0,
   catalogNumberChanged: false,
 };
-const base = { source: 'tle', ageDays: 1, staleness: 'fresh' as const, uploadedBy: 'Ada', createdAt: '2026-11-23T00:00:00.000Z', catalogNumber: '99850', name: 'X' };
+const base = { source: 'tle', ageDays: 1, staleness: 'fresh' as const, uploadedBy: 'Ada', createdAt: '2026-11-23T00:00:00.000Z', catalogNumber: '99850', name: 'X', awaitingConfirmation: false };
 const sets: ElementSetSummary[] = [
   { ...base, id: 'e3', epoch: '2026-11-24T00:00:00.000000Z', continuity: { ...manoeuvre, classification: 'does-not-continue', summary: 'does not continue' }, awaitingConfirmation: true },
   { ...base, id: 'e2', epoch: '2026-11-23T00:00:00.000000Z', continuity: manoeuvre },

@@ -22,6 +22,7 @@ import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, Embed, Satellite } from '../models/index.ts';
 import { assertKeyWorks, getKeyService, type KeyRecord, type KeyService } from './keys.ts';
+import type { SavedEmbed, V1Embed } from '@nadirline/shared/contract';
 
 /** Embed ids: 12 characters, letters and digits only (safe in URLs and attributes). */
 export const newEmbedId = customAlphabet('23456789abcdefghijkmnpqrstuvwxyz', 12);
@@ -86,7 +87,7 @@ function toRecord(e: Embed): EmbedRecord {
   };
 }
 
-export function serializeEmbed(e: Embed | EmbedRecord) {
+export function serializeEmbed(e: Embed | EmbedRecord): SavedEmbed {
   return {
     id: e.id,
     name: e.name,
@@ -97,7 +98,7 @@ export function serializeEmbed(e: Embed | EmbedRecord) {
   };
 }
 
-export function publicEmbed(e: Embed | EmbedRecord) {
+export function publicEmbed(e: Embed | EmbedRecord): V1Embed {
   return { id: e.id, name: e.name, satellites: [...e.satelliteIds], options: { ...e.options } };
 }
 

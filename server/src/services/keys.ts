@@ -26,6 +26,7 @@ import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, KEY_KINDS, KEY_SCOPES, Organization, type KeyKind, type KeyScope } from '../models/index.ts';
 import { planOf } from './quota.ts';
+import type { ApiKey as ApiKeyJson, KeyState as KeyStateOfContract } from '@nadirline/shared/contract';
 
 export const KEY_PREFIX: Record<KeyKind, string> = { browser: 'nlb_', server: 'nls_' };
 /** Length of the random part of a key text (nanoid alphabet, ~190 bits). */
@@ -35,7 +36,7 @@ export const MAX_ORIGINS = 50;
 export const DEFAULT_GRACE_HOURS = 24;
 export const MAX_GRACE_HOURS = 24 * 30;
 
-export type KeyState = 'active' | 'grace' | 'expired' | 'revoked';
+export type KeyState = KeyStateOfContract;
 
 /** Plain, immutable copy of an ApiKey row, as cached for the request path. */
 export interface KeyRecord {
@@ -57,22 +58,8 @@ export interface KeyRecord {
   createdAt: Date;
 }
 
-export interface KeyJson {
-  id: string;
-  kind: KeyKind;
-  name: string;
-  lastFour: string;
-  origins: string[];
-  scopes: KeyScope[];
-  rateLimitPerMin: number;
-  expiresAt: string | null;
-  revokedAt: string | null;
-  replacedById: string | null;
-  graceUntil: string | null;
-  lastUsedAt: string | null;
-  createdAt: string;
-  state: KeyState;
-}
+/** The console's key object (GET /api/orgs/:org/keys): the contract's ApiKey. */
+export type KeyJson = ApiKeyJson;
 
 export function hashKeyText(text: string): string {
   return crypto.createHash('sha256').update(text, 'utf8').digest('hex');

@@ -1,6 +1,6 @@
 /**
  * The OpenAPI 3.1 document of /v1, generated from the route table and the zod schemas that
- * validate the requests (routes/v1/schemas.ts), so the document and the checks cannot drift.
+ * validate the requests (@nadirline/shared/contract, shared/src/contract/v1.ts), so the document and the checks cannot drift.
  *
  * Exported API:
  *   buildOpenApi(serverUrl) -> OpenApiDocument (plain JSON object)
@@ -8,7 +8,7 @@
  */
 import { z } from 'zod';
 import { PROBLEM_TYPES, type ProblemCode } from '../http/problem.ts';
-import { CAPS, V1_ROUTES, problemSchema, type RouteSpec } from '../routes/v1/schemas.ts';
+import { CAPS, V1_ROUTES, problemSchema, type RouteSpec } from '@nadirline/shared/contract';
 
 export type OpenApiDocument = Record<string, unknown> & {
   openapi: string;

@@ -40,14 +40,15 @@ import {
   toTle,
   type DerivedElements,
   type ElementSet,
+  type ElementSetSource,
   type ParsedEntry,
-  type Staleness,
   type WindowPart,
 } from '@nadirline/shared';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, ElementSetRecord, Organization, Satellite, User } from '../models/index.ts';
 import { OrbitCache, parsedOf, type CachedSatellite, type CurrentSet } from './orbit-cache.ts';
+import type { V1ElementSetSummary, V1Satellite } from '@nadirline/shared/contract';
 
 export const MAX_ELEMENT_TEXT_CHARS = 2_000_000;
 export const MAX_SETS_PER_UPLOAD = 500;
@@ -142,30 +143,11 @@ export interface UploadResult {
   created: ElementSetRecord[];
 }
 
-export interface ElementSetSummary {
-  id: string;
-  source: string;
-  epoch: string;
-  ageDays: number;
-  staleness: Staleness;
-  uploadedBy: string | null;
-  createdAt: string;
-  catalogNumber: string;
-  name: string;
-  /** The continuity check made when the set arrived; null for a satellite's first set. */
-  continuity: ContinuityView | null;
-  /** Held until an editor confirms it; not used for any answer meanwhile. */
-  awaitingConfirmation: boolean;
-}
+/** A set's summary as /v1 documents it (the console reads it as the contract's ElementSetSummary), continuity included. */
+export type ElementSetSummary = V1ElementSetSummary;
 
-export interface SatelliteView {
-  id: string;
-  name: string;
-  catalogNumber: string | null;
-  description: string;
-  current: ElementSetSummary | null;
-  derived: DerivedElements | null;
-}
+/** The satellite as /v1 documents it and the console shows it (the contract's V1Satellite; the console reads it as SatelliteListItem). */
+export type SatelliteView = V1Satellite;
 
 export interface UploadInput {
   /** Element set text: TLE (2 or 3 lines per set), OMM KVN, OMM XML or OMM JSON. */
@@ -324,7 +306,8 @@ export class SatelliteService {
     const by = record.uploadedByUserId ?? record.uploadedByKeyId;
     return {
       id: record.id,
-      source: record.source,
+      // stored sets carry the engine's source names (addElementSets writes them)
+      source: record.source as ElementSetSource,
       epoch: es.epochIso,
       ageDays: Math.round(ageDays * 1000) / 1000,
       staleness: stalenessOf(ageDays),

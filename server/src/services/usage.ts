@@ -16,22 +16,14 @@
 import { Op } from 'sequelize';
 import type { AppContext } from '../context.ts';
 import { ApiKey, UsageDaily } from '../models/index.ts';
+import type { UsageReport as UsageAnswer } from '@nadirline/shared/contract';
 
 const SEP = '\u0000';
 
-export interface UsageRow {
-  day: string;
-  apiKeyId: string;
-  endpoint: string;
-  count: number;
-}
+export type UsageRow = UsageAnswer['rows'][number];
 
-export interface UsageReport {
-  days: Array<{ day: string; count: number }>;
-  byKey: Array<{ apiKeyId: string; name: string; count: number }>;
-  byRoute: Array<{ endpoint: string; count: number }>;
-  rows: UsageRow[];
-}
+/** The counts of GET /api/orgs/:org/usage (the route adds the window and the quota). */
+export type UsageReport = Omit<UsageAnswer, 'from' | 'to' | 'quota'>;
 
 let dayCache = { index: Number.NaN, text: '' };
 /** UTC day YYYY-MM-DD of a time (the last answer is kept: the request path asks many times a day). */

@@ -37,7 +37,7 @@ import { getKeyService, kindOfKeyText, originAllowed, type KeyRecord } from '../
 import { isPreviewTokenText, PREVIEW_RATE_LIMIT_PER_MIN, verifyPreviewToken } from '../../services/preview-token.ts';
 import { getQuotaService } from '../../services/quota.ts';
 import { getUsageRecorder } from '../../services/usage.ts';
-import type { Access } from './schemas.ts';
+import type { Access } from '@nadirline/shared/contract';
 
 export interface V1Auth {
   /** The key; for a console preview token, a stand-in record (see previewKey) that is never stored. */

@@ -1,10 +1,11 @@
 /**
  * The /v1 contract as data: caps, the zod schemas that validate every request, response shapes,
- * and the route table. The router validates with these schemas and services/openapi.ts turns the
- * same table into the OpenAPI 3.1 document, so the two cannot drift apart.
+ * and the route table. The server's router (server/src/routes/v1) validates with these schemas and
+ * its services/openapi.ts turns the same table into the OpenAPI 3.1 document, so the two cannot
+ * drift apart; the answer types at the end are what the server writes and the widget reads.
  */
 import { z } from 'zod';
-import { expects } from '../../http/validate.ts';
+import { expects } from './hints.ts';
 
 /** Request caps (also published in the OpenAPI document and on /docs/api). */
 export const CAPS = {
@@ -168,18 +169,6 @@ export const createSatelliteBody = expects(
 
 const t = z.string().meta({ format: 'date-time', description: 'ISO 8601 UTC' });
 
-export const elementSetSummarySchema = z.object({
-  id: z.string(),
-  source: z.enum(['tle', 'omm-kvn', 'omm-xml', 'omm-json', 'kepler']),
-  epoch: t,
-  ageDays: z.number(),
-  staleness: z.enum(['fresh', 'aging', 'stale']),
-  uploadedBy: z.string().nullable().meta({ description: 'Who stored the set: a member\u2019s name, or "key <name>" for an upload with a server key (as the console shows it)' }),
-  createdAt: t,
-  catalogNumber: z.string(),
-  name: z.string(),
-});
-
 export const continuitySchema = z
   .object({
     classification: z.enum(['continues', 'manoeuvre', 'does-not-continue', 'not-checked']),
@@ -200,6 +189,20 @@ export const continuitySchema = z
     catalogNumberChanged: z.boolean().optional(),
   })
   .meta({ description: 'The previous set (by epoch) propagated to this set’s epoch and compared with it; parts in the radial / along-track / cross-track frame of this set' });
+
+export const elementSetSummarySchema = z.object({
+  id: z.string(),
+  source: z.enum(['tle', 'omm-kvn', 'omm-xml', 'omm-json', 'kepler']),
+  epoch: t,
+  ageDays: z.number(),
+  staleness: z.enum(['fresh', 'aging', 'stale']),
+  uploadedBy: z.string().nullable().meta({ description: 'Who stored the set: a member\u2019s name, or "key <name>" for an upload with a server key (as the console shows it)' }),
+  createdAt: t,
+  catalogNumber: z.string(),
+  name: z.string(),
+  continuity: continuitySchema.nullable().meta({ description: 'The continuity check made when the set arrived; null for a satellite\u2019s first set' }),
+  awaitingConfirmation: z.boolean().meta({ description: 'Held until an editor confirms it (organization setting); not used for any answer meanwhile' }),
+});
 
 /** The element set an answer was computed from, with its age at the answer's time. */
 export const elementSetRefSchema = z.object({
@@ -298,6 +301,8 @@ export const reportEntrySchema = z.object({
   message: z.string().optional(),
   column: z.number().int().optional(),
   file: z.string().optional(),
+  continuity: continuitySchema.nullable().optional().meta({ description: 'For a newly stored set: its continuity check (null when the satellite had no earlier set)' }),
+  awaitingConfirmation: z.boolean().optional().meta({ description: 'The set is held until an editor confirms it (organization setting)' }),
 });
 export const uploadSchema = z.object({
   detail: z.string().meta({ description: 'One sentence: how many sets were stored, were stored already, or could not be used' }),
@@ -536,3 +541,25 @@ export function routeTemplate(r: Pick<RouteSpec, 'method' | 'path'>): string {
 export function expressPath(path: string): string {
   return path.replace(/\{([A-Za-z]+)\}/g, ':$1');
 }
+
+// ---------------------------------------------------------------------------------------------
+// Answer types: what the server writes (routes/v1 builds its answers as these) and what the
+// widget and other readers import, type-only.
+
+export type V1ElementSetSummary = z.output<typeof elementSetSummarySchema>;
+export type Continuity = z.output<typeof continuitySchema>;
+export type V1Derived = z.output<typeof derivedSchema>;
+export type V1Satellite = z.output<typeof satelliteSchema>;
+export type V1SatelliteList = { satellites: V1Satellite[] };
+export type V1Position = z.output<typeof positionSchema>;
+export type V1SatellitePosition = V1Position & { satelliteId: string };
+export type V1PositionsEntry = (V1Position & { id: string; name: string }) | { id: string; name: string; error: { code: string; detail: string } };
+export type V1Positions = { t: string; positions: V1PositionsEntry[] };
+export type V1TrackPoint = z.output<typeof trackPointSchema>;
+export type V1Track = z.output<typeof trackSchema>;
+export type V1Pass = z.output<typeof passSchema>;
+export type V1Passes = z.output<typeof passesSchema>;
+export type V1ReportEntry = z.output<typeof reportEntrySchema>;
+export type V1Upload = z.output<typeof uploadSchema>;
+export type V1Problem = z.output<typeof problemSchema>;
+export type V1Embed = z.output<typeof embedSchema>;
