@@ -24,6 +24,8 @@ export interface NadirTrackProps {
   timeZone?: string;
   locale?: string;
   theme?: string;
+  /** ISO 8601 time the map is pinned to (a launch page); the time control moves from it. */
+  at?: string;
 }
 
 export function useTrackerData(

@@ -166,6 +166,7 @@ export class Tracker {
    * running; a paused tracker asks nothing). Passes stay those after the real now.
    */
   setShownTime(shown: (() => number) | null): void {
+    if (shown === null && this.shown === null) return;
     this.shown = shown;
     if (this.running) {
       this.pause();
