@@ -2,12 +2,16 @@
  * Builds the Express app. Tests import createApp and drive it over real HTTP (supertest);
  * index.ts opens the database through it, listens and shuts down cleanly.
  */
+import type { IncomingMessage, ServerResponse } from 'node:http';
+import compression from 'compression';
 import express from 'express';
 import pino from 'pino';
 import { pinoHttp } from 'pino-http';
 import type { Config } from './config.ts';
 import type { AppContext } from './context.ts';
 import { openDatabase } from './db/index.ts';
+import { bodyTimeout, refuseControlChars } from './http/input-guards.ts';
+import { getOverLimitGate, overLimitFront } from './http/over-limit.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
@@ -18,15 +22,20 @@ import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
 
-/** Keys and one-time tokens never reach the logs. */
-function redactUrl(url: string): string {
+/** Keys and one-time tokens (in queries, invitation links and their API paths) never reach the logs. */
+export function redactUrl(url: string): string {
   return url
-    .replace(/([?&](?:key|token)=)[^&]+/g, '$1[hidden]')
-    .replace(/(\/api\/invitations\/)[^/?]+/, '$1[hidden]');
+    .replace(/([?&](?:key|token)=)[^&#]+/gi, '$1[hidden]')
+    .replace(/(\/(?:api\/invitations|invite)\/)[^/?#]+/gi, '$1[hidden]');
 }
 
 export interface NadirlineApp {
   app: express.Express;
+  /**
+   * What the HTTP server should call: the over-limit gate, then the app. Refusing a key that is
+   * over its limit here skips Express's own work per request as well (index.ts listens with it).
+   */
+  handler: (req: IncomingMessage, res: ServerResponse) => void;
   context: AppContext;
   /** Flush usage, stop the fake SMTP server, close the database. Idempotent. */
   close(): Promise<void>;
@@ -53,6 +62,11 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
+  // Keys over their rate limit are refused first: no log line, no routing, no limiter work.
+  // The server calls the gate before Express (handler below); in-process callers get it here.
+  const keys = getKeyService(context);
+  const front = overLimitFront(getOverLimitGate(context), (text) => keys.cachedKeyIdFor(text));
+  app.use(front);
   // Request lines are logged at info; below that level the middleware would only cost time.
   if (logger.isLevelEnabled('info')) app.use(
     pinoHttp({
@@ -65,6 +79,15 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     }),
   );
 
+  // Before any route: a body that never arrives, and control characters in the URL.
+  app.use(bodyTimeout(config.BODY_TIMEOUT_MS));
+  app.use(refuseControlChars);
+
+  // Text answers (widget script, map data, JSON, pages) go out gzip- or brotli-compressed when the
+  // client accepts it; fonts and images are already compressed and are left alone (the filter
+  // looks at the content type). Answers under 1 KB are not worth it.
+  app.use(compression({ threshold: 1024 }));
+
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
   });
@@ -74,7 +97,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.use(await createSiteRouter(context));
 
   app.use(notFoundHandler);
-  app.use(errorHandler({ exposeInternals: !config.isProduction, logger }));
+  // Stack traces go to the log; answers carry them only under NODE_ENV=test.
+  app.use(errorHandler({ exposeInternals: config.isTest, logger }));
 
   let closed: Promise<void> | undefined;
   const close = () => {
@@ -90,5 +114,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     })();
     return closed;
   };
-  return { app, context, close };
+  const handler = (req: IncomingMessage, res: ServerResponse) => {
+    front(req as express.Request, res as express.Response, () => app(req, res));
+  };
+  return { app, handler, context, close };
 }

@@ -16,6 +16,7 @@
  *   resolveForReadCached(id) -> the same or undefined, without waiting (request fast path)
  *   embedOptionsSchema, embedInputSchema (zod)
  */
+import { LRUCache } from 'lru-cache';
 import { customAlphabet } from 'nanoid';
 import { z } from 'zod';
 import type { AppContext } from '../context.ts';
@@ -103,7 +104,9 @@ export function publicEmbed(e: Embed | EmbedRecord): V1Embed {
 }
 
 export class EmbedService {
-  private readonly cache = new Map<string, { record: EmbedRecord | null; at: number }>();
+  /** Embeds by id (least recently used go first); unknown ids in their own small cache, so guessed ids cannot evict real ones. */
+  private readonly cache = new LRUCache<string, { record: EmbedRecord; at: number }>({ max: 10_000 });
+  private readonly unknown = new LRUCache<string, true>({ max: 1_000, ttl: 5_000 });
 
   constructor(
     _ctx: AppContext,
@@ -133,7 +136,7 @@ export class EmbedService {
       options: v.options,
       apiKeyId: v.apiKeyId,
     });
-    this.cache.delete(e.id);
+    this.invalidate(e.id);
     return e;
   }
 
@@ -164,9 +167,13 @@ export class EmbedService {
     if (!/^[0-9a-z_-]{1,40}$/i.test(id)) return null;
     const hit = this.cache.get(id);
     if (hit && Date.now() - hit.at < EMBED_CACHE_TTL_MS) return hit.record;
+    if (this.unknown.has(id)) return null;
     const row = await Embed.findByPk(id);
-    const record = row ? toRecord(row) : null;
-    if (this.cache.size > 10_000) this.cache.clear();
+    if (!row) {
+      this.unknown.set(id, true);
+      return null;
+    }
+    const record = toRecord(row);
     this.cache.set(id, { record, at: Date.now() });
     return record;
   }
@@ -194,6 +201,7 @@ export class EmbedService {
 
   invalidate(id: string): void {
     this.cache.delete(id);
+    this.unknown.delete(id);
   }
 
   private async checkRefs(orgId: string, satelliteIds: string[] | undefined, apiKeyId: string | undefined): Promise<void> {
