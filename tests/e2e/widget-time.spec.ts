@@ -61,7 +61,7 @@ describe('the time control', () => {
     await expect.poll(() => page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.timectl [role="status"]')?.textContent ?? ''), { timeout: 5000 }).toBe(valueText);
     await expect.poll(() => markerAt(page)).not.toBe(before);
     // a track window around the shown time was asked for (more than 8 h back)
-    const starts = v1.filter((u) => u.includes('/track?')).map((u) => Date.parse(new URL(u).searchParams.get('start')!));
+    const starts = v1.filter((u) => u.includes('/track?') || u.includes('/tracks?')).map((u) => Date.parse(new URL(u).searchParams.get('start')!));
     expect(Math.min(...starts)).toBeLessThan(Date.now() - 8 * 3600_000);
     // the panel of a picked satellite says the shown time plainly
     await page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.chip') as HTMLButtonElement).click());
