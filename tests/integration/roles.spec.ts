@@ -92,6 +92,19 @@ async function freshSatellite(): Promise<string> {
   return (await ownerPost(`/api/orgs/${f.orgId}/satellites`, { name: 'Fresh satellite' })).body.satellite.id as string;
 }
 
+/** A held element set (does not continue the orbit) in a fresh organization that asks for confirmation: its confirm URL. */
+async function freshHeldSet(): Promise<string> {
+  const orgId = await freshOrg();
+  await f.people.owner.browser.patch(`/api/orgs/${orgId}/settings`, { confirmSuspiciousSets: true }).expect(200);
+  const satId = (await ownerPost(`/api/orgs/${orgId}/satellites`, { name: 'Held satellite' })).body.satellite.id as string;
+  const epoch = Date.now() - 7_200_000;
+  await ownerPost(`/api/orgs/${orgId}/satellites/${satId}/element-sets`, { kepler: { ...kepler(), epoch: new Date(epoch).toISOString() } });
+  const held = await ownerPost(`/api/orgs/${orgId}/satellites/${satId}/element-sets`, { kepler: { ...kepler(), epoch: new Date(epoch + 3_600_000).toISOString(), meanAnomalyDeg: 200 } });
+  const entry = held.body.report[0];
+  if (!entry.awaitingConfirmation) throw new Error(`expected a held set, got ${JSON.stringify(entry)}`);
+  return `/api/orgs/${orgId}/element-sets/${entry.elementSetId as string}/confirm`;
+}
+
 async function freshEmbed(): Promise<string> {
   return (await ownerPost(`/api/orgs/${f.orgId}/embeds`, { name: 'Fresh embed', satelliteIds: [f.satelliteId], apiKeyId: f.browserKeyId, options: {} })).body.embed.id as string;
 }
@@ -196,6 +209,7 @@ export const TABLE: Row[] = [
   // ---- organization
   { route: 'GET /orgs/:org', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('') }) },
   { route: 'PATCH /orgs/:org', allowed: OWNER, ok: 200, call: async () => ({ method: 'patch', url: org(''), body: { name: 'Matrix Science Centre' } }) },
+  { route: 'PATCH /orgs/:org/settings', allowed: OWNER, ok: 200, call: async () => ({ method: 'patch', url: org('/settings'), body: { confirmSuspiciousSets: false } }) },
   { route: 'DELETE /orgs/:org', allowed: OWNER, ok: 204, call: async () => ({ method: 'delete', url: `/api/orgs/${await freshOrg()}` }) },
   {
     route: 'POST /orgs/:org/transfer',
@@ -237,6 +251,7 @@ export const TABLE: Row[] = [
     ok: 201,
     call: async (fx) => ({ method: 'post', url: org(`/satellites/${fx.satelliteId}/element-sets`), body: { kepler: { ...kepler(), epoch: new Date(Date.now() - Math.random() * 86_400_000).toISOString() } } }),
   },
+  { route: 'POST /orgs/:org/element-sets/:esId/confirm', allowed: EDITORS, ok: 200, call: async () => ({ method: 'post', url: await freshHeldSet() }) },
   { route: 'GET /orgs/:org/element-sets/:esId/export', allowed: EVERYONE, ok: 200, call: async (fx) => ({ method: 'get', url: org(`/element-sets/${fx.elementSetId}/export?format=omm-kvn`) }) },
 
   // ---- embeds

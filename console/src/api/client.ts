@@ -336,6 +336,12 @@ export class ApiClient {
     }
     return this.post<UploadReport>(path, input);
   }
+  confirmElementSet(org: string, elementSetId: string) {
+    return this.post<{ elementSet: ElementSetSummary }>(`/orgs/${seg(org)}/element-sets/${seg(elementSetId)}/confirm`);
+  }
+  updateOrgSettings(org: string, settings: { confirmSuspiciousSets: boolean }) {
+    return this.patch<{ organization: Organization }>(`/orgs/${seg(org)}/settings`, settings);
+  }
   exportUrl(org: string, elementSetId: string, format: ExportFormat): string {
     return withQuery(`${this.base}/orgs/${seg(org)}/element-sets/${seg(elementSetId)}/export`, { format });
   }

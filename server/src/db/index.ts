@@ -16,6 +16,8 @@ import { initModels } from '../models/index.ts';
 import * as m0001 from './migrations/0001-initial.ts';
 import * as m0002 from './migrations/0002-element-set-epoch-unique.ts';
 import * as m0003 from './migrations/0003-session-ids-hashed.ts';
+import * as m0006 from './migrations/0006-element-set-continuity.ts';
+import * as m0007 from './migrations/0007-confirm-suspicious-sets.ts';
 import * as m0009 from './migrations/0009-key-retire-when-quiet.ts';
 import * as m0010 from './migrations/0010-usage-hourly-and-origins.ts';
 import * as m0011 from './migrations/0011-payments.ts';
@@ -27,6 +29,8 @@ const MIGRATIONS = [
   { name: '0001-initial', ...m0001 },
   { name: '0002-element-set-epoch-unique', ...m0002 },
   { name: '0003-session-ids-hashed', ...m0003 },
+  { name: '0006-element-set-continuity', ...m0006 },
+  { name: '0007-confirm-suspicious-sets', ...m0007 },
   { name: '0009-key-retire-when-quiet', ...m0009 },
   { name: '0010-usage-hourly-and-origins', ...m0010 },
   { name: '0011-payments', ...m0011 },

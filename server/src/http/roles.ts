@@ -53,10 +53,14 @@ export const ACCESS = {
   'preview.issue': ALL,
   'satellites.write': EDITORS,
   'element-sets.write': EDITORS,
+  // Let a held element set (organization setting confirmSuspiciousSets) be used.
+  'element-sets.confirm': EDITORS,
   'embeds.write': EDITORS,
   'keys.write': MANAGERS,
   'members.manage': MANAGERS,
   'org.rename': OWNER,
+  // Organization settings besides the name (confirmSuspiciousSets), like the name: the owner's.
+  'org.settings': OWNER,
   'org.delete': OWNER,
   'org.transfer': OWNER,
   'billing.read': OWNER,

@@ -40,6 +40,8 @@ export class Organization extends Model<InferAttributes<Organization>, InferCrea
   declare id: string;
   declare name: string;
   declare plan: CreationOptional<Plan>;
+  /** Hold sets whose continuity check is not "continues" until an editor confirms them. */
+  declare confirmSuspiciousSets: CreationOptional<boolean>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -102,6 +104,14 @@ export class ElementSetRecord extends Model<InferAttributes<ElementSetRecord>, I
   declare epoch: Date;
   declare uploadedByUserId: string | null;
   declare uploadedByKeyId: string | null;
+  /** The continuity check made on arrival (ContinuityView of services/satellites.ts), null for a first set. */
+  declare continuity: CreationOptional<object | null>;
+  /** continues | manoeuvre | does-not-continue | not-checked, or null for a first set. */
+  declare continuityClass: CreationOptional<string | null>;
+  /** Held until an editor confirms it (organization setting confirmSuspiciousSets); not used for any answer meanwhile. */
+  declare awaitingConfirmation: CreationOptional<boolean>;
+  declare confirmedAt: CreationOptional<Date | null>;
+  declare confirmedByUserId: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -234,6 +244,7 @@ export function initModels(sequelize: Sequelize): void {
       id,
       name: { type: DataTypes.STRING(200), allowNull: false },
       plan: { type: DataTypes.STRING(20), allowNull: false, defaultValue: 'starter' },
+      confirmSuspiciousSets: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
       ...timestamps,
     },
     { sequelize, tableName: 'organizations' },
@@ -296,6 +307,11 @@ export function initModels(sequelize: Sequelize): void {
       epoch: { type: DataTypes.DATE, allowNull: false },
       uploadedByUserId: { type: DataTypes.STRING(40), allowNull: true },
       uploadedByKeyId: { type: DataTypes.STRING(40), allowNull: true },
+      continuity: { type: DataTypes.JSON, allowNull: true },
+      continuityClass: { type: DataTypes.STRING(24), allowNull: true },
+      awaitingConfirmation: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      confirmedAt: { type: DataTypes.DATE, allowNull: true },
+      confirmedByUserId: { type: DataTypes.STRING(40), allowNull: true },
       ...timestamps,
     },
     { sequelize, tableName: 'element_sets' },

@@ -35,8 +35,17 @@ describe('the demo seed’s activity log', () => {
     ]);
     expect(events.filter((e) => e.action === 'satellite.create').map((e) => (e.detail as { name: string }).name)).toEqual(['Wren Pathfinder', 'Orrery-1', 'Halcyon Relay', 'Tessera GEO']);
     const upload = events.find((e) => e.action === 'element-set.upload');
-    expect(upload?.detail).toMatchObject({ satellite: 'Wren Pathfinder', accepted: 1, rejected: 0 });
+    // A short history: 9, 6 and 3 days back and the fresh set.
+    expect(upload?.detail).toMatchObject({ satellite: 'Wren Pathfinder', accepted: 4, rejected: 0 });
     expect(events.filter((e) => e.action === 'key.create').map((e) => (e.detail as { kind: string }).kind)).toEqual(['browser', 'server']);
+  });
+
+  it('gives every demo satellite a history whose sets continue the orbit', async () => {
+    for (const sat of await Satellite.findAll({ where: { organizationId: DEMO_ORG_ID } })) {
+      const sets = await ElementSetRecord.findAll({ where: { satelliteId: sat.id }, order: [['epoch', 'ASC']] });
+      expect(sets.length, sat.name).toBe(4);
+      expect(sets.map((r) => r.continuityClass), sat.name).toEqual([null, 'continues', 'continues', 'continues']);
+    }
   });
 
   it('keeps no key text in the events', async () => {

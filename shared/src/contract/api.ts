@@ -7,7 +7,9 @@
  */
 import type { KeplerianInput } from '../elements/kepler.ts';
 import type { ElementSetSource } from '../types.ts';
-import type { V1ElementSetSummary, V1ReportEntry, V1Satellite } from './v1.ts';
+import type { Continuity, V1ElementSetSummary, V1ReportEntry, V1Satellite } from './v1.ts';
+
+export type { Continuity };
 import type { DerivedElements, Staleness } from '../orbit/elements-derived.ts';
 
 export type { ElementSetSource, Staleness };
@@ -31,6 +33,8 @@ export interface OrganizationRef {
 
 export interface Organization extends OrganizationRef {
   createdAt: string;
+  /** Hold element sets that do not continue the orbit until an editor confirms them. */
+  confirmSuspiciousSets: boolean;
 }
 
 export interface Membership {
@@ -74,6 +78,10 @@ export interface ElementSetSummary extends Omit<V1ElementSetSummary, 'source' | 
   source: ElementSetSource | (string & {});
   /** Who stored the set: a member's name or "key <name>"; readers also take a { name, email } object. */
   uploadedBy: string | { name: string; email?: string } | null;
+  /** Figures for the history chart (GET .../element-sets only). */
+  meanMotionRevPerDay?: number;
+  apogeeAltKm?: number;
+  perigeeAltKm?: number;
 }
 
 /** The `/v1/satellites/{id}/elements` object (the engine's derived elements, `staleness` included). */

@@ -24,6 +24,8 @@ export interface NadirTrackProps {
   timeZone?: string;
   locale?: string;
   theme?: string;
+  /** ISO 8601 time the map is pinned to (a launch page); the time control moves from it. */
+  at?: string;
   /** What to call a fixed observer place in the pass list. */
   observerName?: string;
 }

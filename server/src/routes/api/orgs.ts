@@ -18,6 +18,7 @@ import {
   serializeOrganization,
   transferOwnership,
 } from '../../services/orgs.ts';
+import { recordAudit } from '../../services/audit.ts';
 import { param } from './params.ts';
 import { ApiRoutes } from './routes.ts';
 import { bodyEmail, clientKey, getThrottleStore, Throttle, throttle } from '../../http/throttle.ts';
@@ -31,6 +32,9 @@ const TransferBody = z.object({ userId: z.string().min(1).max(40) });
 const roleField = z.enum(ASSIGNABLE_ROLES, { message: 'Choose admin, editor or viewer (the owner role moves only by transfer).' });
 const InviteBody = z.object({ email: fields.email, role: roleField });
 const RoleBody = z.object({ role: roleField });
+const SettingsBody = z.object({
+  confirmSuspiciousSets: z.boolean({ message: 'confirmSuspiciousSets must be true or false.' }),
+});
 
 
 export function orgRoutes(ctx: AppContext): ApiRoutes {
@@ -51,6 +55,24 @@ export function orgRoutes(ctx: AppContext): ApiRoutes {
     const { name } = parseBody(NameBody, req);
     const org = await renameOrganization(ctx, orgAuth(res), name);
     res.json({ organization: serializeOrganization(org) });
+  });
+
+  r.patch('/orgs/:org/settings', 'org.settings', async (req, res) => {
+    const auth = orgAuth(res);
+    const body = parseBody(SettingsBody, req);
+    const was = Boolean(auth.organization.confirmSuspiciousSets);
+    await auth.organization.update({ confirmSuspiciousSets: body.confirmSuspiciousSets });
+    if (was !== body.confirmSuspiciousSets) {
+      await recordAudit(ctx, {
+        organizationId: auth.organization.id,
+        actorUserId: auth.user.id,
+        action: 'org.settings',
+        targetType: 'organization',
+        targetId: auth.organization.id,
+        detail: { confirmSuspiciousSets: body.confirmSuspiciousSets },
+      });
+    }
+    res.json({ organization: serializeOrganization(auth.organization) });
   });
 
   r.delete('/orgs/:org', 'org.delete', async (_req, res) => {

@@ -133,7 +133,19 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     const records = await sats.listElementSets(satellite.id);
     const uploaders = await sats.uploaderNames(records);
     const now = new Date();
-    res.json({ elementSets: records.map((rec) => sats.summary(rec, parsedOf(rec), now, uploaders)) });
+    // With the figures the history chart draws: apogee and perigee altitude (km), mean motion (rev/day).
+    res.json({
+      elementSets: records.map((rec) => {
+        const es = parsedOf(rec);
+        const d = sats.derived(es, now);
+        return {
+          ...sats.summary(rec, es, now, uploaders),
+          meanMotionRevPerDay: es.meanMotionRevPerDay,
+          apogeeAltKm: Math.round(d.apogeeAltKm * 1000) / 1000,
+          perigeeAltKm: Math.round(d.perigeeAltKm * 1000) / 1000,
+        };
+      }),
+    });
   });
 
   r.post('/orgs/:org/satellites/:id/element-sets', 'element-sets.write', upload, async (req, res) => {
@@ -156,7 +168,29 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     }
     await auditUpload(auth, satellite, result, how);
     if (result.accepted === 0) throw unprocessable(result.report);
-    res.status(201).json({ report: result.report, accepted: result.accepted, rejected: result.rejected });
+    const now = new Date();
+    const uploaders = await sats.uploaderNames(result.created);
+    res.status(201).json({
+      report: result.report,
+      accepted: result.accepted,
+      rejected: result.rejected,
+      elementSets: result.created.map((rec) => sats.summary(rec, parsedOf(rec), now, uploaders)),
+    });
+  });
+
+  r.post('/orgs/:org/element-sets/:esId/confirm', 'element-sets.confirm', async (req, res) => {
+    const auth = orgAuth(res);
+    const record = await sats.confirmElementSet(auth.organization.id, param(req, 'esId'), auth.user.id);
+    await recordAudit(ctx, {
+      organizationId: auth.organization.id,
+      actorUserId: auth.user.id,
+      action: 'element-set.confirm',
+      targetType: 'satellite',
+      targetId: record.satelliteId,
+      detail: { elementSetId: record.id, epoch: parsedOf(record).epochIso, continuity: record.continuityClass },
+    });
+    const uploaders = await sats.uploaderNames([record]);
+    res.json({ elementSet: sats.summary(record, parsedOf(record), new Date(), uploaders) });
   });
 
   r.get('/orgs/:org/element-sets/:esId/export', 'satellites.read', async (req, res) => {
