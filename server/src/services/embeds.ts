@@ -21,6 +21,7 @@ import { z } from 'zod';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, Embed, Satellite } from '../models/index.ts';
+import { invalidationBus } from './shared.ts';
 import { assertKeyWorks, getKeyService, type KeyRecord, type KeyService } from './keys.ts';
 
 /** Embed ids: 12 characters, letters and digits only (safe in URLs and attributes). */
@@ -105,9 +106,16 @@ export class EmbedService {
   private readonly cache = new Map<string, { record: EmbedRecord | null; at: number }>();
 
   constructor(
-    _ctx: AppContext,
+    private readonly ctx: AppContext,
     private readonly keys: KeyService,
-  ) {}
+  ) {
+    invalidationBus(ctx).on((msg) => {
+      if (msg.t === 'embed') this.cache.delete(msg.id);
+      else if (msg.t === 'org') {
+        for (const [id, e] of this.cache) if (e.record?.organizationId === msg.orgId) this.cache.delete(id);
+      } else if (msg.t === 'all') this.cache.clear();
+    });
+  }
 
   listEmbeds(orgId: string): Promise<Embed[]> {
     return Embed.findAll({ where: { organizationId: orgId }, order: [['updatedAt', 'DESC']] });
@@ -132,7 +140,7 @@ export class EmbedService {
       options: v.options,
       apiKeyId: v.apiKeyId,
     });
-    this.cache.delete(e.id);
+    this.invalidate(e.id);
     return e;
   }
 
@@ -148,14 +156,14 @@ export class EmbedService {
       ...(v.options !== undefined ? { options: v.options } : {}),
       ...(v.apiKeyId !== undefined ? { apiKeyId: v.apiKeyId } : {}),
     });
-    this.cache.delete(id);
+    this.invalidate(id);
     return e;
   }
 
   async deleteEmbed(orgId: string, id: string): Promise<void> {
     const e = await this.getEmbed(orgId, id);
     await e.destroy();
-    this.cache.delete(id);
+    this.invalidate(id);
   }
 
   /** The embed (cached), or null. */
@@ -191,8 +199,10 @@ export class EmbedService {
     return { embed: hit.record, key };
   }
 
+  /** Drop the cached embed here and in every other process. */
   invalidate(id: string): void {
     this.cache.delete(id);
+    invalidationBus(this.ctx).publish({ t: 'embed', id });
   }
 
   private async checkRefs(orgId: string, satelliteIds: string[] | undefined, apiKeyId: string | undefined): Promise<void> {

@@ -45,6 +45,7 @@ import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, ElementSetRecord, Satellite, User } from '../models/index.ts';
 import { OrbitCache, parsedOf, type CachedSatellite } from './orbit-cache.ts';
+import { invalidationBus } from './shared.ts';
 
 export const MAX_ELEMENT_TEXT_CHARS = 2_000_000;
 export const MAX_SETS_PER_UPLOAD = 500;
@@ -128,7 +129,18 @@ function formatFromFileName(name: string): ElementFormat | undefined {
 export class SatelliteService {
   readonly cache = new OrbitCache();
 
-  constructor(private readonly ctx: AppContext) {}
+  constructor(private readonly ctx: AppContext) {
+    invalidationBus(ctx).on((msg) => {
+      if (msg.t === 'satellite') this.cache.invalidate(msg.id);
+      else if (msg.t === 'org' || msg.t === 'all') this.cache.clear();
+    });
+  }
+
+  /** Drop the cached satellite and current set here and in every other process. */
+  private changed(satelliteId: string): void {
+    this.cache.invalidate(satelliteId);
+    invalidationBus(this.ctx).publish({ t: 'satellite', id: satelliteId });
+  }
 
   listSatellites(orgId: string): Promise<Satellite[]> {
     return Satellite.findAll({ where: { organizationId: orgId }, order: [['name', 'ASC']] });
@@ -183,7 +195,7 @@ export class SatelliteService {
     }
     if (input.description !== undefined) patch.description = input.description.slice(0, 5000);
     await s.update(patch);
-    this.cache.invalidate(id);
+    this.changed(id);
     return s;
   }
 
@@ -193,7 +205,7 @@ export class SatelliteService {
       await ElementSetRecord.destroy({ where: { satelliteId: id }, transaction });
       await s.destroy({ transaction });
     });
-    this.cache.invalidate(id);
+    this.changed(id);
   }
 
   /** Parse and store element sets for a satellite; bad entries are reported, good ones kept. */
@@ -318,10 +330,16 @@ export class SatelliteService {
   private async storeEntries(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
     const report: ReportEntry[] = [];
     const created: ElementSetRecord[] = [];
-    const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'] });
-    const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
     let catalog = satellite.catalogNumber;
     await this.ctx.sequelize.transaction(async (transaction) => {
+      // Uploads to one satellite take turns (a row lock on PostgreSQL; SQLite has one writer at a
+      // time anyway), so the epochs read here and the newest set chosen below see every upload
+      // that finished first, from this process or another.
+      const locked = await Satellite.findByPk(satellite.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ['id', 'catalogNumber'] });
+      if (!locked) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
+      catalog = locked.catalogNumber;
+      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'], transaction });
+      const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
       for (const { entry, file, raw } of batch) {
         const base = reportOf(entry, file);
         if (!entry.result.ok) {
@@ -373,7 +391,7 @@ export class SatelliteService {
         await satellite.update({ currentElementSetId: latest?.id ?? null, catalogNumber: catalog }, { transaction });
       }
     });
-    this.cache.invalidate(satellite.id);
+    this.changed(satellite.id);
     const accepted = report.filter((r) => r.ok).length;
     const duplicates = report.filter((r) => r.ok && r.duplicate).length;
     return { report, accepted, duplicates, rejected: report.length - accepted, created };

@@ -25,6 +25,7 @@ import { recordAudit } from '../../services/audit.ts';
 import { EMBED_NOT_FOUND, publicEmbed } from '../../services/embeds.ts';
 import { buildOpenApi } from '../../services/openapi.ts';
 import { parsedOf, type CachedSatellite, type CurrentSet } from '../../services/orbit-cache.ts';
+import { sharedRedis } from '../../services/shared.ts';
 import { getSatelliteService, unprocessable, type ElementFormat, type SatelliteService, type UploadResult } from '../../services/satellites.ts';
 import { authenticate, authOf, canSee, corsHeaders, FailedAuthGuard, keyRateLimit, preflight, quotaAndUsage, type V1Auth } from './auth.ts';
 import {
@@ -271,7 +272,7 @@ function uploadDetail(stored: number, duplicates: number, rejected: number): str
 export async function createV1Router(ctx: AppContext): Promise<Router> {
   const router = Router();
   const sats = getSatelliteService(ctx);
-  const limiter = keyRateLimit();
+  const limiter = keyRateLimit(ctx);
   const trackAnswers = new TrackAnswerCache();
   // Without PUBLIC_URL the server URL is relative: the document is right on any host and port.
   const openapi = buildOpenApi(ctx.config.PUBLIC_URL ? ctx.config.publicUrl : '/');
@@ -280,7 +281,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
 
   router.use(corsHeaders);
   router.options('/*splat', preflight(ctx));
-  const guard = new FailedAuthGuard();
+  const guard = new FailedAuthGuard(sharedRedis(ctx));
 
   /** The activity the console records for an upload, with the key as the actor. Nothing new, nothing recorded. */
   const auditUpload = async (auth: V1Auth, satellite: Satellite, result: UploadResult, how: string) => {
