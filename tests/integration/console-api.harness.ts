@@ -14,6 +14,7 @@ import request from 'supertest';
 import type { Response } from 'supertest';
 import { createApp, type NadirlineApp } from '@nadirline/server/app';
 import { loadConfig } from '@nadirline/server/config';
+import { testStores } from '../support/stores.ts';
 
 export interface MailboxMessage {
   id: number;
@@ -37,7 +38,8 @@ export interface TestApp extends NadirlineApp {
 
 export async function startTestApp(env: Record<string, string> = {}): Promise<TestApp> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-console-api-'));
-  const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'test.sqlite'), PUBLIC_URL: 'http://console.test', LOG_LEVEL: 'silent', DEMO: 'false', ...env });
+  const stores = await testStores();
+  const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'test.sqlite'), PUBLIC_URL: 'http://console.test', LOG_LEVEL: 'silent', DEMO: 'false', ...stores.env, ...env });
   const built = await createApp(config);
   const t: TestApp = {
     ...built,
@@ -59,6 +61,7 @@ export async function startTestApp(env: Record<string, string> = {}): Promise<Te
     },
     async close() {
       await built.close();
+      await stores.drop();
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };

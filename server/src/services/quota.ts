@@ -115,6 +115,15 @@ export class QuotaService {
     invalidationBus(this.ctx).publish({ t: 'plan', orgId });
   }
 
+  /**
+   * Read the month total from the database again (after usage_daily was restored or corrected by
+   * hand): at once in memory mode; with Redis, the shared month counter is started again from it.
+   */
+  async reloadMonth(orgId: string, now: Date = new Date()): Promise<void> {
+    this.months.delete(orgId);
+    if (this.usage.shared) await this.usage.resyncMonth(orgId, monthKey(now));
+  }
+
   private forget(orgId: string): void {
     this.plans.delete(orgId);
     this.months.delete(orgId);

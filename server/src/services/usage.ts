@@ -105,6 +105,12 @@ redis.call('INCR', KEYS[1])
 redis.call('HINCRBY', KEYS[2], ARGV[2], 1)
 return {1, n + 1}`;
 
+/** KEYS[1] month counter, KEYS[2] pending hash; ARGV[1] hash field. Counts without a quota check. */
+const RECORD_SCRIPT = `
+redis.call('HINCRBY', KEYS[2], ARGV[1], 1)
+if redis.call('EXISTS', KEYS[1]) == 1 then redis.call('INCR', KEYS[1]) end
+return 1`;
+
 /** KEYS[1] pending hash, KEYS[2] batch key, KEYS[3] in-flight set; ARGV[1] now (ms). */
 const TAKE_SCRIPT = `
 if redis.call('EXISTS', KEYS[1]) == 0 then return 0 end
@@ -156,8 +162,19 @@ export class UsageRecorder {
     });
   }
 
+  /**
+   * Count one request. In memory; with Redis, sent to the pending hash and the month counter
+   * (the request path uses countShared instead, which also checks the quota and waits for Redis).
+   */
   record(orgId: string, keyId: string, endpoint: string, at: Date | number = Date.now()): void {
     const day = utcDay(at);
+    if (this.redis) {
+      const field = `${orgId}${SEP}${keyId}${SEP}${endpoint}${SEP}${day}`;
+      runScript(this.redis, RECORD_SCRIPT, [this.monthKey(orgId, day.slice(0, 7)), this.pendingKey()], [field]).catch((err: unknown) =>
+        this.ctx.logger.error({ err }, 'could not count usage in Redis'),
+      );
+      return;
+    }
     const k = `${orgId}${SEP}${keyId}${SEP}${endpoint}${SEP}${day}`;
     this.pending.set(k, (this.pending.get(k) ?? 0) + 1);
     const m = `${orgId}${SEP}${day.slice(0, 7)}`;
@@ -201,6 +218,18 @@ export class UsageRecorder {
     const redis = this.redis as SharedRedis;
     const v = await redis.client.get(this.monthKey(orgId, month));
     if (v !== null) return Number(v);
+    return this.seedMonth(orgId, month);
+  }
+
+  /**
+   * Redis mode: start the month counter again from the database, after writing what is pending
+   * (for operators who restored or corrected usage_daily by hand). Counts other processes add
+   * while this runs may be missed by the new counter; usage_daily itself stays exact.
+   */
+  async resyncMonth(orgId: string, month: string): Promise<number> {
+    const redis = this.redis as SharedRedis;
+    await this.flush();
+    await redis.client.del(this.monthKey(orgId, month));
     return this.seedMonth(orgId, month);
   }
 
