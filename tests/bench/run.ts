@@ -13,6 +13,7 @@ interface BenchModule {
 const modules: BenchModule[] = [
   { name: 'orbit engine', load: () => import('./orbit.bench.ts') },
   { name: 'server', load: () => import('./server.bench.ts') },
+  { name: 'server beyond one process (PostgreSQL + Redis)', load: () => import('./scale.bench.ts') },
   { name: 'widget', load: () => import('./widget.bench.ts') },
 ];
 
