@@ -40,7 +40,11 @@ export async function startTestApp(env: Record<string, string> = {}): Promise<Te
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-console-api-'));
   const stores = await testStores();
   const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'test.sqlite'), PUBLIC_URL: 'http://console.test', LOG_LEVEL: 'silent', DEMO: 'false', ...stores.env, ...env });
-  const built = await createApp(config);
+  const built = await createApp(config).catch(async (err: unknown) => {
+    await stores.drop();
+    fs.rmSync(dir, { recursive: true, force: true });
+    throw err;
+  });
   const t: TestApp = {
     ...built,
     dir,

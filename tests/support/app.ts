@@ -87,7 +87,11 @@ export async function startKeyedApp(env: Record<string, string> = {}, opts: { pl
   const sqliteFile = path.join(dir, 'test.sqlite');
   const stores = await testStores();
   const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: sqliteFile, PUBLIC_URL: 'http://nadirline.test', LOG_LEVEL: 'silent', DEMO: 'false', ...stores.env, ...env });
-  const built = await createApp(config);
+  const built = await createApp(config).catch(async (err: unknown) => {
+    await stores.drop();
+    fs.rmSync(dir, { recursive: true, force: true });
+    throw err;
+  });
   const ctx = built.context;
   const keys = getKeyService(ctx);
   const sats = getSatelliteService(ctx);

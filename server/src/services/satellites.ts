@@ -25,6 +25,7 @@
  *   Actor = { userId?: string | null, keyId?: string | null }
  */
 import { nanoid } from 'nanoid';
+import type { Transaction } from 'sequelize';
 import {
   deriveElements,
   fromKeplerian,
@@ -42,6 +43,7 @@ import {
   type Staleness,
 } from '@nadirline/shared';
 import type { AppContext } from '../context.ts';
+import { isPostgres } from '../db/index.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, ElementSetRecord, Satellite, User } from '../models/index.ts';
 import { OrbitCache, parsedOf, type CachedSatellite } from './orbit-cache.ts';
@@ -331,15 +333,26 @@ export class SatelliteService {
     const report: ReportEntry[] = [];
     const created: ElementSetRecord[] = [];
     let catalog = satellite.catalogNumber;
+    const onPostgres = isPostgres(this.ctx.sequelize);
+    const epochsOf = async (transaction?: Transaction) => {
+      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'], ...(transaction ? { transaction } : {}) });
+      return new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
+    };
+    // SQLite: read before the transaction, whose first statement is then a write (a read first
+    // would have to upgrade its lock and fail at once when another upload writes).
+    const before = onPostgres ? null : await epochsOf();
     await this.ctx.sequelize.transaction(async (transaction) => {
       // Uploads to one satellite take turns (a row lock on PostgreSQL; SQLite has one writer at a
-      // time anyway), so the epochs read here and the newest set chosen below see every upload
-      // that finished first, from this process or another.
-      const locked = await Satellite.findByPk(satellite.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ['id', 'catalogNumber'] });
-      if (!locked) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
-      catalog = locked.catalogNumber;
-      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'], transaction });
-      const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
+      // time), so the newest set chosen below sees every upload that finished first, from this
+      // process or another.
+      let byEpoch = before;
+      if (onPostgres) {
+        const locked = await Satellite.findByPk(satellite.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ['id', 'catalogNumber'] });
+        if (!locked) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
+        catalog = locked.catalogNumber;
+        byEpoch = await epochsOf(transaction);
+      }
+      if (!byEpoch) throw new Error('epochs not read');
       for (const { entry, file, raw } of batch) {
         const base = reportOf(entry, file);
         if (!entry.result.ok) {
