@@ -176,7 +176,14 @@ export class QuotaService {
    */
   async countOrRefuse(orgId: string, keyId: string, endpoint: string, nowMs: number): Promise<void> {
     const plan = planOf(this.cachedPlan(orgId) ?? (await this.planFor(orgId)));
-    const r = await this.usage.countShared(orgId, keyId, endpoint, nowMs, plan.monthlyRequests);
+    let r: { counted: boolean; used: number };
+    try {
+      r = await this.usage.countShared(orgId, keyId, endpoint, nowMs, plan.monthlyRequests);
+    } catch (err) {
+      this.ctx.logger.error({ err }, 'could not count a request in Redis');
+      // Nothing is answered that could not be counted.
+      throw new HttpError('unavailable', 'Nadirline cannot count this request right now (its shared counter store does not answer). Try again in a few seconds.', {}, { 'Retry-After': '5' });
+    }
     if (!r.counted) {
       const now = new Date(nowMs);
       throw quotaExceeded({ plan: plan.id, limit: plan.monthlyRequests, usedThisMonth: r.used, resetsAt: nextMonthStart(now).toISOString() }, now);

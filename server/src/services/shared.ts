@@ -16,8 +16,10 @@
  */
 import crypto from 'node:crypto';
 import { createClient } from 'redis';
+import type { Store } from 'express-rate-limit';
 import { RedisStore } from 'rate-limit-redis';
 import type { AppContext } from '../context.ts';
+import { HttpError } from '../http/problem.ts';
 
 export type RedisClient = ReturnType<typeof createClient>;
 
@@ -113,7 +115,12 @@ export async function connectShared(ctx: AppContext): Promise<void> {
     return;
   }
   const prefix = config.REDIS_KEY_PREFIX;
-  const client: RedisClient = createClient({ url: config.REDIS_URL, socket: { connectTimeout: 5_000, reconnectStrategy: (retries) => Math.min(100 * 2 ** retries, 2_000) } });
+  // At start, give up after a few tries (a wrong REDIS_URL should stop the server, not hang it);
+  // once connected, keep trying. Commands fail at once while disconnected (no offline queue), so
+  // requests answer 503 instead of waiting.
+  let connected = false;
+  const reconnectStrategy = (retries: number) => (!connected && retries >= 4 ? new Error(`no answer from Redis after ${retries + 1} tries`) : Math.min(100 * 2 ** retries, 2_000));
+  const client: RedisClient = createClient({ url: config.REDIS_URL, disableOfflineQueue: true, socket: { connectTimeout: 5_000, reconnectStrategy } });
   let lastErrorLog = 0;
   const onError = (err: unknown) => {
     // A Redis outage repeats the same error many times a second: log it once every 10 s.
@@ -124,6 +131,7 @@ export async function connectShared(ctx: AppContext): Promise<void> {
   };
   client.on('error', onError);
   await client.connect();
+  connected = true;
   const subscriber = client.duplicate();
   subscriber.on('error', onError);
   const channel = `${prefix}invalidate`;
@@ -146,13 +154,28 @@ export async function connectShared(ctx: AppContext): Promise<void> {
 
 /**
  * The express-rate-limit store for one limiter: Redis (one counter per client and window, shared
- * by every process) when REDIS_URL is set, else express-rate-limit's own memory store.
+ * by every process) when REDIS_URL is set, else express-rate-limit's own memory store. While
+ * Redis does not answer, limited routes answer 503 `unavailable` rather than go unlimited.
  */
-export function rateLimitStore(ctx: AppContext, name: string): { store?: RedisStore } {
+export function rateLimitStore(ctx: AppContext, name: string): { store?: Store } {
   const redis = sharedRedis(ctx);
   if (!redis) return {};
   const { client } = redis;
-  return { store: new RedisStore({ sendCommand: (...args: string[]) => client.sendCommand(args) as Promise<RedisReply>, prefix: redis.key(`rl:${name}:`) }) };
+  const inner = new RedisStore({ sendCommand: (...args: string[]) => client.sendCommand(args) as Promise<RedisReply>, prefix: redis.key(`rl:${name}:`) });
+  const unavailable = (err: unknown): never => {
+    ctx.logger.error({ err }, 'rate-limit counter in Redis did not answer');
+    throw new HttpError('unavailable', 'Nadirline cannot check the rate limit right now (its shared counter store does not answer). Try again in a few seconds.', {}, { 'Retry-After': '5' });
+  };
+  const store: Store = {
+    prefix: inner.prefix,
+    localKeys: false,
+    init: (options) => inner.init(options),
+    get: (key) => inner.get(key).catch(unavailable),
+    increment: (key) => inner.increment(key).catch(unavailable),
+    decrement: (key) => inner.decrement(key).catch(unavailable),
+    resetKey: (key) => inner.resetKey(key).catch(unavailable),
+  };
+  return { store };
 }
 
 type RedisReply = boolean | number | string | Array<boolean | number | string>;
