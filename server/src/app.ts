@@ -8,6 +8,7 @@ import { pinoHttp } from 'pino-http';
 import type { Config } from './config.ts';
 import type { AppContext } from './context.ts';
 import { openDatabase } from './db/index.ts';
+import { bodyTimeout, refuseControlChars } from './http/input-guards.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
@@ -19,11 +20,11 @@ import { getSatelliteService } from './services/satellites.ts';
 import { connectShared } from './services/shared.ts';
 import { getUsageRecorder } from './services/usage.ts';
 
-/** Keys and one-time tokens never reach the logs. */
-function redactUrl(url: string): string {
+/** Keys and one-time tokens (in queries, invitation links and their API paths) never reach the logs. */
+export function redactUrl(url: string): string {
   return url
-    .replace(/([?&](?:key|token)=)[^&]+/g, '$1[hidden]')
-    .replace(/(\/api\/invitations\/)[^/?]+/, '$1[hidden]');
+    .replace(/([?&](?:key|token)=)[^&#]+/gi, '$1[hidden]')
+    .replace(/(\/(?:api\/invitations|invite)\/)[^/?#]+/gi, '$1[hidden]');
 }
 
 export interface NadirlineApp {
@@ -80,6 +81,10 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     }),
   );
 
+  // Before any route: a body that never arrives, and control characters in the URL.
+  app.use(bodyTimeout(config.BODY_TIMEOUT_MS));
+  app.use(refuseControlChars);
+
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
   });
@@ -89,7 +94,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.use(await createSiteRouter(context));
 
   app.use(notFoundHandler);
-  app.use(errorHandler({ exposeInternals: !config.isProduction, logger }));
+  // Stack traces go to the log; answers carry them only under NODE_ENV=test.
+  app.use(errorHandler({ exposeInternals: config.isTest, logger }));
 
   let closed: Promise<void> | undefined;
   const close = () => {

@@ -12,8 +12,10 @@ interface BenchModule {
 
 const modules: BenchModule[] = [
   { name: 'orbit engine', load: () => import('./orbit.bench.ts') },
+  { name: 'element-set parsing (hostile texts)', load: () => import('./parse.bench.ts') },
   { name: 'server', load: () => import('./server.bench.ts') },
   { name: 'server beyond one process (PostgreSQL + Redis)', load: () => import('./scale.bench.ts') },
+  { name: 'concurrent writes', load: () => import('./writes.bench.ts') },
   { name: 'widget', load: () => import('./widget.bench.ts') },
 ];
 

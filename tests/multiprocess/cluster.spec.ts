@@ -24,7 +24,8 @@ let orgId: string;
 let satId: string;
 let db: pg.Client;
 
-const env = { DEMO: 'false', USAGE_FLUSH_MS: '300', LOG_LEVEL: 'warn' };
+// One SESSION_SECRET for all: a session made on one process works on the others.
+const env = { DEMO: 'false', USAGE_FLUSH_MS: '300', LOG_LEVEL: 'warn', SESSION_SECRET: 'cluster-test-session-secret-0123456789' };
 
 /** A member's browser on one process (the session lives in the shared database). */
 function browserOn(server: StartedServer): Browser {

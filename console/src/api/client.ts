@@ -373,7 +373,7 @@ export class ApiClient {
   usageCsvUrl(org: string, from: string, to: string): string {
     return withQuery(`${this.base}/orgs/${seg(org)}/usage.csv`, { from, to });
   }
-  activity(org: string, before?: string, limit = 50) {
+  activity(org: string, before?: number, limit = 50) {
     return this.get<{ events: ActivityEvent[] }>(`/orgs/${seg(org)}/activity`, { before, limit });
   }
   /** A short-lived read-only /v1 credential for the live previews (any member). */

@@ -7,30 +7,50 @@
  *   pendingMigrations(config) -> string[]
  *   isPostgres(sequelize) -> boolean
  *
- * Migrations run once however many processes start together. They run on a connection of their
- * own (a one-connection Sequelize instance), so each migration and the row that records it share
- * one transaction on that connection:
- *   - PostgreSQL: a session advisory lock (MIGRATION_LOCK_ID) is held around umzug.up(); each
- *     migration runs in BEGIN ... COMMIT (PostgreSQL's DDL is transactional).
- *   - SQLite: BEGIN IMMEDIATE takes the file's write lock for the whole run; a second process waits
- *     for it and then finds nothing pending. All pending migrations share that one transaction.
+ * SQLite writes (see write-lock.ts): every connection Sequelize opens (it opens one per
+ * transaction) gets the busy timeout; transactions are IMMEDIATE, so a writer takes the write
+ * lock when it begins instead of failing halfway when it first writes; and the process queues its
+ * transactions so only one at a time holds the file. A lock that still cannot be had in time
+ * surfaces as DatabaseBusyError (503 busy).
+ *
+ * Migrations run once however many processes start together, on a connection of their own:
+ *   - PostgreSQL: a session advisory lock (MIGRATION_LOCK_ID) is held around umzug.up() on a
+ *     one-connection Sequelize instance, and each migration runs in BEGIN ... COMMIT together
+ *     with the row that records it (PostgreSQL's DDL is transactional). A migration that opens its
+ *     own transaction (0002) commits there.
+ *   - SQLite: a lock file beside the database (`<file>.migrating`, holding the pid; left by a dead
+ *     process, it is taken over) keeps other processes out of umzug.up(); a migration that
+ *     rewrites data does so in its own IMMEDIATE transaction.
  */
 import fs from 'node:fs';
-import { Sequelize, type Options } from 'sequelize';
+import { Sequelize, Transaction, type Options } from 'sequelize';
 import { SequelizeStorage, Umzug } from 'umzug';
 import type { Config } from '../config.ts';
 import { initModels } from '../models/index.ts';
 import * as m0001 from './migrations/0001-initial.ts';
+import * as m0002 from './migrations/0002-element-set-epoch-unique.ts';
+import * as m0003 from './migrations/0003-session-ids-hashed.ts';
 import * as m0004 from './migrations/0004-usage-flushes.ts';
+import { DatabaseBusyError, isDatabaseBusy, WriteLock } from './write-lock.ts';
 
 /** Migrations in order. Add a new file and append it here; never edit a shipped one. */
 const MIGRATIONS = [
   { name: '0001-initial', ...m0001 },
+  { name: '0002-element-set-epoch-unique', ...m0002 },
+  { name: '0003-session-ids-hashed', ...m0003 },
   { name: '0004-usage-flushes', ...m0004 },
 ];
 
+/** How long an SQLite connection waits for a lock held by another connection or process, ms. */
+export const SQLITE_BUSY_TIMEOUT_MS = 5000;
+
 /** Key of the PostgreSQL advisory lock taken around migrations ("nadirline" in letters, as a number). */
 export const MIGRATION_LOCK_ID = 0x6e6164_69726c;
+
+/** How long a process waits for another one's migrations (SQLite lock file), ms. */
+const MIGRATION_WAIT_MS = 120_000;
+
+export { DatabaseBusyError, isDatabaseBusy };
 
 export type DatabaseConfig = Pick<
   Config,
@@ -59,10 +79,11 @@ function postgresOptions(config: DatabaseConfig, poolMax: number): Options {
 async function connect(config: DatabaseConfig, poolMax = config.DATABASE_POOL_MAX): Promise<Sequelize> {
   if (config.DATABASE_URL) return new Sequelize(config.DATABASE_URL, postgresOptions(config, poolMax));
   fs.mkdirSync(config.dataDir, { recursive: true });
-  const sequelize = new Sequelize({ dialect: 'sqlite', storage: config.SQLITE_FILE, logging: false });
-  // WAL lets readers run while a writer writes; busy_timeout waits instead of failing at once.
+  const sequelize = new Sequelize({ dialect: 'sqlite', storage: config.SQLITE_FILE, logging: false, transactionType: Transaction.TYPES.IMMEDIATE });
+  busyTimeoutOnEveryConnection(sequelize);
+  queueTransactions(sequelize, new WriteLock());
+  // WAL lets readers run while a writer writes.
   await sequelize.query('PRAGMA journal_mode = WAL;');
-  await sequelize.query('PRAGMA busy_timeout = 5000;');
   await sequelize.query('PRAGMA foreign_keys = ON;');
   return sequelize;
 }
@@ -78,6 +99,62 @@ export async function openDatabase(config: DatabaseConfig): Promise<Sequelize> {
   const sequelize = await connect(config);
   initModels(sequelize);
   return sequelize;
+}
+
+interface SqliteConnection {
+  configure(option: 'busyTimeout', ms: number): void;
+}
+
+/** Sequelize opens a new SQLite connection per transaction; each gets the busy timeout before its first statement. */
+function busyTimeoutOnEveryConnection(sequelize: Sequelize): void {
+  const manager = (sequelize as unknown as { connectionManager: { getConnection(options?: unknown): Promise<SqliteConnection> } }).connectionManager;
+  const configured = new WeakSet<object>();
+  const getConnection = manager.getConnection.bind(manager);
+  manager.getConnection = async (options?: unknown) => {
+    const connection = await getConnection(options);
+    if (!configured.has(connection)) {
+      connection.configure('busyTimeout', SQLITE_BUSY_TIMEOUT_MS);
+      configured.add(connection);
+    }
+    return connection;
+  };
+}
+
+type TransactionFn = (t: Transaction) => Promise<unknown>;
+
+/**
+ * Every transaction of this process waits for its turn on `lock` (managed ones until their
+ * callback settles, unmanaged ones until commit or rollback). A savepoint inside a transaction
+ * that already holds the turn (options.transaction given) does not queue.
+ */
+function queueTransactions(sequelize: Sequelize, lock: WriteLock): void {
+  const original = sequelize.transaction.bind(sequelize) as (options?: unknown, fn?: TransactionFn) => Promise<unknown>;
+  const queued = async (a?: unknown, b?: unknown): Promise<unknown> => {
+    const fn = (typeof a === 'function' ? a : b) as TransactionFn | undefined;
+    const options = (typeof a === 'function' ? undefined : a) as { transaction?: unknown } | undefined;
+    if (options?.transaction) return original(options, fn);
+    const release = await lock.acquire();
+    if (fn) {
+      try {
+        return await original(options ?? {}, fn);
+      } finally {
+        release();
+      }
+    }
+    let t: Transaction;
+    try {
+      t = (await original(options ?? {})) as Transaction;
+    } catch (err) {
+      release();
+      throw err;
+    }
+    const commit = t.commit.bind(t);
+    const rollback = t.rollback.bind(t);
+    t.commit = () => commit().finally(release);
+    t.rollback = () => rollback().finally(release);
+    return t;
+  };
+  (sequelize as unknown as { transaction: typeof queued }).transaction = queued;
 }
 
 function umzugFor(sequelize: Sequelize): Umzug<ReturnType<Sequelize['getQueryInterface']>> {
@@ -103,52 +180,82 @@ export async function pendingMigrations(config: DatabaseConfig): Promise<string[
   }
 }
 
+function processAlive(pid: number): boolean {
+  try {
+    process.kill(pid, 0);
+    return true;
+  } catch (err) {
+    return (err as NodeJS.ErrnoException).code === 'EPERM';
+  }
+}
+
+/** Run fn while holding `<file>.migrating` (created exclusively; taken over from a dead process). */
+async function withLockFile<T>(file: string, fn: () => Promise<T>): Promise<T> {
+  const lock = `${file}.migrating`;
+  const until = Date.now() + MIGRATION_WAIT_MS;
+  for (;;) {
+    try {
+      fs.writeFileSync(lock, String(process.pid), { flag: 'wx' });
+      break;
+    } catch (err) {
+      if ((err as NodeJS.ErrnoException).code !== 'EEXIST') throw err;
+      const pid = Number.parseInt(fs.readFileSync(lock, 'utf8'), 10);
+      if (pid > 0 && !processAlive(pid)) {
+        fs.rmSync(lock, { force: true });
+        continue;
+      }
+      if (Date.now() > until) throw new Error(`Another process (pid ${pid || 'unknown'}) has been migrating ${file} for over ${MIGRATION_WAIT_MS / 1000} s (lock file ${lock}).`);
+      await new Promise((r) => setTimeout(r, 50));
+    }
+  }
+  try {
+    return await fn();
+  } finally {
+    fs.rmSync(lock, { force: true });
+  }
+}
+
 /** Apply pending migrations, once across processes (see the file comment). */
 export async function migrate(config: DatabaseConfig): Promise<{ applied: string[] }> {
+  const applied: string[] = [];
+  if (!config.DATABASE_URL) {
+    fs.mkdirSync(config.dataDir, { recursive: true });
+    await withLockFile(config.SQLITE_FILE, async () => {
+      const sequelize = await connect(config);
+      try {
+        const umzug = umzugFor(sequelize);
+        umzug.on('migrated', ({ name }) => {
+          applied.push(name);
+        });
+        await umzug.up();
+      } finally {
+        await sequelize.close();
+      }
+    });
+    return { applied };
+  }
   // One connection: every query of a migration, and the row that records it, go over it.
   const sequelize = await connect(config, 1);
-  const applied: string[] = [];
   try {
     const umzug = umzugFor(sequelize);
-    umzug.on('migrated', ({ name }) => {
+    let open = false;
+    umzug.on('migrating', async () => {
+      await sequelize.query('BEGIN');
+      open = true;
+    });
+    umzug.on('migrated', async ({ name }) => {
+      await sequelize.query('COMMIT');
+      open = false;
       applied.push(name);
     });
-    if (isPostgres(sequelize)) {
-      await sequelize.query('SELECT pg_advisory_lock(:id)', { replacements: { id: MIGRATION_LOCK_ID } });
-      try {
-        let open = false;
-        umzug.on('migrating', async () => {
-          await sequelize.query('BEGIN');
-          open = true;
-        });
-        umzug.on('migrated', async () => {
-          await sequelize.query('COMMIT');
-          open = false;
-        });
-        try {
-          await umzug.up();
-        } catch (err) {
-          if (open) await sequelize.query('ROLLBACK');
-          throw err;
-        }
-      } finally {
-        await sequelize.query('SELECT pg_advisory_unlock(:id)', { replacements: { id: MIGRATION_LOCK_ID } });
-      }
-    } else {
-      // A process that finds the file locked waits for the one migrating (up to a minute).
-      await sequelize.query('PRAGMA busy_timeout = 60000;');
-      await sequelize.query('PRAGMA journal_mode = WAL;');
-      // The migrations table first, outside the transaction (umzug creates it on first use).
-      await umzug.executed();
-      await sequelize.query('BEGIN IMMEDIATE');
-      try {
-        await umzug.up();
-        await sequelize.query('COMMIT');
-      } catch (err) {
-        await sequelize.query('ROLLBACK');
-        applied.length = 0;
-        throw err;
-      }
+    await sequelize.query('SELECT pg_advisory_lock(:id)', { replacements: { id: MIGRATION_LOCK_ID } });
+    try {
+      await umzug.up();
+    } catch (err) {
+      if (open) await sequelize.query('ROLLBACK');
+      throw err;
+    } finally {
+      await sequelize.query('SELECT pg_advisory_unlock(:id)', { replacements: { id: MIGRATION_LOCK_ID } });
     }
   } finally {
     await sequelize.close();

@@ -9,7 +9,8 @@
  * Messages are written here, in one place. A schema's own message (`.min(1, 'Enter a name.')`,
  * a refinement's text) is kept; where zod would answer with its generic text ("Invalid input:
  * expected number, received NaN"), the message says what the field expects, from the hint a
- * schema registers with `expects(schema, 'a number of seconds from 1 to 3600')`, and what came:
+ * schema registers with `expects(schema, 'a number of seconds from 1 to 3600')` (from
+ * @nadirline/shared/contract), and what came:
  *
  *   lat is required: the observer's latitude, a number of degrees from -90 to 90
  *   step must be a number of seconds from 1 to 3600; got 'abc'
@@ -24,19 +25,14 @@
  */
 import type { Request } from 'express';
 import { z } from 'zod';
+import { expects, fieldHints } from '@nadirline/shared/contract';
 import { HttpError, type ProblemFieldError } from './problem.ts';
 
 export type Where = 'body' | 'query' | 'params';
 export type MessageStyle = 'field' | 'sentence';
 
-/** What a field expects, in words ("a number of seconds from 1 to 3600"). */
-export const fieldHints = z.registry<{ expects: string }>();
-
-/** Register what a field expects; returns the schema (use it in place). */
-export function expects<S extends z.ZodType>(schema: S, what: string): S {
-  fieldHints.add(schema, { expects: what });
-  return schema;
-}
+/** The hints live in the contract (shared/src/contract/hints.ts), beside the /v1 schemas that register them. */
+export { expects, fieldHints };
 
 /** Marks messages zod wrote itself (the schema gave none); they are rewritten below. */
 const GENERIC = '\u0000generic';

@@ -20,25 +20,17 @@ import { Op, type Transaction } from 'sequelize';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { destroyUserSessions } from '../http/session.ts';
-import { EmailToken, Membership, Organization, User, type Plan, type Role } from '../models/index.ts';
+import { EmailToken, Membership, Organization, User } from '../models/index.ts';
 import { getMailService, resetPasswordMail, verificationMail } from './mail.ts';
 import { acceptInvitationForUser, createOrganization, invitationOrThrow } from './orgs.ts';
+import type { Membership as MembershipOfContract, User as UserOfContract } from '@nadirline/shared/contract';
 
 export const VERIFY_TOKEN_TTL_MS = 48 * 3600 * 1000;
 export const RESET_TOKEN_TTL_MS = 3600 * 1000;
 
-export interface UserJson {
-  id: string;
-  email: string;
-  name: string;
-  emailVerified: boolean;
-  createdAt: string;
-}
+export type UserJson = UserOfContract;
 
-export interface MembershipJson {
-  organization: { id: string; name: string; plan: Plan };
-  role: Role;
-}
+export type MembershipJson = MembershipOfContract;
 
 export function serializeUser(user: User): UserJson {
   return {

@@ -13,6 +13,7 @@ import type { Transaction } from 'sequelize';
 import { Op } from 'sequelize';
 import type { AppContext } from '../context.ts';
 import { ApiKey, AuditEvent, User } from '../models/index.ts';
+import type { ActivityEvent as ActivityEventOfContract } from '@nadirline/shared/contract';
 
 export interface AuditInput {
   organizationId: string;
@@ -43,17 +44,10 @@ export async function recordAudit(
   );
 }
 
-export type ActivityActor = { name: string; email: string } | { keyName: string } | null;
+export type ActivityActor = ActivityEventOfContract['actor'];
 
-export interface ActivityEvent {
-  id: number;
-  action: string;
-  actor: ActivityActor;
-  targetType: string;
-  targetId: string | null;
-  detail: Record<string, unknown>;
-  createdAt: string;
-}
+/** One entry of GET /api/orgs/:org/activity: the contract's ActivityEvent. */
+export type ActivityEvent = ActivityEventOfContract;
 
 /** Newest first; `before` is an event id for paging (events with a smaller id). */
 export async function listActivity(

@@ -17,22 +17,15 @@ import type { OrgAuth } from '../http/roles.ts';
 import { Subscription, type Organization, type Plan } from '../models/index.ts';
 import { recordAudit } from './audit.ts';
 import { PLAN_CATALOG, getQuotaService, planOf } from './quota.ts';
+import type { Billing } from '@nadirline/shared/contract';
 
 /** Plan prices (services/quota.ts PLAN_CATALOG priceMonthly) are in euros. */
 export const PLAN_CURRENCY = 'EUR';
 
-export interface SubscriptionJson {
-  plan: Plan;
-  status: string;
-  currentPeriodEnd: string | null;
-  provider: 'none' | 'external';
-}
+export type SubscriptionJson = NonNullable<Billing['subscription']>;
 
-export interface BillingOverview {
-  plan: Plan;
-  plans: Array<{ id: Plan; name: string; monthlyRequests: number; priceMonthly: number; currency: string }>;
-  subscription: SubscriptionJson | null;
-}
+/** GET /api/orgs/:org/billing: the contract's Billing. */
+export type BillingOverview = Billing;
 
 export async function billingOverview(_ctx: AppContext, org: Organization): Promise<BillingOverview> {
   const sub = await Subscription.findOne({ where: { organizationId: org.id } });

@@ -23,6 +23,7 @@ import { HttpError } from '../http/problem.ts';
 import { ApiKey, Embed, Satellite } from '../models/index.ts';
 import { invalidationBus } from './shared.ts';
 import { assertKeyWorks, getKeyService, type KeyRecord, type KeyService } from './keys.ts';
+import type { SavedEmbed, V1Embed } from '@nadirline/shared/contract';
 
 /** Embed ids: 12 characters, letters and digits only (safe in URLs and attributes). */
 export const newEmbedId = customAlphabet('23456789abcdefghijkmnpqrstuvwxyz', 12);
@@ -87,7 +88,7 @@ function toRecord(e: Embed): EmbedRecord {
   };
 }
 
-export function serializeEmbed(e: Embed | EmbedRecord) {
+export function serializeEmbed(e: Embed | EmbedRecord): SavedEmbed {
   return {
     id: e.id,
     name: e.name,
@@ -98,7 +99,7 @@ export function serializeEmbed(e: Embed | EmbedRecord) {
   };
 }
 
-export function publicEmbed(e: Embed | EmbedRecord) {
+export function publicEmbed(e: Embed | EmbedRecord): V1Embed {
   return { id: e.id, name: e.name, satellites: [...e.satelliteIds], options: { ...e.options } };
 }
 

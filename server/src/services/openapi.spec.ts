@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { CAPS, V1_ROUTES, routeTemplate } from '../routes/v1/schemas.ts';
+import { CAPS, V1_ROUTES, routeTemplate } from '@nadirline/shared/contract';
 import { PROBLEM_TYPES } from '../http/problem.ts';
 import { buildOpenApi, PROBLEM_DOCS } from './openapi.ts';
 import { monthStart, nextMonthStart, PLAN_CATALOG, planOf } from './quota.ts';

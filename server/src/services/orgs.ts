@@ -24,35 +24,18 @@ import { Invitation, Membership, Organization, User, type Plan, type Role } from
 import { recordAudit } from './audit.ts';
 import { invalidationBus } from './shared.ts';
 import { getMailService, invitationMail } from './mail.ts';
+import type { InvitationPreview, Invitation as InvitationOfContract, Member as MemberOfContract, Organization as OrganizationOfContract } from '@nadirline/shared/contract';
 
 export const INVITATION_TTL_MS = 7 * 24 * 3600 * 1000;
 /** Roles that can be given by invitation or role change (owner only by transfer). */
 export const ASSIGNABLE_ROLES = ['admin', 'editor', 'viewer'] as const;
 export type AssignableRole = (typeof ASSIGNABLE_ROLES)[number];
 
-export interface OrganizationJson {
-  id: string;
-  name: string;
-  plan: Plan;
-  createdAt: string;
-}
+export type OrganizationJson = OrganizationOfContract;
 
-export interface MemberJson {
-  userId: string;
-  name: string;
-  email: string;
-  role: Role;
-  joinedAt: string;
-}
+export type MemberJson = MemberOfContract;
 
-export interface InvitationJson {
-  id: string;
-  email: string;
-  role: Role;
-  expiresAt: string;
-  /** Name of the member who sent it (null when that account is gone). */
-  invitedBy: string | null;
-}
+export type InvitationJson = InvitationOfContract;
 
 export function serializeOrganization(org: Organization): OrganizationJson {
   return { id: org.id, name: org.name, plan: org.plan, createdAt: new Date(org.createdAt).toISOString() };
@@ -175,7 +158,7 @@ export async function invitationOrThrow(token: string): Promise<Invitation> {
   return invitation;
 }
 
-export async function describeInvitation(token: string): Promise<{ organization: { name: string }; email: string; role: Role; expiresAt: string }> {
+export async function describeInvitation(token: string): Promise<InvitationPreview> {
   const invitation = await invitationOrThrow(token);
   const org = await Organization.findByPk(invitation.organizationId);
   if (!org) throw new HttpError('invalid-token', 'The organization of this invitation no longer exists.', { reason: 'unknown' });

@@ -25,12 +25,12 @@
  *   Actor = { userId?: string | null, keyId?: string | null }
  */
 import { nanoid } from 'nanoid';
-import type { Transaction } from 'sequelize';
+import { UniqueConstraintError } from 'sequelize';
 import {
   deriveElements,
   fromKeplerian,
-  parseElementSets,
   propagateAt,
+  readElementSets,
   stalenessOf,
   toOmmJson,
   toOmmKvn,
@@ -39,15 +39,15 @@ import {
   toTle,
   type DerivedElements,
   type ElementSet,
+  type ElementSetSource,
   type ParsedEntry,
-  type Staleness,
 } from '@nadirline/shared';
 import type { AppContext } from '../context.ts';
-import { isPostgres } from '../db/index.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, ElementSetRecord, Satellite, User } from '../models/index.ts';
 import { OrbitCache, parsedOf, type CachedSatellite } from './orbit-cache.ts';
 import { invalidationBus } from './shared.ts';
+import type { V1ElementSetSummary, V1Satellite } from '@nadirline/shared/contract';
 
 export const MAX_ELEMENT_TEXT_CHARS = 2_000_000;
 export const MAX_SETS_PER_UPLOAD = 500;
@@ -87,26 +87,11 @@ export interface UploadResult {
   created: ElementSetRecord[];
 }
 
-export interface ElementSetSummary {
-  id: string;
-  source: string;
-  epoch: string;
-  ageDays: number;
-  staleness: Staleness;
-  uploadedBy: string | null;
-  createdAt: string;
-  catalogNumber: string;
-  name: string;
-}
+/** A set's summary as /v1 documents it (the console reads it as the contract's ElementSetSummary). */
+export type ElementSetSummary = V1ElementSetSummary;
 
-export interface SatelliteView {
-  id: string;
-  name: string;
-  catalogNumber: string | null;
-  description: string;
-  current: ElementSetSummary | null;
-  derived: DerivedElements | null;
-}
+/** The satellite as /v1 documents it and the console shows it (the contract's V1Satellite; the console reads it as SatelliteListItem). */
+export type SatelliteView = V1Satellite;
 
 export interface UploadInput {
   /** Element set text: TLE (2 or 3 lines per set), OMM KVN, OMM XML or OMM JSON. */
@@ -167,7 +152,7 @@ export class SatelliteService {
     }
     let entries: ParsedEntry[] | null = null;
     if (input.elementsText !== undefined && input.elementsText.trim() !== '') {
-      entries = this.parseText(input.elementsText, input.format);
+      entries = this.parseText(input.elementsText, input.format, MAX_SETS_PER_UPLOAD);
       const usable = entries.filter((e) => e.result.ok);
       if (usable.length === 0) throw unprocessable(entries.map((e) => reportOf(e)), 'None of the submitted element sets could be used; the satellite was not created.');
     }
@@ -212,10 +197,11 @@ export class SatelliteService {
 
   /** Parse and store element sets for a satellite; bad entries are reported, good ones kept. */
   async addElementSets(satellite: Satellite, input: UploadInput, actor: Actor): Promise<UploadResult> {
+    // One cap for the whole upload (text and every file), enforced while each text is read.
     const batch: BatchItem[] = [];
-    if (input.text !== undefined) batch.push(...withRawText(input.text, this.parseText(input.text, input.format)));
+    if (input.text !== undefined) batch.push(...withRawText(input.text, this.parseText(input.text, input.format, MAX_SETS_PER_UPLOAD)));
     for (const f of input.files ?? []) {
-      batch.push(...withRawText(f.text, this.parseText(f.text, formatFromFileName(f.name)), f.name));
+      batch.push(...withRawText(f.text, this.parseText(f.text, formatFromFileName(f.name), MAX_SETS_PER_UPLOAD - batch.length, f.name), f.name));
     }
     if (input.kepler !== undefined) {
       const result = fromKeplerian(input.kepler as Parameters<typeof fromKeplerian>[0]);
@@ -272,7 +258,8 @@ export class SatelliteService {
     const by = record.uploadedByUserId ?? record.uploadedByKeyId;
     return {
       id: record.id,
-      source: record.source,
+      // stored sets carry the engine's source names (addElementSets writes them)
+      source: record.source as ElementSetSource,
       epoch: es.epochIso,
       ageDays: Math.round(ageDays * 1000) / 1000,
       staleness: stalenessOf(ageDays),
@@ -322,37 +309,54 @@ export class SatelliteService {
     return Promise.all(satellites.map((s) => this.view(s, now, uploaders)));
   }
 
-  private parseText(text: string, format?: ElementFormat): ParsedEntry[] {
+  /**
+   * The entries of one text, at most `room` of them: reading stops at the first entry over the
+   * upload's cap (413, with where that entry starts), so a text of a million lines costs no more
+   * than one of five hundred sets.
+   */
+  private parseText(text: string, format: ElementFormat | undefined, room: number, file?: string): ParsedEntry[] {
     if (text.length > MAX_ELEMENT_TEXT_CHARS) {
       throw new HttpError('payload-too-large', `Element set text is limited to ${MAX_ELEMENT_TEXT_CHARS.toLocaleString('en')} characters.`);
     }
-    return parseElementSets(text, format);
+    const read = readElementSets(text, { hint: format, maxEntries: Math.max(0, room) });
+    if (!read.ok) {
+      const where = `line ${read.line}${file !== undefined ? ` of ${file}` : ''}`;
+      throw new HttpError(
+        'payload-too-large',
+        `At most ${MAX_SETS_PER_UPLOAD} element sets per upload; this one holds more (set ${MAX_SETS_PER_UPLOAD + 1} starts at ${where}). Send the rest in another upload.`,
+        { limitSets: MAX_SETS_PER_UPLOAD, line: read.line, ...(file !== undefined ? { file } : {}) },
+      );
+    }
+    return read.entries;
   }
 
+  /**
+   * Store the usable entries of a batch in one transaction. The epochs already stored are read
+   * inside it, after the satellite's row is locked (PostgreSQL: FOR UPDATE; SQLite: the
+   * transaction is IMMEDIATE and queued, see db/write-lock.ts), so two uploads of one epoch cannot
+   * both miss each other. The unique (satelliteId, epoch) index is the backstop: should it still
+   * refuse a row, the whole batch runs again and finds that epoch stored.
+   */
   private async storeEntries(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
+    for (let attempt = 1; ; attempt++) {
+      try {
+        return await this.storeEntriesOnce(satellite, batch, actor);
+      } catch (err) {
+        if (!(err instanceof UniqueConstraintError) || attempt >= 3) throw err;
+      }
+    }
+  }
+
+  private async storeEntriesOnce(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
     const report: ReportEntry[] = [];
     const created: ElementSetRecord[] = [];
     let catalog = satellite.catalogNumber;
-    const onPostgres = isPostgres(this.ctx.sequelize);
-    const epochsOf = async (transaction?: Transaction) => {
-      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'], ...(transaction ? { transaction } : {}) });
-      return new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
-    };
-    // SQLite: read before the transaction, whose first statement is then a write (a read first
-    // would have to upgrade its lock and fail at once when another upload writes).
-    const before = onPostgres ? null : await epochsOf();
     await this.ctx.sequelize.transaction(async (transaction) => {
-      // Uploads to one satellite take turns (a row lock on PostgreSQL; SQLite has one writer at a
-      // time), so the newest set chosen below sees every upload that finished first, from this
-      // process or another.
-      let byEpoch = before;
-      if (onPostgres) {
-        const locked = await Satellite.findByPk(satellite.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ['id', 'catalogNumber'] });
-        if (!locked) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
-        catalog = locked.catalogNumber;
-        byEpoch = await epochsOf(transaction);
-      }
-      if (!byEpoch) throw new Error('epochs not read');
+      const locked = await Satellite.findByPk(satellite.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ['id', 'catalogNumber'] });
+      if (!locked) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
+      catalog = locked.catalogNumber;
+      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'], transaction });
+      const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
       for (const { entry, file, raw } of batch) {
         const base = reportOf(entry, file);
         if (!entry.result.ok) {
@@ -411,25 +415,26 @@ export class SatelliteService {
   }
 }
 
-interface BatchItem {
+export interface BatchItem {
   entry: ParsedEntry;
   /** The entry's own text as submitted (kept with the stored set). */
   raw: string;
   file?: string;
 }
 
-/** Each entry with its slice of the submitted text: from its first line to the next entry's. */
-function withRawText(text: string, entries: ParsedEntry[], file?: string): BatchItem[] {
-  const lines = text.split(/\r\n|\n|\r/);
+/**
+ * Each entry with its slice of the submitted text: from its first line to the next entry's.
+ * One pass: the start lines are sorted once and each slice is cut once (entries that start on
+ * the same line share it).
+ */
+export function withRawText(text: string, entries: ParsedEntry[], file?: string): BatchItem[] {
   const starts = [...new Set(entries.map((e) => e.line))].sort((a, b) => a - b);
-  return entries.map((entry) => {
-    let raw = text;
-    if (starts.length > 1) {
-      const next = starts.find((l) => l > entry.line) ?? lines.length + 1;
-      raw = lines.slice(entry.line - 1, next - 1).join('\n').trim();
-    }
-    return { entry, raw, ...(file !== undefined ? { file } : {}) };
-  });
+  const extra = file !== undefined ? { file } : {};
+  if (starts.length <= 1) return entries.map((entry) => ({ entry, raw: text, ...extra }));
+  const lines = text.split(/\r\n|\n|\r/);
+  const slices = new Map<number, string>();
+  starts.forEach((line, i) => slices.set(line, lines.slice(line - 1, (starts[i + 1] ?? lines.length + 1) - 1).join('\n').trim()));
+  return entries.map((entry) => ({ entry, raw: slices.get(entry.line) ?? text, ...extra }));
 }
 
 /**

@@ -18,32 +18,24 @@
  * script, adds one to the month counter and to the pending hash (org, key, route, day). A process
  * killed after answering has lost nothing. flush() renames the pending hash into a batch, writes
  * the batch and its id (table usage_flushes) in one transaction, then deletes it; a batch left by
- * a dead process is taken over by any process after BATCH_STALE_MS, and its id keeps it from being
+ * a dead process is taken over by any process after batchStaleMs, and its id keeps it from being
  * counted twice.
  */
 import crypto from 'node:crypto';
 import { Op, QueryTypes, UniqueConstraintError, type Sequelize, type Transaction } from 'sequelize';
 import type { AppContext } from '../context.ts';
 import { ApiKey, UsageDaily } from '../models/index.ts';
+import type { UsageReport as UsageAnswer } from '@nadirline/shared/contract';
 import { invalidationBus, sharedRedis, type SharedRedis } from './shared.ts';
 
 const invalidationSource = (ctx: AppContext) => invalidationBus(ctx).source;
 
 const SEP = '\u0000';
 
-export interface UsageRow {
-  day: string;
-  apiKeyId: string;
-  endpoint: string;
-  count: number;
-}
+export type UsageRow = UsageAnswer['rows'][number];
 
-export interface UsageReport {
-  days: Array<{ day: string; count: number }>;
-  byKey: Array<{ apiKeyId: string; name: string; count: number }>;
-  byRoute: Array<{ endpoint: string; count: number }>;
-  rows: UsageRow[];
-}
+/** The counts of GET /api/orgs/:org/usage (the route adds the window and the quota). */
+export type UsageReport = Omit<UsageAnswer, 'from' | 'to' | 'quota'>;
 
 let dayCache = { index: Number.NaN, text: '' };
 /** UTC day YYYY-MM-DD of a time (the last answer is kept: the request path asks many times a day). */

@@ -3,6 +3,7 @@
  * (a plain GET with no custom header needs no CORS preflight). Every failure becomes an
  * `ApiProblem` value; nothing is thrown at the caller.
  */
+import type { V1Derived, V1Embed, V1Pass, V1Passes, V1Satellite, V1Track } from '@nadirline/shared/contract';
 import type { Sample } from './track.ts';
 
 /**
@@ -84,37 +85,21 @@ export async function problemFrom(res: Response, nowMs = Date.now()): Promise<Ap
   };
 }
 
-export interface SatelliteInfo {
-  id: string;
-  name: string;
+/**
+ * The /v1 answers as the widget reads them: the contract's types (type-only, nothing bundled),
+ * narrowed to the fields the widget uses, so a change of an answer shape fails the widget's type check.
+ */
+export interface SatelliteInfo extends Pick<V1Satellite, 'id' | 'name'> {
   /** Derived elements of the current element set (null when the satellite has none yet). */
   derived?: ElementsInfo | null;
 }
-export interface ElementsInfo {
-  epoch: string;
-  periodMin: number;
-  semiMajorAxisKm: number;
-  inclinationDeg: number;
-  ageDays: number;
-  stale: boolean;
-}
-export interface PassEvent {
-  t: string;
-  azimuth: number;
-}
-export interface Pass {
-  rise: PassEvent;
-  culmination: PassEvent & { elevation: number; rangeKm: number };
-  set: PassEvent;
-  visible: boolean;
-  /** Already under way at the window start: `rise` is the window start, not a true rise. */
-  inProgressAtStart?: boolean;
-  /** Still under way at the window end: `set` is the window end, not a true set. */
-  inProgressAtEnd?: boolean;
-}
-export interface EmbedConfig {
-  id: string;
-  satellites: string[];
+export type ElementsInfo = Pick<V1Derived, 'epoch' | 'periodMin' | 'semiMajorAxisKm' | 'inclinationDeg' | 'ageDays' | 'stale'>;
+export type PassEvent = V1Pass['rise'];
+/** inProgressAtStart: already under way at the window start (`rise` is the window start, not a true rise); inProgressAtEnd likewise for `set`. */
+export type Pass = Omit<V1Pass, 'inProgressAtStart' | 'inProgressAtEnd'> & Partial<Pick<V1Pass, 'inProgressAtStart' | 'inProgressAtEnd'>>;
+export type TrackAnswer = Partial<Pick<V1Track, 'points'>>;
+export type PassesAnswer = Pick<V1Passes, 'passes'> & Partial<Pick<V1Passes, 'alwaysUp'>>;
+export interface EmbedConfig extends Pick<V1Embed, 'id' | 'satellites'> {
   options: Partial<{
     projection: string;
     orbitsBehind: number;
@@ -180,7 +165,7 @@ export class NadirApi {
     return this.get<ElementsInfo>(`v1/satellites/${encodeURIComponent(id)}/elements`, {}, signal);
   }
   async track(id: string, startMs: number, endMs: number, stepS: number, signal?: AbortSignal): Promise<ApiResult<Sample[]>> {
-    const r = await this.get<{ points?: { t: string; lat: number; lon: number; altKm: number; sunlit: boolean }[] }>(
+    const r = await this.get<TrackAnswer>(
       `v1/satellites/${encodeURIComponent(id)}/track`,
       { start: iso(startMs), end: iso(endMs), step: stepS },
       signal,
@@ -193,7 +178,7 @@ export class NadirApi {
     };
   }
   passes(id: string, obs: { lat: number; lon: number; altM: number }, startMs: number, days: number, signal?: AbortSignal) {
-    return this.get<{ passes: Pass[]; alwaysUp?: boolean }>(
+    return this.get<PassesAnswer>(
       `v1/satellites/${encodeURIComponent(id)}/passes`,
       { lat: round2(obs.lat), lon: round2(obs.lon), altM: Math.round(obs.altM), start: iso(startMs), days, minElevation: PASS_MIN_ELEVATION_DEG },
       signal,

@@ -2,6 +2,7 @@
 import type { Request } from 'express';
 import { ipKeyGenerator, rateLimit } from 'express-rate-limit';
 import { z } from 'zod';
+import type { SessionInfo } from '@nadirline/shared/contract';
 import type { AppContext } from '../../context.ts';
 import { csrfToken, renewCsrfToken } from '../../http/csrf.ts';
 import { HttpError } from '../../http/problem.ts';
@@ -84,11 +85,12 @@ export function accountRoutes(ctx: AppContext): ApiRoutes {
 
   r.get('/session', 'session.read', async (req, res) => {
     const user = await currentUser(req, res);
-    res.json({
+    const session: SessionInfo = {
       user: user ? serializeUser(user) : null,
       memberships: user ? await membershipsOf(user.id) : [],
-      csrfToken: csrfToken(req),
-    });
+      csrfToken: csrfToken(req, res, ctx.config),
+    };
+    res.json(session);
   });
 
   r.post('/auth/signup', 'account.signup', async (req, res) => {
@@ -115,7 +117,8 @@ export function accountRoutes(ctx: AppContext): ApiRoutes {
     await signIn(req, res, user);
     const token = renewCsrfToken(req);
     await signinLimiter.resetKey(clientAndEmail(req));
-    res.json({ user: serializeUser(user), memberships: await membershipsOf(user.id), csrfToken: token });
+    const session: SessionInfo = { user: serializeUser(user), memberships: await membershipsOf(user.id), csrfToken: token };
+    res.json(session);
   });
 
   r.post('/auth/signout', 'account.signout', async (req, res) => {

@@ -9,6 +9,7 @@ import { listActivity } from '../../services/audit.ts';
 import { billingOverview, startCheckout } from '../../services/billing.ts';
 import { getQuotaService } from '../../services/quota.ts';
 import { getUsageRecorder, utcDay } from '../../services/usage.ts';
+import type { UsageReport as UsageAnswer } from '@nadirline/shared/contract';
 import { ApiRoutes } from './routes.ts';
 
 /** Longest usage window one request may ask for, in days. */
@@ -44,7 +45,8 @@ export function usageRoutes(ctx: AppContext): ApiRoutes {
     const orgId = orgAuth(res).organization.id;
     const window = range(parseQuery(UsageQuery, req));
     const [report, status] = await Promise.all([usage.report(orgId, window), quota.status(orgId)]);
-    res.json({ from: window.from, to: window.to, ...report, quota: status });
+    const answer: UsageAnswer = { from: window.from, to: window.to, ...report, quota: status };
+    res.json(answer);
   });
 
   r.get('/orgs/:org/usage.csv', 'usage.read', async (req, res) => {

@@ -1,7 +1,9 @@
 /**
- * The keyed public API, /v1 (contract in brief.md; the route table and caps in ./schemas.ts).
+ * The keyed public API, /v1 (contract in brief.md; the route table, caps and answer types in @nadirline/shared/contract).
  * Each keyed route runs: CORS headers -> credential, origin and scope -> per-key rate limit ->
  * monthly quota and usage count (memory only) -> query validation -> handler.
+ * Routes only: answers are written as text in ./serialize.ts, kept in ./answer-cache.ts, and
+ * engine failures become problems in ./errors.ts.
  */
 import crypto from 'node:crypto';
 import express, { Router, type Request, type RequestHandler, type Response } from 'express';
@@ -15,10 +17,10 @@ import {
   sampleTrack,
   sunVector,
   trackToGeoJSON,
-  type TrackSample,
 } from '@nadirline/shared';
 import type { AppContext } from '../../context.ts';
-import { HttpError, withUploadLimits, type ProblemCode } from '../../http/problem.ts';
+import { readMultipart, refuseNulInJson } from '../../http/input-guards.ts';
+import { HttpError, withUploadLimits } from '../../http/problem.ts';
 import { safeParseMarked, validationProblem } from '../../http/validate.ts';
 import { Satellite } from '../../models/index.ts';
 import { recordAudit } from '../../services/audit.ts';
@@ -40,7 +42,16 @@ import {
   trackQuery,
   V1_ROUTES,
   type RouteSpec,
-} from './schemas.ts';
+  type V1Passes,
+  type V1Position,
+  type V1Positions,
+  type V1SatellitePosition,
+  type V1Track,
+  type V1Upload,
+} from '@nadirline/shared/contract';
+import { sendJson, TrackAnswerCache } from './answer-cache.ts';
+import { engineProblem } from './errors.ts';
+import { iso, round, trackGeoJsonText, trackPointsJson } from './serialize.ts';
 
 const MINUTE_MS = 60_000;
 
@@ -66,89 +77,6 @@ function checkId(id: unknown): string {
   const r = idParam.safeParse(id);
   if (!r.success) throw new HttpError('not-found', 'No satellite has this id.');
   return r.data;
-}
-
-const iso = (ms: number) => new Date(ms).toISOString();
-const round = (v: number, digits: number) => {
-  const f = 10 ** digits;
-  return Math.round(v * f) / f;
-};
-
-// ---------------------------------------------------------------------------------------------
-// Track answers are built as text: a one-orbit track is about a hundred points, and an object
-// plus a Date and toISOString per point cost more than the SGP4 work (CPU profile of the bench).
-
-const PAD2 = Array.from({ length: 100 }, (_, i) => (i < 10 ? `0${i}` : String(i)));
-const DAY_MS = 86_400_000;
-let isoDay = Number.NaN;
-let isoDayText = '';
-
-/** The same text as new Date(ms).toISOString(), without a Date per call for whole milliseconds. */
-export function isoTime(ms: number): string {
-  if (!Number.isSafeInteger(ms) || ms < 0 || ms >= 253_402_300_800_000) return new Date(ms).toISOString();
-  const day = Math.floor(ms / DAY_MS);
-  if (day !== isoDay) {
-    isoDay = day;
-    isoDayText = new Date(day * DAY_MS).toISOString().slice(0, 11);
-  }
-  let r = ms - day * DAY_MS;
-  const milli = r % 1000;
-  r = (r - milli) / 1000;
-  const sec = r % 60;
-  r = (r - sec) / 60;
-  const min = r % 60;
-  const hour = (r - min) / 60;
-  return `${isoDayText}${PAD2[hour]}:${PAD2[min]}:${PAD2[sec]}.${milli < 10 ? '00' : milli < 100 ? '0' : ''}${milli}Z`;
-}
-
-/** A number as JSON writes it (non-finite numbers become null). */
-const jsonNumber = (v: number) => (Number.isFinite(v) ? String(v) : 'null');
-
-const POW10 = [1, 10, 100, 1_000, 10_000, 100_000, 1_000_000];
-
-/**
- * round(v, digits) as JSON text, from integers: the same text as String(round(v, digits)) (the
- * shortest form of the double nearest to a decimal of at most 15 digits is that decimal), but
- * without a double-to-text conversion, which was the largest cost of a computed track.
- */
-export function roundedJson(v: number, digits: number): string {
-  const f = POW10[digits] ?? 10 ** digits;
-  const n = Math.round(v * f);
-  if (!Number.isSafeInteger(n) || Math.abs(n) >= 1e15) return jsonNumber(round(v, digits));
-  const a = n < 0 ? -n : n;
-  const whole = Math.floor(a / f);
-  let frac = a - whole * f;
-  const sign = n < 0 ? '-' : '';
-  if (frac === 0) return `${sign}${whole}`;
-  let width = digits;
-  while (frac % 10 === 0) {
-    frac /= 10;
-    width--;
-  }
-  const text = String(frac);
-  return `${sign}${whole}.${text.length < width ? '0'.repeat(width - text.length) + text : text}`;
-}
-
-/** `[{ t, lat, lon, altKm, sunlit }, ...]` as JSON text: the same as JSON.stringify(samples.map(pointJson)). */
-export function trackPointsJson(samples: readonly TrackSample[]): string {
-  let out = '[';
-  for (let i = 0; i < samples.length; i++) {
-    const s = samples[i] as TrackSample;
-    out += `${i === 0 ? '' : ','}{"t":"${isoTime(s.t)}","lat":${roundedJson(s.lat, 5)},"lon":${roundedJson(s.lon, 5)},"altKm":${roundedJson(s.altKm, 3)},"sunlit":${s.sunlit ? 'true' : 'false'}}`;
-  }
-  return `${out}]`;
-}
-
-/** Map an engine failure code to our problem. */
-function engineProblem(code: string, message: string, satName: string): HttpError {
-  const problem: ProblemCode = code === 'decayed' ? 'decayed' : 'propagation-failed';
-  const hint =
-    code === 'too-far-from-epoch'
-      ? ' Ask for a time nearer the element set\u2019s epoch, or upload a fresh element set.'
-      : code === 'decayed'
-        ? ' Upload a fresh element set if the object is still in orbit.'
-        : '';
-  return new HttpError(problem, `${satName}: ${message}.${hint}`, { reason: code });
 }
 
 async function visibleSatellite(sats: SatelliteService, auth: V1Auth, rawId: unknown): Promise<CachedSatellite> {
@@ -179,42 +107,12 @@ function seen(auth: V1Auth, id: string, cached: CachedSatellite | null): CachedS
   return cached;
 }
 
-/** JSON straight to the socket: the hot routes set their own caching headers, so express's ETag hashing is skipped. */
-function sendJson(res: Response, body: unknown, type = 'application/json; charset=utf-8'): void {
-  const text = typeof body === 'string' ? body : JSON.stringify(body);
-  res.setHeader('Content-Type', type);
-  res.setHeader('Content-Length', Buffer.byteLength(text));
-  res.end(text);
-}
-
-/** Finished track answers by ETag (bounded): the same window asked again costs no propagation. */
-class TrackAnswerCache {
-  private readonly entries = new Map<string, { body: string; type: string }>();
-  constructor(private readonly maxEntries = 512, private readonly maxBodyChars = 1_000_000) {}
-  get(etag: string) {
-    const hit = this.entries.get(etag);
-    if (hit) {
-      this.entries.delete(etag);
-      this.entries.set(etag, hit);
-    }
-    return hit;
-  }
-  set(etag: string, body: string, type: string): void {
-    if (body.length > this.maxBodyChars) return;
-    this.entries.set(etag, { body, type });
-    if (this.entries.size > this.maxEntries) {
-      const oldest = this.entries.keys().next().value;
-      if (oldest !== undefined) this.entries.delete(oldest);
-    }
-  }
-}
-
 function requireSet(c: CachedSatellite): CurrentSet {
   if (!c.current) throw new HttpError('no-element-set', `${c.satellite.name} has no element set yet; upload one (TLE or OMM) first.`);
   return c.current;
 }
 
-function positionOf(cur: CurrentSet, atMs: number, name: string) {
+function positionOf(cur: CurrentSet, atMs: number, name: string): { ok: false; error: HttpError } | { ok: true; value: V1Position } {
   const p = propagateAt(cur.satrec, atMs);
   if (!p.ok) return { ok: false as const, error: engineProblem(p.code, p.message, name) };
   return {
@@ -229,30 +127,6 @@ function positionOf(cur: CurrentSet, atMs: number, name: string) {
       sunlit: isSunlit(p.positionEciKm, sunVector(atMs)),
     },
   };
-}
-
-/** One track point as an object (the shape trackPointsJson writes as text). */
-export function pointJson(s: TrackSample) {
-  return { t: iso(s.t), lat: round(s.lat, 5), lon: round(s.lon, 5), altKm: round(s.altKm, 3), sunlit: s.sunlit };
-}
-
-/**
- * The track's FeatureCollection as JSON text with coordinates to 5 decimals, as the JSON points
- * (about 1 m; RFC 7946 section 11.2 asks for no more precision than the data has). Split points at
- * ±180 stay exact, and both ends of a split share one rounded latitude, so the parts still meet.
- * Features are written as trackToGeoJSON makes them: type, geometry, properties.
- */
-export function trackGeoJsonText(fc: ReturnType<typeof trackToGeoJSON>): string {
-  const position = (c: readonly number[]) => `[${c.map((v) => roundedJson(v, 5)).join(',')}]`;
-  const features = fc.features.map((f) => {
-    const g = f.geometry;
-    const geometry =
-      g.type === 'MultiLineString'
-        ? `{"type":"MultiLineString","coordinates":[${g.coordinates.map((line) => `[${line.map(position).join(',')}]`).join(',')}]}`
-        : `{"type":"Point","coordinates":${position(g.coordinates)}}`;
-    return `{"type":"Feature","geometry":${geometry},"properties":${JSON.stringify(f.properties ?? null)}}`;
-  });
-  return `{"type":"FeatureCollection","features":[${features.join(',')}]}`;
 }
 
 function uploadDetail(stored: number, duplicates: number, rejected: number): string {
@@ -348,7 +222,8 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       const p = positionOf(cur, at, c.satellite.name);
       if (!p.ok) throw p.error;
       res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
-      sendJson(res, { satelliteId: c.satellite.id, ...p.value });
+      const body: V1SatellitePosition = { satelliteId: c.satellite.id, ...p.value };
+      sendJson(res, body);
     };
     const c = visibleSatelliteNow(sats, authOf(res), req.params.id);
     if (c instanceof Promise) return c.then(answer);
@@ -366,14 +241,15 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       return !c || !canSee(auth, c.satellite);
     });
     if (missing.length > 0) throw new HttpError('not-found', `No satellite ${missing.join(', ')} is visible to this key.`, { missing });
-    const positions = (found as CachedSatellite[]).map((c) => {
+    const positions = (found as CachedSatellite[]).map((c): V1Positions['positions'][number] => {
       const base = { id: c.satellite.id, name: c.satellite.name };
       if (!c.current) return { ...base, error: { code: 'no-element-set', detail: `${c.satellite.name} has no element set yet.` } };
       const p = positionOf(c.current, at, c.satellite.name);
       return p.ok ? { ...base, ...p.value } : { ...base, error: { code: p.error.code, detail: p.error.detail } };
     });
     res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
-    res.json({ t: iso(at), positions });
+    const body: V1Positions = { t: iso(at), positions };
+    res.json(body);
   });
 
   keyed('get', '/satellites/:id/track', async (req, res) => {
@@ -432,14 +308,15 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       sendJson(res, body, 'application/geo+json; charset=utf-8');
       return;
     }
-    const head = JSON.stringify({
+    const headFields: Omit<V1Track, 'points'> = {
       satelliteId: c.satellite.id,
       elementSetId: cur.record.id,
       start: iso(start),
       end: iso(r.samples[r.samples.length - 1]?.t ?? end),
       stepS,
       count: r.samples.length,
-    });
+    };
+    const head = JSON.stringify(headFields);
     const body = `${head.slice(0, -1)},"points":${trackPointsJson(r.samples)}}`;
     trackAnswers.set(etag, body, 'application/json; charset=utf-8');
     sendJson(res, body);
@@ -458,7 +335,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       throw engineProblem(r.code, r.message, c.satellite.name);
     }
     res.setHeader('Cache-Control', q.start !== undefined ? 'private, max-age=300' : 'private, max-age=60');
-    res.json({
+    const body: V1Passes = {
       satelliteId: c.satellite.id,
       observer: { lat: q.lat, lon: q.lon, altM: q.altM },
       start: iso(start),
@@ -478,13 +355,14 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
         inProgressAtStart: p.inProgressAtStart,
         inProgressAtEnd: p.inProgressAtEnd,
       })),
-    });
+    };
+    res.json(body);
   });
 
   // -- writes ----------------------------------------------------------------------------------
 
   const jsonBody = express.json({ limit: CAPS.uploadMaxBytes });
-  keyed('post', '/satellites', jsonBody, async (req, res) => {
+  keyed('post', '/satellites', jsonBody, refuseNulInJson, async (req, res) => {
     if (!req.is('application/json')) throw new HttpError('unsupported-media-type', 'Send JSON: { "name": "...", "elements": "<TLE or OMM text>" }.');
     const r = safeParseMarked(createSatelliteBody, req.body);
     if (!r.success) throw validationProblem(createSatelliteBody, req.body, r.error.issues, 'body', 'sentence');
@@ -503,14 +381,17 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   });
 
   const textBody = express.text({ type: ['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'], limit: CAPS.uploadMaxBytes });
-  const files = multer({ storage: multer.memoryStorage(), limits: { fileSize: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles, fields: 10 } }).any();
+  const files = readMultipart(
+    multer({ storage: multer.memoryStorage(), limits: { fileSize: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles, fields: 10 } }).any(),
+    (err) => withUploadLimits(err, { fileBytes: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles }),
+  );
   keyed('post', '/satellites/:id/element-sets', async (req, res, next) => {
     // Check the satellite before reading any body.
     const auth = authOf(res);
     const id = checkId(req.params.id);
     const c = await sats.current(id);
     if (!c || !canSee(auth, c.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
-    if (req.is('multipart/form-data')) files(req, res, (err?: unknown) => next(err ? withUploadLimits(err, { fileBytes: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles }) : undefined));
+    if (req.is('multipart/form-data')) files(req, res, next);
     else if (req.is(['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'])) textBody(req, res, next);
     else throw new HttpError('unsupported-media-type', 'Send the element set as text/plain (TLE or OMM KVN), application/xml (OMM XML), application/json (OMM JSON) or multipart/form-data files.');
   }, async (req, res) => {
@@ -543,15 +424,16 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     const first = result.created[0];
     const stored = result.created.length;
     // accepted counts the sets stored by this request; duplicates (epochs already stored) apart.
-    res.status(stored > 0 ? 201 : 200).json({
+    const body: V1Upload = {
       detail: uploadDetail(stored, result.duplicates, result.rejected),
-      elementSet: first ? { ...summaries[0], elements: parsedOf(first) } : null,
+      elementSet: first && summaries[0] ? { ...summaries[0], elements: { ...parsedOf(first) } } : null,
       elementSets: summaries,
       accepted: stored,
       duplicates: result.duplicates,
       rejected: result.rejected,
       report: result.report,
-    });
+    };
+    res.status(stored > 0 ? 201 : 200).json(body);
   });
 
   // -- public ----------------------------------------------------------------------------------

@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { trackToGeoJSON, type TrackSample } from '@nadirline/shared';
-import { isoTime, pointJson, roundedJson, trackGeoJsonText, trackPointsJson } from './index.ts';
+import { isoTime, pointJson, roundedJson, trackGeoJsonText, trackPointsJson } from './serialize.ts';
 
 /** A small deterministic generator (mulberry32), so a failure can be replayed. */
 function random(seed: number): () => number {

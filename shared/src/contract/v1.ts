@@ -1,10 +1,11 @@
 /**
  * The /v1 contract as data: caps, the zod schemas that validate every request, response shapes,
- * and the route table. The router validates with these schemas and services/openapi.ts turns the
- * same table into the OpenAPI 3.1 document, so the two cannot drift apart.
+ * and the route table. The server's router (server/src/routes/v1) validates with these schemas and
+ * its services/openapi.ts turns the same table into the OpenAPI 3.1 document, so the two cannot
+ * drift apart; the answer types at the end are what the server writes and the widget reads.
  */
 import { z } from 'zod';
-import { expects } from '../../http/validate.ts';
+import { expects } from './hints.ts';
 
 /** Request caps (also published in the OpenAPI document and on /docs/api). */
 export const CAPS = {
@@ -425,3 +426,24 @@ export function routeTemplate(r: Pick<RouteSpec, 'method' | 'path'>): string {
 export function expressPath(path: string): string {
   return path.replace(/\{([A-Za-z]+)\}/g, ':$1');
 }
+
+// ---------------------------------------------------------------------------------------------
+// Answer types: what the server writes (routes/v1 builds its answers as these) and what the
+// widget and other readers import, type-only.
+
+export type V1ElementSetSummary = z.output<typeof elementSetSummarySchema>;
+export type V1Derived = z.output<typeof derivedSchema>;
+export type V1Satellite = z.output<typeof satelliteSchema>;
+export type V1SatelliteList = { satellites: V1Satellite[] };
+export type V1Position = z.output<typeof positionSchema>;
+export type V1SatellitePosition = V1Position & { satelliteId: string };
+export type V1PositionsEntry = (V1Position & { id: string; name: string }) | { id: string; name: string; error: { code: string; detail: string } };
+export type V1Positions = { t: string; positions: V1PositionsEntry[] };
+export type V1TrackPoint = z.output<typeof trackPointSchema>;
+export type V1Track = z.output<typeof trackSchema>;
+export type V1Pass = z.output<typeof passSchema>;
+export type V1Passes = z.output<typeof passesSchema>;
+export type V1ReportEntry = z.output<typeof reportEntrySchema>;
+export type V1Upload = z.output<typeof uploadSchema>;
+export type V1Problem = z.output<typeof problemSchema>;
+export type V1Embed = z.output<typeof embedSchema>;

@@ -1,0 +1,247 @@
+/**
+ * Shapes of the console API (`/api`), as written in docs/console-api.md: the server's services
+ * write these (their serializers are typed with them) and the console reads them, so a change of
+ * a shape fails type checks in both. Where the answer carries an object of the orbit engine
+ * unchanged (derived elements, staleness, a set's source, Keplerian input), the type is the
+ * engine's own. Types only: nothing here is bundled.
+ */
+import type { KeplerianInput } from '../elements/kepler.ts';
+import type { ElementSetSource } from '../types.ts';
+import type { V1ElementSetSummary, V1ReportEntry, V1Satellite } from './v1.ts';
+import type { DerivedElements, Staleness } from '../orbit/elements-derived.ts';
+
+export type { ElementSetSource, Staleness };
+
+export type Role = 'owner' | 'admin' | 'editor' | 'viewer';
+export type PlanId = 'starter' | 'mission' | 'constellation' | (string & {});
+
+export interface User {
+  id: string;
+  email: string;
+  name: string;
+  emailVerified: boolean;
+  createdAt: string;
+}
+
+export interface OrganizationRef {
+  id: string;
+  name: string;
+  plan: PlanId;
+}
+
+export interface Organization extends OrganizationRef {
+  createdAt: string;
+}
+
+export interface Membership {
+  organization: OrganizationRef;
+  role: Role;
+}
+
+export interface SessionInfo {
+  user: User | null;
+  memberships: Membership[];
+  csrfToken: string;
+}
+
+export interface Member {
+  userId: string;
+  name: string;
+  email: string;
+  role: Role;
+  joinedAt: string;
+}
+
+export interface Invitation {
+  id: string;
+  email: string;
+  role: Role;
+  expiresAt: string;
+  invitedBy: string | { name: string; email?: string } | null;
+}
+
+export interface InvitationPreview {
+  organization: { name: string };
+  email: string;
+  role: Role;
+  expiresAt: string;
+}
+
+
+/** An element set as the console lists it: the /v1 summary, read leniently. */
+export interface ElementSetSummary extends Omit<V1ElementSetSummary, 'source' | 'uploadedBy'> {
+  /** The formats the engine reads; a reader shows any other as it came. */
+  source: ElementSetSource | (string & {});
+  /** Who stored the set: a member's name or "key <name>"; readers also take a { name, email } object. */
+  uploadedBy: string | { name: string; email?: string } | null;
+}
+
+/** The `/v1/satellites/{id}/elements` object (the engine's derived elements, `staleness` included). */
+export type Derived = DerivedElements;
+
+export interface Satellite extends Pick<V1Satellite, 'id' | 'name' | 'catalogNumber'> {
+  description: string | null;
+}
+
+export interface SatelliteListItem extends Satellite {
+  current: ElementSetSummary | null;
+  derived: Derived | null;
+}
+
+/** What /v1 writes, the console reads: these fail to compile when the two drift apart. */
+type Reads<Written extends Read, Read> = [Written, Read];
+type _ReadsSatellite = Reads<V1Satellite, SatelliteListItem>;
+type _ReadsSummary = Reads<V1ElementSetSummary, ElementSetSummary>;
+
+/** One entry of an upload report, as /v1 documents it (`duplicate`: accepted, but the same as a set the satellite already holds). */
+export type UploadReportEntry = V1ReportEntry;
+
+export interface UploadReport {
+  report: UploadReportEntry[];
+  accepted: number;
+  rejected: number;
+}
+
+/** Keplerian elements typed by hand (angles in degrees, epoch ISO 8601 UTC): what the engine's fromKeplerian takes. */
+export type KeplerInput = KeplerianInput;
+
+export type ExportFormat = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json';
+
+export type KeyKind = 'browser' | 'server';
+export type KeyState = 'active' | 'grace' | 'expired' | 'revoked';
+export type KeyScope = 'read' | 'element-sets:write' | (string & {});
+
+export interface ApiKey {
+  id: string;
+  kind: KeyKind;
+  name: string;
+  lastFour: string;
+  origins: string[];
+  scopes: KeyScope[];
+  rateLimitPerMin: number | null;
+  expiresAt: string | null;
+  revokedAt: string | null;
+  replacedById: string | null;
+  graceUntil: string | null;
+  lastUsedAt: string | null;
+  createdAt: string;
+  state: KeyState;
+}
+
+export interface KeyCreateInput {
+  kind: KeyKind;
+  name: string;
+  origins?: string[];
+  scopes?: KeyScope[];
+  /** Whole requests per minute, 1 to 100 000; the server's default when left out. */
+  rateLimitPerMin?: number;
+  expiresAt?: string | null;
+}
+
+export type KeyUpdateInput = Partial<Omit<KeyCreateInput, 'kind'>>;
+
+export type Projection = 'equal-earth' | 'globe';
+export type Layer = 'footprint' | 'terminator' | 'passes' | 'graticule' | 'labels';
+export type WidgetTheme = 'light' | 'dark' | 'auto';
+
+/** Saved widget options; names follow the `<nadir-track>` attributes in camelCase. */
+export interface EmbedOptions {
+  projection: Projection;
+  layers: Layer[];
+  /** "lat,lon[,altM]", "auto" or "" for none. */
+  observer: string;
+  theme: WidgetTheme;
+  orbitsBehind: number;
+  orbitsAhead: number;
+  timeZone?: string;
+  locale?: string;
+  /** Size the snippets use: CSS pixels as digits ("640") or a CSS length ("100%"). */
+  width: string;
+  height: string;
+}
+
+export interface Embed {
+  id: string;
+  name: string;
+  satelliteIds: string[];
+  options: EmbedOptions;
+  apiKeyId: string | null;
+  updatedAt: string;
+}
+
+/** A saved embed as the server answers it: the options as saved (the console fills missing ones with its defaults). */
+export interface SavedEmbed extends Omit<Embed, 'options'> {
+  options: Record<string, unknown>;
+}
+
+export interface EmbedInput {
+  name: string;
+  satelliteIds: string[];
+  options: EmbedOptions;
+  /** The browser key the embed reads with (its origins, limits and usage apply). */
+  apiKeyId: string;
+}
+
+/** GET /api/orgs/:org/usage: counts per UTC day, key and route over [from, to], and the month's quota. */
+export interface UsageReport {
+  /** First and last UTC day counted (YYYY-MM-DD). */
+  from: string;
+  to: string;
+  days: { day: string; count: number }[];
+  byKey: { apiKeyId: string; name: string; count: number }[];
+  byRoute: { endpoint: string; count: number }[];
+  rows: { day: string; apiKeyId: string; endpoint: string; count: number }[];
+  quota: { plan: PlanId; limit: number; usedThisMonth: number; resetsAt: string };
+}
+
+export interface ActivityEvent {
+  /** Increasing; the next page is the events `before` the last one's id. */
+  id: number;
+  action: string;
+  actor: { name: string; email: string } | { keyName: string } | null;
+  targetType: string;
+  targetId: string | null;
+  detail: unknown;
+  createdAt: string;
+}
+
+export interface Plan {
+  id: PlanId;
+  name: string;
+  monthlyRequests: number;
+  priceMonthly: number;
+  /** ISO 4217 code of `priceMonthly`, e.g. "EUR". */
+  currency: string;
+}
+
+/** POST /api/orgs/:org/preview-token: the console's preview credential for `<nadir-track api-key>`. */
+export interface PreviewToken {
+  token: string;
+  expiresAt: string;
+  /** Seconds the token lives, counted by the server (free of this computer's clock). */
+  expiresIn: number;
+}
+
+export interface Billing {
+  plan: PlanId;
+  plans: Plan[];
+  subscription: { plan: PlanId; status: string; currentPeriodEnd: string | null; provider: 'none' | 'external' } | null;
+}
+
+/** One field-level problem (problem+json `errors[]`). */
+export interface FieldProblem {
+  where: string;
+  message: string;
+  field?: string;
+  line?: number;
+  column?: number;
+}
+
+export interface ProblemBody {
+  type?: string;
+  title?: string;
+  status?: number;
+  detail?: string;
+  code?: string;
+  errors?: FieldProblem[];
+}
