@@ -2,6 +2,8 @@
  * Builds the Express app. Tests import createApp and drive it over real HTTP (supertest);
  * index.ts opens the database through it, listens and shuts down cleanly.
  */
+import type { IncomingMessage, ServerResponse } from 'node:http';
+import compression from 'compression';
 import express from 'express';
 import pino from 'pino';
 import { pinoHttp } from 'pino-http';
@@ -9,6 +11,7 @@ import type { Config } from './config.ts';
 import type { AppContext } from './context.ts';
 import { openDatabase } from './db/index.ts';
 import { bodyTimeout, refuseControlChars } from './http/input-guards.ts';
+import { getOverLimitGate, overLimitFront } from './http/over-limit.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
@@ -29,6 +32,11 @@ export function redactUrl(url: string): string {
 
 export interface NadirlineApp {
   app: express.Express;
+  /**
+   * What the HTTP server should call: the over-limit gate, then the app. Refusing a key that is
+   * over its limit here skips Express's own work per request as well (index.ts listens with it).
+   */
+  handler: (req: IncomingMessage, res: ServerResponse) => void;
   context: AppContext;
   /** Flush usage, stop the fake SMTP server, close the database. Idempotent. */
   close(): Promise<void>;
@@ -69,6 +77,11 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   getEmbedService(context);
   getSatelliteService(context);
 
+  // Keys over their rate limit are refused first: no log line, no routing, no limiter work.
+  // The server calls the gate before Express (handler below); in-process callers get it here.
+  const keys = getKeyService(context);
+  const front = overLimitFront(getOverLimitGate(context), (text) => keys.cachedKeyIdFor(text));
+  app.use(front);
   // Request lines are logged at info; below that level the middleware would only cost time.
   if (logger.isLevelEnabled('info')) app.use(
     pinoHttp({
@@ -84,6 +97,11 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   // Before any route: a body that never arrives, and control characters in the URL.
   app.use(bodyTimeout(config.BODY_TIMEOUT_MS));
   app.use(refuseControlChars);
+
+  // Text answers (widget script, map data, JSON, pages) go out gzip- or brotli-compressed when the
+  // client accepts it; fonts and images are already compressed and are left alone (the filter
+  // looks at the content type). Answers under 1 KB are not worth it.
+  app.use(compression({ threshold: 1024 }));
 
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
@@ -111,5 +129,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     })();
     return closed;
   };
-  return { app, context, close };
+  const handler = (req: IncomingMessage, res: ServerResponse) => {
+    front(req as express.Request, res as express.Response, () => app(req, res));
+  };
+  return { app, handler, context, close };
 }

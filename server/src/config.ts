@@ -73,6 +73,8 @@ const schema = z.object({
   PAYMENTS_WEBHOOK_SECRET: z.string().optional(),
   /** How long a request body may take to arrive after its headers, ms (0 = no limit): then 408 and the connection closes. */
   BODY_TIMEOUT_MS: z.coerce.number().int().min(0).max(600_000).default(10_000),
+  /** Memory for finished /v1 track answers, MiB (least recently asked dropped first). */
+  TRACK_CACHE_MB: z.coerce.number().int().min(1).max(4096).default(64),
 });
 
 export type Config = z.infer<typeof schema> & {

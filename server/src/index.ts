@@ -3,17 +3,19 @@
  * listening, so the demo browser key can name the real port), and shut down cleanly on
  * SIGTERM / SIGINT (usage counters are flushed first).
  */
-import type { Server } from 'node:http';
+import http, { type Server } from 'node:http';
 import { createApp } from './app.ts';
 import { loadConfig, noteListening } from './config.ts';
 import { seedDemo } from './seed/demo.ts';
 
 const config = loadConfig();
-const { app, context, close } = await createApp(config);
+const { handler, context, close } = await createApp(config);
 const { logger } = context;
 
 const server: Server = await new Promise<Server>((resolve, reject) => {
-  const s = app.listen(config.PORT, config.HOST, (err?: Error) => (err ? reject(err) : resolve(s)));
+  const s = http.createServer(handler);
+  s.once('error', reject);
+  s.listen(config.PORT, config.HOST, () => resolve(s));
 });
 const address = server.address();
 const port = typeof address === 'object' && address ? address.port : config.PORT;

@@ -93,8 +93,13 @@ describe('the console against the real server', () => {
     await page.goto(`${server.url}/sign-up`);
     await page.getByLabel('Your name').fill('Rosa Vennik');
     await page.getByLabel('E-mail').fill(email);
-    await page.getByLabel('Password').fill(password);
     await page.getByLabel('Organization').fill('Vennik Outreach Lab');
+    // A common password is refused, and the form says why beside the field.
+    await page.getByLabel('Password').fill('password1234');
+    await page.getByRole('button', { name: 'Create account' }).click();
+    await page.locator('p.error', { hasText: 'too easy to guess' }).waitFor();
+    await shot(page, 'sign-up-weak-password');
+    await page.getByLabel('Password').fill(password);
     await page.getByRole('button', { name: 'Create account' }).click();
     await page.getByRole('heading', { name: 'Check your inbox' }).waitFor();
 

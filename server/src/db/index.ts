@@ -81,7 +81,9 @@ async function connect(config: DatabaseConfig, poolMax = config.DATABASE_POOL_MA
   fs.mkdirSync(config.dataDir, { recursive: true });
   const sequelize = new Sequelize({ dialect: 'sqlite', storage: config.SQLITE_FILE, logging: false, transactionType: Transaction.TYPES.IMMEDIATE });
   busyTimeoutOnEveryConnection(sequelize);
-  queueTransactions(sequelize, new WriteLock());
+  const lock = new WriteLock();
+  writeLocks.set(sequelize, lock);
+  queueTransactions(sequelize, lock);
   // WAL lets readers run while a writer writes.
   await sequelize.query('PRAGMA journal_mode = WAL;');
   await sequelize.query('PRAGMA foreign_keys = ON;');
@@ -99,6 +101,13 @@ export async function openDatabase(config: DatabaseConfig): Promise<Sequelize> {
   const sequelize = await connect(config);
   initModels(sequelize);
   return sequelize;
+}
+
+const writeLocks = new WeakMap<Sequelize, WriteLock>();
+
+/** The queue of an SQLite database's transactions (undefined on PostgreSQL). */
+export function writeLockOf(sequelize: Sequelize): WriteLock | undefined {
+  return writeLocks.get(sequelize);
 }
 
 interface SqliteConnection {

@@ -16,6 +16,7 @@
  *   resolveForReadCached(id) -> the same or undefined, without waiting (request fast path)
  *   embedOptionsSchema, embedInputSchema (zod)
  */
+import { LRUCache } from 'lru-cache';
 import { customAlphabet } from 'nanoid';
 import { z } from 'zod';
 import type { AppContext } from '../context.ts';
@@ -104,7 +105,9 @@ export function publicEmbed(e: Embed | EmbedRecord): V1Embed {
 }
 
 export class EmbedService {
-  private readonly cache = new Map<string, { record: EmbedRecord | null; at: number }>();
+  /** Embeds by id (least recently used go first); unknown ids in their own small cache, so guessed ids cannot evict real ones. */
+  private readonly cache = new LRUCache<string, { record: EmbedRecord; at: number }>({ max: 10_000 });
+  private readonly unknown = new LRUCache<string, true>({ max: 1_000, ttl: 5_000 });
 
   constructor(
     private readonly ctx: AppContext,
@@ -172,9 +175,13 @@ export class EmbedService {
     if (!/^[0-9a-z_-]{1,40}$/i.test(id)) return null;
     const hit = this.cache.get(id);
     if (hit && Date.now() - hit.at < EMBED_CACHE_TTL_MS) return hit.record;
+    if (this.unknown.has(id)) return null;
     const row = await Embed.findByPk(id);
-    const record = row ? toRecord(row) : null;
-    if (this.cache.size > 10_000) this.cache.clear();
+    if (!row) {
+      this.unknown.set(id, true);
+      return null;
+    }
+    const record = toRecord(row);
     this.cache.set(id, { record, at: Date.now() });
     return record;
   }
@@ -203,6 +210,7 @@ export class EmbedService {
   /** Drop the cached embed here and in every other process. */
   invalidate(id: string): void {
     this.cache.delete(id);
+    this.unknown.delete(id);
     invalidationBus(this.ctx).publish({ t: 'embed', id });
   }
 

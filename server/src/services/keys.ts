@@ -521,6 +521,17 @@ export class KeyService {
     return record;
   }
 
+  /**
+   * The id of a working key already cached for this exact text, without hashing or a database
+   * read; undefined otherwise (the front of the app uses it to refuse over-limit keys early).
+   */
+  cachedKeyIdFor(text: string): string | undefined {
+    const hash = this.hashes.get(text);
+    if (hash === undefined) return undefined;
+    const hit = this.byHash.get(hash);
+    return hit?.record && Date.now() - hit.at < KEY_CACHE_TTL_MS ? hit.record.id : undefined;
+  }
+
   /** How many keys each cache holds (for tests and diagnostics). */
   cacheSizes(): { known: number; unknown: number; hashes: number } {
     return { known: this.byHash.size, unknown: this.unknown.size, hashes: this.hashes.size };

@@ -15,6 +15,7 @@
  * process every change goes through SatelliteService, which invalidates at once.
  */
 import { toSatrec, type ElementSet } from '@nadirline/shared';
+import { LRUCache } from 'lru-cache';
 import type { SatRec } from 'satellite.js';
 import { ElementSetRecord, Satellite } from '../models/index.ts';
 
@@ -91,19 +92,22 @@ export function currentSetOf(r: ElementSetRecord): CurrentSet {
 }
 
 export class OrbitCache {
-  private readonly entries = new Map<string, { value: CachedSatellite | null; at: number }>();
+  /** Satellites by id (least recently used go first); unknown ids in their own small cache, so guessed ids cannot evict real ones. */
+  private readonly entries = new LRUCache<string, { value: CachedSatellite; at: number }>({ max: MAX_ENTRIES });
+  private readonly missing = new LRUCache<string, true>({ max: 1_000, ttl: 5_000 });
   private readonly loading = new Map<string, Promise<CachedSatellite | null>>();
 
   /** The cached entry without waiting: undefined when it must be loaded (call get). */
   peek(satelliteId: string): CachedSatellite | null | undefined {
     const hit = this.entries.get(satelliteId);
-    if (hit && Date.now() - hit.at < (hit.value ? ORBIT_CACHE_TTL_MS : 5_000)) return hit.value;
+    if (hit && Date.now() - hit.at < ORBIT_CACHE_TTL_MS) return hit.value;
+    if (this.missing.has(satelliteId)) return null;
     return undefined;
   }
 
   async get(satelliteId: string): Promise<CachedSatellite | null> {
-    const hit = this.entries.get(satelliteId);
-    if (hit && Date.now() - hit.at < (hit.value ? ORBIT_CACHE_TTL_MS : 5_000)) return hit.value;
+    const known = this.peek(satelliteId);
+    if (known !== undefined) return known;
     let p = this.loading.get(satelliteId);
     if (!p) {
       p = this.load(satelliteId).finally(() => this.loading.delete(satelliteId));
@@ -114,10 +118,12 @@ export class OrbitCache {
 
   invalidate(satelliteId: string): void {
     this.entries.delete(satelliteId);
+    this.missing.delete(satelliteId);
   }
 
   clear(): void {
     this.entries.clear();
+    this.missing.clear();
   }
 
   private async load(satelliteId: string): Promise<CachedSatellite | null> {
@@ -132,8 +138,8 @@ export class OrbitCache {
       }
       value = { satellite: satelliteRecord(sat), current };
     }
-    if (this.entries.size >= MAX_ENTRIES) this.entries.clear();
-    this.entries.set(satelliteId, { value, at: Date.now() });
+    if (value) this.entries.set(satelliteId, { value, at: Date.now() });
+    else this.missing.set(satelliteId, true);
     return value;
   }
 }

@@ -20,6 +20,11 @@ import {
 } from '../../services/orgs.ts';
 import { param } from './params.ts';
 import { ApiRoutes } from './routes.ts';
+import { bodyEmail, clientKey, getThrottleStore, Throttle, throttle } from '../../http/throttle.ts';
+
+/** Invitations one client may send per hour, and invitations to one address (from any organization) per hour. */
+export const INVITATIONS_PER_CLIENT_PER_HOUR = 30;
+export const INVITATIONS_PER_ADDRESS_PER_HOUR = 5;
 
 const NameBody = z.object({ name: fields.name });
 const TransferBody = z.object({ userId: z.string().min(1).max(40) });
@@ -63,7 +68,16 @@ export function orgRoutes(ctx: AppContext): ApiRoutes {
     res.json(await listMembers(orgAuth(res).organization.id));
   });
 
-  r.post('/orgs/:org/invitations', 'members.manage', async (req, res) => {
+  const store = getThrottleStore(ctx);
+  const inviteThrottle = throttle(
+    [
+      { throttle: new Throttle(store, { name: 'invite-client', limit: INVITATIONS_PER_CLIENT_PER_HOUR, windowMs: 3600_000 }), key: clientKey },
+      { throttle: new Throttle(store, { name: 'invite-address', limit: INVITATIONS_PER_ADDRESS_PER_HOUR, windowMs: 3600_000 }), key: bodyEmail },
+    ],
+    'Too many invitations sent from here or to this address.',
+  );
+
+  r.post('/orgs/:org/invitations', 'members.manage', inviteThrottle, async (req, res) => {
     const { email, role } = parseBody(InviteBody, req);
     const invitation = await inviteMember(ctx, orgAuth(res), email, role);
     res.status(201).json({ invitation });

@@ -34,6 +34,7 @@
 import type { NextFunction, Request, RequestHandler, Response } from 'express';
 import { rateLimit, type Options as RateLimitOptions } from 'express-rate-limit';
 import type { AppContext } from '../../context.ts';
+import { getOverLimitGate } from '../../http/over-limit.ts';
 import { HttpError } from '../../http/problem.ts';
 import { getEmbedService, type EmbedRecord } from '../../services/embeds.ts';
 import { getKeyService, kindOfKeyText, originAllowed, type KeyRecord } from '../../services/keys.ts';
@@ -280,9 +281,12 @@ export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>,
 
 /**
  * Per-key rate limit (limit from the key record), standard RateLimit headers, 429 problem. The
- * counters live in Redis when REDIS_URL is set (one window per key across all processes).
+ * counters live in Redis when REDIS_URL is set (one window per key across all processes). A key
+ * found over its limit is handed to the over-limit gate, which refuses the rest of its window at
+ * the front of the app (http/over-limit.ts).
  */
 export function keyRateLimit(ctx: AppContext): RequestHandler {
+  const gate = getOverLimitGate(ctx);
   const options: Partial<RateLimitOptions> = {
     ...rateLimitStore(ctx, 'key'),
     windowMs: 60_000,
@@ -295,8 +299,11 @@ export function keyRateLimit(ctx: AppContext): RequestHandler {
     legacyHeaders: false,
     identifier: 'per-key',
     validate: false,
-    handler: (_req, res, next, opts) => {
+    handler: (req, res, next, opts) => {
       const retry = res.getHeader('Retry-After');
+      const reset = (req as Request & { rateLimit?: { resetTime?: Date } }).rateLimit?.resetTime;
+      const { key } = authOf(res);
+      if (gate && reset && authOf(res).via !== 'preview') gate.block(key.id, { untilMs: reset.getTime(), limitPerMin: key.rateLimitPerMin, lastFour: key.lastFour });
       const who = authOf(res).via === 'preview' ? `The console previews of this organization allow` : 'This key allows';
       next(
         new HttpError(
