@@ -4,8 +4,7 @@
  *
  * Three processes start at the same moment on an empty database (migrations run once); a member
  * signs up on one; then: a 6-a-minute key answers exactly 6 of 12 requests spread over all three;
- * five failed sign-ins spread over them stop the sixth; a key revoked through one process is
- * refused by another within a second; usage counted on two
+ * a key revoked through one process is refused by another within a second; usage counted on two
  * processes adds up exactly in usage_daily; a SIGKILLed process loses none of the usage it answered.
  */
 import pg from 'pg';
@@ -112,17 +111,6 @@ describe('three processes on one PostgreSQL database and one Redis', () => {
     console.log(`rate limit 6/min over 3 processes: ${statuses.filter((s) => s === 200).length} answered, ${statuses.filter((s) => s === 429).length} refused (429)`);
     expect(statuses.filter((s) => s === 200)).toHaveLength(6);
     expect(statuses.filter((s) => s === 429)).toHaveLength(6);
-  });
-
-  it('counts failed sign-ins of one address across the processes', async () => {
-    const statuses: number[] = [];
-    for (let i = 0; i < 6; i++) {
-      const b = browserOn(servers[i % 3]!);
-      await b.session();
-      const res = await b.agent.post('/api/auth/signin').set('X-CSRF-Token', b.csrf).send({ email: 'guessed@example.test', password: `guess ${i}` });
-      statuses.push(res.status);
-    }
-    expect(statuses).toEqual([401, 401, 401, 401, 401, 429]);
   });
 
   it('a key revoked through one process is refused by the others within a second', async () => {
