@@ -22,7 +22,9 @@ export default defineConfig({
   },
   build: {
     outDir: 'dist',
-    emptyOutDir: true,
+    // Hashed files of earlier builds stay beside the new ones: during a rolling restart a page
+    // loaded from a process of the previous release still finds its files on the new ones.
+    emptyOutDir: false,
     target: 'es2022',
     chunkSizeWarningLimit: 400,
   },

@@ -63,7 +63,9 @@ export default defineConfig({
   build: {
     target: 'es2020',
     outDir: 'dist',
-    emptyOutDir: true,
+    // Hashed files of earlier builds stay beside the new ones: during a rolling restart a page
+    // loaded from a process of the previous release still finds its files on the new ones.
+    emptyOutDir: false,
     copyPublicDir: false,
     reportCompressedSize: true,
     // the ES module is a finished script for pages, not a library to bundle again: minify it fully

@@ -24,6 +24,7 @@ import { getPayments } from './services/payments.ts';
 import { startScheduler } from './services/scheduler.ts';
 import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
+import { connectShared } from './services/shared.ts';
 import { getUsageRecorder } from './services/usage.ts';
 
 /** Keys and one-time tokens (in queries, invitation links and their API paths) never reach the logs. */
@@ -46,6 +47,13 @@ export interface NadirlineApp {
 }
 
 export async function createApp(config: Config): Promise<NadirlineApp> {
+  const app = express();
+  app.disable('x-powered-by');
+  try {
+    app.set('trust proxy', config.trustProxy);
+  } catch (err) {
+    throw new Error(`Invalid configuration:\n  TRUST_PROXY: ${(err as Error).message}`, { cause: err });
+  }
   const logger = pino({ level: config.isTest ? 'silent' : config.LOG_LEVEL });
   const sequelize = await openDatabase(config);
   const closers: Array<() => Promise<void> | void> = [];
@@ -56,6 +64,16 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     onClose: (fn) => closers.push(fn),
     services: {},
   };
+  // Redis first (REDIS_URL): the services below keep their counters and caches in step through it.
+  try {
+    await connectShared(context);
+  } catch (err) {
+    await sequelize.close();
+    throw new Error(`Could not connect to Redis at REDIS_URL: ${(err as Error).message}`, { cause: err });
+  }
+  if (config.DATABASE_URL && !config.REDIS_URL) {
+    logger.warn('DATABASE_URL without REDIS_URL: rate limits, quota counts and caches stay in this process; run one process only, or set REDIS_URL');
+  }
   // Keys, usage, quota, satellites and embeds (the console's /api routes call them too).
   getKeyService(context);
   getUsageRecorder(context);
@@ -69,9 +87,6 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   registerNoticeJobs(context);
   if (!config.isTest) startScheduler(context);
 
-  const app = express();
-  app.disable('x-powered-by');
-  app.set('trust proxy', 'loopback');
   // Keys over their rate limit are refused first: no log line, no routing, no limiter work.
   // The server calls the gate before Express (handler below); in-process callers get it here.
   const keys = getKeyService(context);

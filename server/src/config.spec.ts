@@ -2,7 +2,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { afterEach, describe, expect, it } from 'vitest';
-import { loadConfig, noteListening, SESSION_SECRET_FILE } from './config.ts';
+import { devFakesRefused, loadConfig, noteListening, parseTrustProxy, SESSION_SECRET_FILE } from './config.ts';
 
 const dirs: string[] = [];
 function tempDir(): string {
@@ -73,5 +73,38 @@ describe('own origins', () => {
     const c = loadConfig({ ...fileIn(tempDir()), NODE_ENV: 'production', SESSION_SECRET: 'configured secret of enough length', PUBLIC_URL: 'https://track.example.org' });
     noteListening(c, 8080);
     expect(c.selfOrigins).toEqual(['https://track.example.org']);
+  });
+});
+
+const pg = 'postgres://nadirline@db.internal:5432/nadirline';
+
+describe('configuration beyond one process', () => {
+  it('reads TRUST_PROXY as express takes it: loopback by default, booleans, hop counts, lists', () => {
+    expect(loadConfig(fileIn(tempDir())).trustProxy).toEqual(['loopback']);
+    expect(parseTrustProxy('true')).toBe(true);
+    expect(parseTrustProxy('false')).toBe(false);
+    expect(parseTrustProxy('2')).toBe(2);
+    expect(parseTrustProxy(' 10.0.0.0/8, loopback ')).toEqual(['10.0.0.0/8', 'loopback']);
+  });
+
+  it('takes PostgreSQL and Redis URLs, pool and TLS settings, and refuses other URLs', () => {
+    const c = loadConfig({ ...fileIn(tempDir()), DATABASE_URL: pg, DATABASE_POOL_MAX: '20', DATABASE_SSL: 'require', REDIS_URL: 'redis://cache.internal:6379/2' });
+    expect(c).toMatchObject({ DATABASE_POOL_MAX: 20, DATABASE_SSL: 'require', REDIS_URL: 'redis://cache.internal:6379/2', REDIS_KEY_PREFIX: 'nl:', MIGRATE_ON_START: true });
+    expect(() => loadConfig({ ...fileIn(tempDir()), DATABASE_URL: 'mysql://db/x' })).toThrow(/DATABASE_URL: use a postgres:\/\//);
+    expect(() => loadConfig({ ...fileIn(tempDir()), REDIS_URL: 'http://cache' })).toThrow(/REDIS_URL: use a redis:\/\//);
+    expect(() => loadConfig({ ...fileIn(tempDir()), DATABASE_POOL_MAX: '1' })).toThrow(/DATABASE_POOL_MAX/);
+    expect(() => loadConfig({ ...fileIn(tempDir()), DATABASE_SSL: 'maybe' })).toThrow(/DATABASE_SSL/);
+  });
+
+  it('refuses the fake SMTP server and the demo seed on a production database', () => {
+    const prod = { NODE_ENV: 'production', SESSION_SECRET: 'a-production-secret-of-32-chars!', DATABASE_URL: pg };
+    expect(() => loadConfig({ ...fileIn(tempDir()), ...prod })).toThrow(/SMTP_URL: required in production with DATABASE_URL/);
+    expect(() => loadConfig({ ...fileIn(tempDir()), ...prod, SMTP_URL: 'smtp://relay.internal:587', DEMO: 'true' })).toThrow(/DEMO: the demo seed does not run in production/);
+    const ok = loadConfig({ ...fileIn(tempDir()), ...prod, SMTP_URL: 'smtp://relay.internal:587' });
+    expect(devFakesRefused(ok)).toMatch(/shared database/);
+    // Development and tests on PostgreSQL keep the fakes; production on SQLite too.
+    expect(devFakesRefused(loadConfig({ ...fileIn(tempDir()), DATABASE_URL: pg }))).toBeNull();
+    expect(devFakesRefused(loadConfig({ ...fileIn(tempDir()), NODE_ENV: 'test', DATABASE_URL: pg }))).toBeNull();
+    expect(devFakesRefused(loadConfig({ ...fileIn(tempDir()), NODE_ENV: 'production', SESSION_SECRET: 'a-production-secret-of-32-chars!' }))).toBeNull();
   });
 });

@@ -49,7 +49,7 @@ async function cannon(tg: Target, seconds: number): Promise<Figures> {
 }
 
 /** A bare Express route in its own process; resolves with its port and a stop function. */
-async function startBare(): Promise<{ port: number; stop: () => void }> {
+export async function startBare(): Promise<{ port: number; stop: () => void }> {
   const code = `
     import express from 'express';
     const app = express();

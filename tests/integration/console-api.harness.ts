@@ -14,6 +14,7 @@ import request from 'supertest';
 import type { Response } from 'supertest';
 import { createApp, type NadirlineApp } from '@nadirline/server/app';
 import { loadConfig } from '@nadirline/server/config';
+import { testStores } from '../support/stores.ts';
 
 export interface MailboxMessage {
   id: number;
@@ -38,8 +39,13 @@ export interface TestApp extends NadirlineApp {
 
 export async function startTestApp(env: Record<string, string> = {}): Promise<TestApp> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-console-api-'));
-  const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'test.sqlite'), PUBLIC_URL: 'http://console.test', LOG_LEVEL: 'silent', DEMO: 'false', TRUST_PROXY: 'loopback', ...env });
-  const built = await createApp(config);
+  const stores = await testStores();
+  const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'test.sqlite'), PUBLIC_URL: 'http://console.test', LOG_LEVEL: 'silent', DEMO: 'false', TRUST_PROXY: 'loopback', ...stores.env, ...env });
+  const built = await createApp(config).catch(async (err: unknown) => {
+    await stores.drop();
+    fs.rmSync(dir, { recursive: true, force: true });
+    throw err;
+  });
   const t: TestApp = {
     ...built,
     dir,
@@ -60,6 +66,7 @@ export async function startTestApp(env: Record<string, string> = {}): Promise<Te
     },
     async close() {
       await built.close();
+      await stores.drop();
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };

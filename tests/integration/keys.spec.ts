@@ -285,7 +285,7 @@ describe('rate limits and quota', () => {
     const used = await quota.usedThisMonth(t.orgId);
     const day = new Date().toISOString().slice(0, 10);
     await UsageDaily.create({ organizationId: t.orgId, apiKeyId: t.serverKeyId, endpoint: 'GET /v1/earlier', day, count: limit - used - 1 });
-    quota.invalidatePlan(t.orgId);
+    await quota.reloadMonth(t.orgId);
     await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.serverKey}`).expect(200);
     const res = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${t.serverKey}`);
     expectProblem(res, 429, 'quota-exceeded');

@@ -127,7 +127,7 @@ describe('usage written on SIGTERM by the real server', () => {
   });
 
   it('flushes the counters when the process is told to stop, long before the interval', async () => {
-    server = await startServer({ env: { USAGE_FLUSH_MS: '60000' } });
+    server = await startServer({ env: { USAGE_FLUSH_MS: '60000' }, keepStores: true });
     const { serverKey, satellites } = server.credentials;
     const id = satellites[0]!.id;
     for (let i = 0; i < 7; i++) {
@@ -136,19 +136,23 @@ describe('usage written on SIGTERM by the real server', () => {
     }
     const code = await server.stop();
     expect(code).toBe(0);
-    const db = new Sequelize({ dialect: 'sqlite', storage: server.sqliteFile, logging: false });
+    // The same SQL on both runs: camelCase columns quoted, as PostgreSQL needs.
+    const db = server.stores.databaseUrl
+      ? new Sequelize(server.stores.databaseUrl, { logging: false })
+      : new Sequelize({ dialect: 'sqlite', storage: server.sqliteFile, logging: false });
     try {
-      const rows = await db.query<{ endpoint: string; count: number }>('SELECT endpoint, count FROM usage_daily', { type: QueryTypes.SELECT });
+      const rows = await db.query<{ endpoint: string; count: number }>('SELECT "endpoint", "count" FROM usage_daily', { type: QueryTypes.SELECT });
       expect(rows).toEqual([{ endpoint: 'GET /v1/satellites/{id}/position', count: 7 }]);
-      const used = await db.query<{ lastUsedAt: string | null }>('SELECT lastUsedAt FROM api_keys WHERE lastUsedAt IS NOT NULL', { type: QueryTypes.SELECT });
+      const used = await db.query<{ lastUsedAt: string | null }>('SELECT "lastUsedAt" FROM api_keys WHERE "lastUsedAt" IS NOT NULL', { type: QueryTypes.SELECT });
       expect(used).toHaveLength(1);
     } finally {
       await db.close();
+      await server.stores.drop();
     }
   });
 
   it('keeps the demo data on a second start and lets the demo keys read tracks', async () => {
-    server = await startServer();
+    server = await startServer({ keepStores: true });
     const first = server.credentials;
     const dataDir = server.dataDir;
     const track = await fetch(`${server.url}/v1/satellites/${first.satellites[0]!.id}/track`, { headers: { Authorization: `Bearer ${first.serverKey}` } });
@@ -160,7 +164,7 @@ describe('usage written on SIGTERM by the real server', () => {
     expect(((await viaBrowser.json()) as { satellites: unknown[] }).satellites).toHaveLength(4);
     await server.stop();
 
-    server = await startServer({ dataDir });
+    server = await startServer({ dataDir, stores: server.stores });
     expect(server.credentials.users).toEqual(first.users);
     expect(server.credentials.serverKey).toBe(first.serverKey);
     expect(server.credentials.browserKey).toBe(first.browserKey);

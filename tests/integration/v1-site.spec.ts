@@ -13,20 +13,24 @@ import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import { createApp, type NadirlineApp } from '@nadirline/server/app';
 import { loadConfig, repoRoot } from '@nadirline/server/config';
 import { seedDemo, type DemoCredentials } from '@nadirline/server/seed/demo.ts';
+import { testStores, type TestStores } from '../support/stores.ts';
 
 let t: NadirlineApp;
 let dir: string;
 let creds: DemoCredentials;
+let stores: TestStores | undefined;
 const widgetBuilt = fs.existsSync(path.join(repoRoot, 'widget', 'dist', 'nadir-track.js'));
 const consoleBuilt = fs.existsSync(path.join(repoRoot, 'console', 'dist', 'index.html'));
 
 beforeAll(async () => {
   dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-site-'));
-  t = await createApp(loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'site.sqlite'), LOG_LEVEL: 'silent', DEMO: 'true', PORT: '8080' }));
+  stores = await testStores();
+  t = await createApp(loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'site.sqlite'), LOG_LEVEL: 'silent', DEMO: 'true', PORT: '8080', ...stores.env }));
   creds = (await seedDemo(t.context, { port: 8080 })).credentials;
 });
 afterAll(async () => {
   await t?.close();
+  await stores?.drop();
   fs.rmSync(dir, { recursive: true, force: true });
 });
 

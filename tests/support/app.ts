@@ -17,6 +17,7 @@ import { Organization, Satellite, type Plan } from '@nadirline/server/models/ind
 import { getEmbedService } from '@nadirline/server/services/embeds.ts';
 import { getKeyService, type CreateKeyInput } from '@nadirline/server/services/keys.ts';
 import { getSatelliteService } from '@nadirline/server/services/satellites.ts';
+import { testStores } from './stores.ts';
 
 export const PAGE_ORIGIN = 'https://pages.example.org';
 export const WILDCARD_ORIGIN = 'https://*.example.net';
@@ -84,8 +85,13 @@ export interface KeyedTestApp extends NadirlineApp {
 export async function startKeyedApp(env: Record<string, string> = {}, opts: { plan?: Plan } = {}): Promise<KeyedTestApp> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-v1-'));
   const sqliteFile = path.join(dir, 'test.sqlite');
-  const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: sqliteFile, PUBLIC_URL: 'http://nadirline.test', LOG_LEVEL: 'silent', DEMO: 'false', ...env });
-  const built = await createApp(config);
+  const stores = await testStores();
+  const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: sqliteFile, PUBLIC_URL: 'http://nadirline.test', LOG_LEVEL: 'silent', DEMO: 'false', ...stores.env, ...env });
+  const built = await createApp(config).catch(async (err: unknown) => {
+    await stores.drop();
+    fs.rmSync(dir, { recursive: true, force: true });
+    throw err;
+  });
   const ctx = built.context;
   const keys = getKeyService(ctx);
   const sats = getSatelliteService(ctx);
@@ -123,6 +129,7 @@ export async function startKeyedApp(env: Record<string, string> = {}, opts: { pl
     },
     async close() {
       await built.close();
+      await stores.drop();
       fs.rmSync(dir, { recursive: true, force: true });
     },
   };

@@ -15,6 +15,7 @@ import fs from 'node:fs';
 import os from 'node:os';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { testStores, type TestStores } from './stores.ts';
 
 export const repoRoot = path.resolve(path.dirname(fileURLToPath(import.meta.url)), '..', '..');
 
@@ -34,6 +35,8 @@ export interface StartedServer {
   pid: number;
   dataDir: string;
   sqliteFile: string;
+  /** The PostgreSQL database and Redis prefix of this server on the pg-redis run (env empty on SQLite). */
+  stores: TestStores;
   /** Demo credentials (null, despite the type, when DEMO is off). */
   credentials: DemoCredentials;
   /** Everything the child printed so far (stdout and stderr). */
@@ -48,11 +51,18 @@ export interface StartOptions {
   dataDir?: string;
   /** How long to wait for the "running at" line, ms (default 60 s). */
   timeoutMs?: number;
+  /**
+   * Database and Redis prefix to use (a second server on the same data). Default: a new one on the
+   * pg-redis run (tests/support/stores.ts), none on SQLite. stop() drops them unless keepStores.
+   */
+  stores?: TestStores;
+  keepStores?: boolean;
 }
 
 export async function startServer(options: StartOptions = {}): Promise<StartedServer> {
   const dataDir = options.dataDir ?? fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-test-'));
   const sqliteFile = path.join(dataDir, 'nadirline.sqlite');
+  const stores = options.stores ?? (await testStores());
   const env: Record<string, string> = {};
   for (const [k, v] of Object.entries(process.env)) if (v !== undefined && !k.startsWith('VITEST') && k !== 'NODE_OPTIONS') env[k] = v;
   Object.assign(env, {
@@ -62,6 +72,7 @@ export async function startServer(options: StartOptions = {}): Promise<StartedSe
     SQLITE_FILE: sqliteFile,
     DEMO: 'true',
     LOG_LEVEL: 'warn',
+    ...stores.env,
   });
   for (const [k, v] of Object.entries(options.env ?? {})) {
     if (v === undefined) delete env[k];
@@ -112,17 +123,22 @@ export async function startServer(options: StartOptions = {}): Promise<StartedSe
     pid: child.pid ?? -1,
     dataDir,
     sqliteFile,
+    stores,
     credentials,
     output: () => out,
     stop(timeoutMs = 15_000) {
       stopping ??= (async () => {
-        if (child.exitCode !== null || child.signalCode !== null) return child.exitCode;
+        if (child.exitCode !== null || child.signalCode !== null) {
+          if (!options.keepStores) await stores.drop();
+          return child.exitCode;
+        }
         if (child.pid) process.kill(child.pid, 'SIGTERM');
         const timer = setTimeout(() => {
           if (child.pid && child.exitCode === null) process.kill(child.pid, 'SIGKILL');
         }, timeoutMs);
         const code = await exited;
         clearTimeout(timer);
+        if (!options.keepStores) await stores.drop();
         return code;
       })();
       return stopping;

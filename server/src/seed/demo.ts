@@ -20,6 +20,7 @@ import crypto from 'node:crypto';
 import fs from 'node:fs';
 import path from 'node:path';
 import { fromKeplerian, gmstRad, subsolarPoint, type ElementSet } from '@nadirline/shared';
+import { devFakesRefused } from '../config.ts';
 import type { AppContext } from '../context.ts';
 import { ApiKey, Embed, Membership, Organization, Satellite, User, type Role } from '../models/index.ts';
 import { hashPassword } from '../services/accounts.ts';
@@ -143,6 +144,8 @@ export async function seedDemo(
   ctx: AppContext,
   opts: { port: number; now?: Date },
 ): Promise<{ created: boolean; credentials: DemoCredentials; credentialsFile: string }> {
+  const refused = devFakesRefused(ctx.config);
+  if (refused) throw new Error(`The demo seed does not run here: ${refused}.`);
   const now = opts.now ?? new Date();
   const credentialsFile = path.join(ctx.config.dataDir, 'demo-credentials.json');
   const keys = getKeyService(ctx);

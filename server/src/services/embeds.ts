@@ -23,6 +23,7 @@ import { z } from 'zod';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, Embed, Satellite } from '../models/index.ts';
+import { invalidationBus } from './shared.ts';
 import { assertKeyWorks, getKeyService, type KeyRecord, type KeyService } from './keys.ts';
 import type { SavedEmbed, V1Embed } from '@nadirline/shared/contract';
 
@@ -135,9 +136,16 @@ export class EmbedService {
   private readonly unknown = new LRUCache<string, true>({ max: 1_000, ttl: 5_000 });
 
   constructor(
-    _ctx: AppContext,
+    private readonly ctx: AppContext,
     private readonly keys: KeyService,
-  ) {}
+  ) {
+    invalidationBus(ctx).on((msg) => {
+      if (msg.t === 'embed') this.cache.delete(msg.id);
+      else if (msg.t === 'org') {
+        for (const [id, e] of this.cache) if (e.record?.organizationId === msg.orgId) this.cache.delete(id);
+      } else if (msg.t === 'all') this.cache.clear();
+    });
+  }
 
   listEmbeds(orgId: string): Promise<Embed[]> {
     return Embed.findAll({ where: { organizationId: orgId }, order: [['updatedAt', 'DESC']] });
@@ -178,14 +186,14 @@ export class EmbedService {
       ...(v.options !== undefined ? { options: v.options } : {}),
       ...(v.apiKeyId !== undefined ? { apiKeyId: v.apiKeyId } : {}),
     });
-    this.cache.delete(id);
+    this.invalidate(id);
     return e;
   }
 
   async deleteEmbed(orgId: string, id: string): Promise<void> {
     const e = await this.getEmbed(orgId, id);
     await e.destroy();
-    this.cache.delete(id);
+    this.invalidate(id);
   }
 
   /** The embed (cached), or null. */
@@ -226,9 +234,11 @@ export class EmbedService {
     return { embed: hit.record, key };
   }
 
+  /** Drop the cached embed here and in every other process. */
   invalidate(id: string): void {
     this.cache.delete(id);
     this.unknown.delete(id);
+    invalidationBus(this.ctx).publish({ t: 'embed', id });
   }
 
   /** Drop every cached embed (after a rotation moved embeds to a new key). */

@@ -20,18 +20,26 @@
  *   originAllowed(record, origin) / normalizeOrigin(text)      (module functions)
  *
  * Records are cached in-process by hash and by id (KEY_CACHE_TTL_MS, least recently used evicted
- * first; unknown keys in a separate small cache, so guessed keys cannot evict working ones); rotate, revoke and update
- * drop the cached entries at once. lastUsedAt is kept in memory and written in one batch every
- * flush interval and on close: no database write on the request path.
+ * first; unknown keys in a separate small cache, so guessed keys cannot evict working ones);
+ * create, rotate, revoke and update drop the cached entries at once, here and (over the
+ * invalidation channel, services/shared.ts) in every other process. lastUsedAt is kept in memory
+ * and written in one batch every flush interval and on close: no database write on the request
+ * path. The write only moves it forward, so processes flushing in any order never set it back.
+ *
+ * A key is rotated at most once: the replacement is stored only if the old key's row still has
+ * no replacement when it is updated (a conditional UPDATE in the same transaction), so two
+ * rotations at the same moment, on one process or two, give one new key and one 409.
  */
 import crypto from 'node:crypto';
 import { LRUCache } from 'lru-cache';
 import { nanoid } from 'nanoid';
+import { Op } from 'sequelize';
 import { z } from 'zod';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, Embed, KEY_KINDS, KEY_SCOPES, Organization, type KeyKind, type KeyScope } from '../models/index.ts';
 import { planOf } from './quota.ts';
+import { invalidationBus } from './shared.ts';
 import type { ApiKey as ApiKeyJson, KeyState as KeyStateOfContract } from '@nadirline/shared/contract';
 
 export const KEY_PREFIX: Record<KeyKind, string> = { browser: 'nlb_', server: 'nls_' };
@@ -322,6 +330,15 @@ export class KeyService {
   private timer: NodeJS.Timeout | undefined;
 
   constructor(private readonly ctx: AppContext) {
+    invalidationBus(ctx).on((msg) => {
+      if (msg.t === 'key') this.forget(msg);
+      else if (msg.t === 'org') this.forgetOrganization(msg.orgId);
+      else if (msg.t === 'all') {
+        this.byHash.clear();
+        this.byId.clear();
+        this.unknown.clear();
+      }
+    });
     this.timer = setInterval(() => void this.flushLastUsed(), ctx.config.USAGE_FLUSH_MS);
     this.timer.unref();
     ctx.onClose(async () => {
@@ -421,7 +438,13 @@ export class KeyService {
         },
         { transaction },
       );
-      await old.update({ replacedById: created.id, replacedAt: new Date(now), retireQuietMinutes: quietMinutes, graceUntil: retireBy }, { transaction });
+      // Only if no other rotation got there first (this process or another): at most one replacement.
+      const [changed] = await ApiKey.update(
+        { replacedById: created.id, replacedAt: new Date(now), retireQuietMinutes: quietMinutes, graceUntil: retireBy },
+        { where: { id: old.id, replacedById: null, revokedAt: null }, transaction },
+      );
+      if (changed !== 1) throw new HttpError('conflict', 'This key was rotated or revoked meanwhile; reload the key list to see its replacement.');
+      await old.reload({ transaction });
       const [moved] = await Embed.update({ apiKeyId: created.id }, { where: { apiKeyId: old.id, organizationId: old.organizationId }, transaction });
       return { key: created, embedsMoved: moved };
     });
@@ -464,7 +487,10 @@ export class KeyService {
   async revokeKey(id: string): Promise<ApiKey> {
     const key = await ApiKey.findByPk(id);
     if (!key) throw new HttpError('not-found', `Key ${id} does not exist.`);
-    if (!key.revokedAt) await key.update({ revokedAt: new Date() });
+    if (!key.revokedAt) {
+      await ApiKey.update({ revokedAt: new Date() }, { where: { id, revokedAt: null } });
+      await key.reload();
+    }
     this.invalidate(key);
     return key;
   }
@@ -542,11 +568,23 @@ export class KeyService {
     return hit?.record && Date.now() - hit.at < KEY_CACHE_TTL_MS ? hit.record : undefined;
   }
 
-  /** Drop cached entries of a key (after any change made outside this service). */
+  /** Drop cached entries of a key here and in every other process (after any change to it). */
   invalidate(key: { id: string; hash: string }): void {
+    this.forget(key);
+    invalidationBus(this.ctx).publish({ t: 'key', id: key.id, hash: key.hash });
+  }
+
+  /** Drop this process's cached entries of a key. */
+  forget(key: { id: string; hash: string }): void {
     this.byHash.delete(key.hash);
     this.byId.delete(key.id);
     this.unknown.delete(key.hash);
+  }
+
+  /** Drop every cached key of an organization (it was deleted). */
+  forgetOrganization(orgId: string): void {
+    for (const [hash, e] of [...this.byHash.entries()]) if (e.record?.organizationId === orgId) this.byHash.delete(hash);
+    for (const [id, e] of [...this.byId.entries()]) if (e.record?.organizationId === orgId) this.byId.delete(id);
   }
 
   serializeKey(key: ApiKey | KeyRecord, now: Date = new Date()): KeyJson {
@@ -559,7 +597,8 @@ export class KeyService {
     this.pendingUse.clear();
     try {
       for (const [id, at] of batch) {
-        await ApiKey.update({ lastUsedAt: new Date(at) }, { where: { id }, silent: true });
+        const when = new Date(at);
+        await ApiKey.update({ lastUsedAt: when }, { where: { id, [Op.or]: [{ lastUsedAt: null }, { lastUsedAt: { [Op.lt]: when } }] }, silent: true });
       }
     } catch (err) {
       for (const [id, at] of batch) if (!this.pendingUse.has(id)) this.pendingUse.set(id, at);

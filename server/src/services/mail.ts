@@ -13,6 +13,7 @@
  */
 import { createTransport, type Transporter } from 'nodemailer';
 import { SMTPServer } from 'smtp-server';
+import { devFakesRefused } from '../config.ts';
 import type { AppContext } from '../context.ts';
 
 declare module '../context.ts' {
@@ -126,6 +127,8 @@ export async function getMailService(ctx: AppContext): Promise<MailService> {
   if (config.SMTP_URL) {
     transport = createTransport(config.SMTP_URL);
   } else {
+    const refused = devFakesRefused(config);
+    if (refused) throw new Error(`The fake SMTP server does not run here: ${refused}. Set SMTP_URL to a real relay.`);
     mailbox = new FakeMailbox();
     const port = await mailbox.start(config.FAKE_SMTP_PORT);
     logger.info({ port }, 'fake SMTP server listening; messages at /dev/mailbox');

@@ -22,6 +22,7 @@ import { HttpError } from '../http/problem.ts';
 import type { OrgAuth } from '../http/roles.ts';
 import { Invitation, Membership, Organization, User, type Plan, type Role } from '../models/index.ts';
 import { recordAudit } from './audit.ts';
+import { invalidationBus } from './shared.ts';
 import { getMailService, invitationMail } from './mail.ts';
 import type { InvitationPreview, Invitation as InvitationOfContract, Member as MemberOfContract, Organization as OrganizationOfContract } from '@nadirline/shared/contract';
 
@@ -66,6 +67,10 @@ export async function renameOrganization(ctx: AppContext, auth: OrgAuth, name: s
 export async function deleteOrganization(ctx: AppContext, auth: OrgAuth): Promise<void> {
   ctx.logger.info({ organizationId: auth.organization.id, by: auth.user.id }, 'organization deleted');
   await auth.organization.destroy();
+  // Its keys, embeds and satellites went with it (cascade): no process may keep answering for them.
+  const bus = invalidationBus(ctx);
+  bus.dispatch({ t: 'org', orgId: auth.organization.id });
+  bus.publish({ t: 'org', orgId: auth.organization.id });
 }
 
 export async function transferOwnership(ctx: AppContext, auth: OrgAuth, toUserId: string): Promise<void> {
@@ -162,12 +167,16 @@ export async function describeInvitation(token: string): Promise<InvitationPrevi
 
 /** Makes `user` a member per the invitation (keeps a higher existing role) and marks it accepted. */
 export async function acceptInvitationForUser(ctx: AppContext, invitation: Invitation, user: User, transaction: Transaction): Promise<Membership> {
+  // Accepted once: only the request that finds it still open marks it (two tabs or two processes
+  // at the same moment: the second gets invalid-token "used" and nothing of it is kept).
+  const acceptedAt = new Date();
+  const [marked] = await Invitation.update({ acceptedAt }, { where: { id: invitation.id, acceptedAt: null }, transaction });
+  if (marked !== 1) throw new HttpError('invalid-token', 'This invitation was already accepted.', { reason: 'used' });
+  invitation.acceptedAt = acceptedAt;
   let membership = await Membership.findOne({ where: { organizationId: invitation.organizationId, userId: user.id }, transaction });
   if (!membership) {
     membership = await Membership.create({ id: nanoid(), organizationId: invitation.organizationId, userId: user.id, role: invitation.role }, { transaction });
   }
-  invitation.acceptedAt = new Date();
-  await invitation.save({ transaction });
   await recordAudit(
     ctx,
     { organizationId: invitation.organizationId, actorUserId: user.id, action: 'member.join', targetType: 'member', targetId: user.id, detail: { email: user.email, role: membership.role, invitationId: invitation.id } },

@@ -12,12 +12,18 @@
  *   monthStart(now) / nextMonthStart(now) -> Date (UTC)
  *
  * The month total comes from UsageDaily once per QUOTA_CACHE_TTL_MS per organization; what this
- * process counted and had not flushed at that read is added from the usage recorder.
+ * process counted and had not flushed at that read is added from the usage recorder. With
+ * REDIS_URL the month total is the organization's counter in Redis (usage.ts countShared), which
+ * every process increments, so the quota holds across processes.
+ *
+ * Plans are cached per process for QUOTA_CACHE_TTL_MS; a plan change is published on the
+ * invalidation channel (services/shared.ts), so every process drops its copy at once.
  */
 import { Op } from 'sequelize';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { Organization, UsageDaily, type Plan } from '../models/index.ts';
+import { invalidationBus } from './shared.ts';
 import { getUsageRecorder, utcDay, type UsageRecorder } from './usage.ts';
 
 export interface PlanInfo {
@@ -78,7 +84,21 @@ export class QuotaService {
   constructor(
     private readonly ctx: AppContext,
     private readonly usage: UsageRecorder,
-  ) {}
+  ) {
+    invalidationBus(ctx).on((msg) => {
+      if (msg.t === 'plan' || msg.t === 'org') this.forget(msg.orgId);
+      else if (msg.t === 'all') {
+        this.plans.clear();
+        this.months.clear();
+      }
+    });
+  }
+
+  /** The plan of an organization when cached (no wait), else undefined. */
+  cachedPlan(orgId: string): Plan | undefined {
+    const hit = this.plans.get(orgId);
+    return hit && Date.now() - hit.at < QUOTA_CACHE_TTL_MS ? hit.plan : undefined;
+  }
 
   async planFor(orgId: string): Promise<Plan> {
     const hit = this.plans.get(orgId);
@@ -89,13 +109,29 @@ export class QuotaService {
     return plan;
   }
 
+  /** After a plan change: this process drops the cached plan at once, the others when the message reaches them. */
   invalidatePlan(orgId: string): void {
+    this.forget(orgId);
+    invalidationBus(this.ctx).publish({ t: 'plan', orgId });
+  }
+
+  /**
+   * Read the month total from the database again (after usage_daily was restored or corrected by
+   * hand): at once in memory mode; with Redis, the shared month counter is started again from it.
+   */
+  async reloadMonth(orgId: string, now: Date = new Date()): Promise<void> {
+    this.months.delete(orgId);
+    if (this.usage.shared) await this.usage.resyncMonth(orgId, monthKey(now));
+  }
+
+  private forget(orgId: string): void {
     this.plans.delete(orgId);
     this.months.delete(orgId);
   }
 
   async usedThisMonth(orgId: string, now: Date = new Date()): Promise<number> {
     const month = monthKey(now);
+    if (this.usage.shared) return this.usage.sharedMonthCount(orgId, month);
     let c = this.months.get(orgId);
     if (!c || c.month !== month || Date.now() - c.at >= QUOTA_CACHE_TTL_MS) {
       c = await this.readMonth(orgId, now);
@@ -130,16 +166,28 @@ export class QuotaService {
   /** Throws quota-exceeded when the organization has used its month; returns the status otherwise. */
   async check(orgId: string, now: Date = new Date()): Promise<QuotaStatus> {
     const s = await this.status(orgId, now);
-    if (s.usedThisMonth >= s.limit) {
-      const retryAfter = Math.max(1, Math.ceil((Date.parse(s.resetsAt) - now.getTime()) / 1000));
-      throw new HttpError(
-        'quota-exceeded',
-        `This organization has used all ${s.limit.toLocaleString('en')} requests of its ${planOf(s.plan).name} plan for this month. The quota resets on ${s.resetsAt}; a larger plan raises it at once.`,
-        { limit: s.limit, used: s.usedThisMonth, resetsAt: s.resetsAt, plan: s.plan },
-        { 'Retry-After': String(retryAfter) },
-      );
-    }
+    if (s.usedThisMonth >= s.limit) throw quotaExceeded(s, now);
     return s;
+  }
+
+  /**
+   * Redis mode: count the request against the month (atomically across processes) or throw
+   * quota-exceeded when the month is spent.
+   */
+  async countOrRefuse(orgId: string, keyId: string, endpoint: string, nowMs: number): Promise<void> {
+    const plan = planOf(this.cachedPlan(orgId) ?? (await this.planFor(orgId)));
+    let r: { counted: boolean; used: number };
+    try {
+      r = await this.usage.countShared(orgId, keyId, endpoint, nowMs, plan.monthlyRequests);
+    } catch (err) {
+      this.ctx.logger.error({ err }, 'could not count a request in Redis');
+      // Nothing is answered that could not be counted.
+      throw new HttpError('unavailable', 'Nadirline cannot count this request right now (its shared counter store does not answer). Try again in a few seconds.', {}, { 'Retry-After': '5' });
+    }
+    if (!r.counted) {
+      const now = new Date(nowMs);
+      throw quotaExceeded({ plan: plan.id, limit: plan.monthlyRequests, usedThisMonth: r.used, resetsAt: nextMonthStart(now).toISOString() }, now);
+    }
   }
 
   private readMonth(orgId: string, now: Date): Promise<MonthCache> {
@@ -162,6 +210,17 @@ export class QuotaService {
     }
     return p;
   }
+}
+
+/** The quota-exceeded problem for a spent month. */
+function quotaExceeded(s: QuotaStatus, now: Date): HttpError {
+  const retryAfter = Math.max(1, Math.ceil((Date.parse(s.resetsAt) - now.getTime()) / 1000));
+  return new HttpError(
+    'quota-exceeded',
+    `This organization has used all ${s.limit.toLocaleString('en')} requests of its ${planOf(s.plan).name} plan for this month. The quota resets on ${s.resetsAt}; a larger plan raises it at once.`,
+    { limit: s.limit, used: s.usedThisMonth, resetsAt: s.resetsAt, plan: s.plan },
+    { 'Retry-After': String(retryAfter) },
+  );
 }
 
 declare module '../context.ts' {

@@ -49,6 +49,7 @@ import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { ApiKey, ElementSetRecord, Organization, Satellite, User } from '../models/index.ts';
 import { OrbitCache, parsedOf, type CachedSatellite, type CurrentSet } from './orbit-cache.ts';
+import { invalidationBus } from './shared.ts';
 import type { V1ElementSetSummary, V1Satellite } from '@nadirline/shared/contract';
 
 export const MAX_ELEMENT_TEXT_CHARS = 2_000_000;
@@ -173,7 +174,18 @@ function formatFromFileName(name: string): ElementFormat | undefined {
 export class SatelliteService {
   readonly cache = new OrbitCache();
 
-  constructor(private readonly ctx: AppContext) {}
+  constructor(private readonly ctx: AppContext) {
+    invalidationBus(ctx).on((msg) => {
+      if (msg.t === 'satellite') this.cache.invalidate(msg.id);
+      else if (msg.t === 'org' || msg.t === 'all') this.cache.clear();
+    });
+  }
+
+  /** Drop the cached satellite and current set here and in every other process. */
+  private changed(satelliteId: string): void {
+    this.cache.invalidate(satelliteId);
+    invalidationBus(this.ctx).publish({ t: 'satellite', id: satelliteId });
+  }
 
   listSatellites(orgId: string): Promise<Satellite[]> {
     return Satellite.findAll({ where: { organizationId: orgId }, order: [['name', 'ASC']] });
@@ -228,7 +240,7 @@ export class SatelliteService {
     }
     if (input.description !== undefined) patch.description = input.description.slice(0, 5000);
     await s.update(patch);
-    this.cache.invalidate(id);
+    this.changed(id);
     return s;
   }
 
@@ -238,7 +250,7 @@ export class SatelliteService {
       await ElementSetRecord.destroy({ where: { satelliteId: id }, transaction });
       await s.destroy({ transaction });
     });
-    this.cache.invalidate(id);
+    this.changed(id);
   }
 
   /** Parse and store element sets for a satellite; bad entries are reported, good ones kept. */
@@ -516,7 +528,7 @@ export class SatelliteService {
         await satellite.update({ currentElementSetId: latest?.id ?? null, catalogNumber: catalog }, { transaction });
       }
     });
-    this.cache.invalidate(satellite.id);
+    this.changed(satellite.id);
     const accepted = report.filter((r) => r.ok).length;
     const duplicates = report.filter((r) => r.ok && r.duplicate).length;
     return { report, accepted, duplicates, rejected: report.length - accepted, created };

@@ -21,6 +21,7 @@ import {
   updateProfile,
   verifyEmail,
 } from '../../services/accounts.ts';
+import { rateLimitStore } from '../../services/shared.ts';
 import { afterResponse } from '../../services/after-response.ts';
 import { ApiRoutes } from './routes.ts';
 
@@ -73,7 +74,9 @@ function tooMany(what: string) {
 export function accountRoutes(ctx: AppContext): ApiRoutes {
   const r = new ApiRoutes();
 
+  // Counters in Redis when REDIS_URL is set, so every process counts the same tries.
   const signinLimiter = rateLimit({
+    ...rateLimitStore(ctx, 'signin'),
     windowMs: SIGNIN_WINDOW_MS,
     limit: SIGNIN_MAX_FAILURES,
     skipSuccessfulRequests: true,
@@ -83,6 +86,7 @@ export function accountRoutes(ctx: AppContext): ApiRoutes {
     handler: tooMany('Too many failed sign-in attempts for this address.'),
   });
   const mailLimiter = rateLimit({
+    ...rateLimitStore(ctx, 'mail'),
     windowMs: SIGNIN_WINDOW_MS,
     limit: MAIL_REQUESTS_PER_WINDOW,
     standardHeaders: 'draft-8',

@@ -40,6 +40,7 @@ import { getEmbedService, type EmbedRecord } from '../../services/embeds.ts';
 import { getKeyService, kindOfKeyText, originAllowed, type KeyRecord } from '../../services/keys.ts';
 import { isPreviewTokenText, PREVIEW_RATE_LIMIT_PER_MIN, verifyPreviewToken } from '../../services/preview-token.ts';
 import { getQuotaService } from '../../services/quota.ts';
+import { rateLimitStore, type SharedRedis } from '../../services/shared.ts';
 import { getUsageRecorder } from '../../services/usage.ts';
 import type { Access } from '@nadirline/shared/contract';
 
@@ -281,13 +282,15 @@ export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>,
 }
 
 /**
- * Per-key rate limit (limit from the key record), standard RateLimit headers, 429 problem. A key
+ * Per-key rate limit (limit from the key record), standard RateLimit headers, 429 problem. The
+ * counters live in Redis when REDIS_URL is set (one window per key across all processes). A key
  * found over its limit is handed to the over-limit gate, which refuses the rest of its window at
  * the front of the app (http/over-limit.ts).
  */
-export function keyRateLimit(ctx?: AppContext): RequestHandler {
-  const gate = ctx ? getOverLimitGate(ctx) : undefined;
+export function keyRateLimit(ctx: AppContext): RequestHandler {
+  const gate = getOverLimitGate(ctx);
   const options: Partial<RateLimitOptions> = {
+    ...rateLimitStore(ctx, 'key'),
     windowMs: 60_000,
     limit: (_req: Request, res: Response) => authOf(res).key.rateLimitPerMin,
     keyGenerator: (_req: Request, res: Response) => authOf(res).key.id,
@@ -324,9 +327,16 @@ export const FAILED_AUTH_LIMIT_PER_MIN = 300;
  * FAILED_AUTH_LIMIT_PER_MIN failed credentials a minute; past that, credentials that are not
  * already cached answer 429 until the minute is over. Working (cached) keys are never slowed, so
  * many readers behind one address are not punished for one bad page.
+ *
+ * With Redis, every failure is also counted there (one counter per address and minute for all
+ * processes), and the count Redis answers becomes this process's count: a guesser spread over
+ * several processes by a load balancer meets the same limit. check() stays synchronous (no
+ * round trip before a key lookup).
  */
 export class FailedAuthGuard {
   private readonly counts = new Map<string, { n: number; since: number }>();
+
+  constructor(private readonly redis: SharedRedis | null = null) {}
 
   check(ip: string, now = Date.now()): void {
     const c = this.counts.get(ip);
@@ -337,15 +347,33 @@ export class FailedAuthGuard {
   }
 
   failed(ip: string, now = Date.now()): void {
-    const c = this.counts.get(ip);
+    let c = this.counts.get(ip);
     if (!c || now - c.since >= 60_000) {
       if (this.counts.size > 50_000) this.counts.clear();
-      this.counts.set(ip, { n: 1, since: now });
+      c = { n: 1, since: now };
+      this.counts.set(ip, c);
     } else c.n++;
+    if (this.redis) {
+      const key = this.redis.key(`fa:${ip}`);
+      const entry = c;
+      this.redis.client
+        .multi()
+        .incr(key)
+        .pExpire(key, 60_000, 'NX')
+        .pTTL(key)
+        .exec()
+        .then((r) => {
+          const n = Number(r[0]);
+          const ttl = Number(r[2]);
+          if (n > entry.n) entry.n = n;
+          if (ttl > 0) entry.since = Math.min(entry.since, Date.now() - (60_000 - ttl));
+        })
+        .catch(() => undefined);
+    }
   }
 }
 
-/** Monthly quota, then count the request (memory only) and note the key's last use. Console previews are neither. */
+/** Monthly quota, then count the request (memory, or Redis with REDIS_URL) and note the key's last use. Console previews are neither. */
 export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler {
   const quota = getQuotaService(ctx);
   const usage = getUsageRecorder(ctx);
@@ -364,6 +392,22 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
     res.once('finish', outcome);
     res.once('close', outcome);
   };
+  if (usage.shared) {
+    // Several processes: the month counter and the count are in Redis, checked and added in one
+    // script before the answer is sent (a process killed afterwards has lost nothing).
+    return (_req, res, next) => {
+      const { key, via } = authOf(res);
+      if (via === 'preview') {
+        next();
+        return;
+      }
+      const now = Date.now();
+      return quota.countOrRefuse(key.organizationId, key.id, template, now).then(() => {
+        keys.touch(key.id, now);
+        next();
+      });
+    };
+  }
   return (_req, res, next) => {
     const { key, via, origin } = authOf(res);
     if (via === 'preview') {

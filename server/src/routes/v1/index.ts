@@ -30,6 +30,7 @@ import { recordAudit } from '../../services/audit.ts';
 import { EMBED_NOT_FOUND, publicEmbed } from '../../services/embeds.ts';
 import { buildOpenApi } from '../../services/openapi.ts';
 import { parsedOf, type CachedSatellite, type CurrentSet } from '../../services/orbit-cache.ts';
+import { sharedRedis } from '../../services/shared.ts';
 import { getSatelliteService, unprocessable, type ElementFormat, type SatelliteService, type UploadResult } from '../../services/satellites.ts';
 import { authenticate, authOf, canSee, corsHeaders, FailedAuthGuard, keyRateLimit, preflight, quotaAndUsage, type V1Auth } from './auth.ts';
 import {
@@ -188,7 +189,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
 
   router.use(corsHeaders);
   router.options('/*splat', preflight(ctx));
-  const guard = new FailedAuthGuard();
+  const guard = new FailedAuthGuard(sharedRedis(ctx));
 
   /** The activity the console records for an upload, with the key as the actor. Nothing new, nothing recorded. */
   const auditUpload = async (auth: V1Auth, satellite: Satellite, result: UploadResult, how: string) => {
