@@ -5,15 +5,13 @@
  *   DELETE /dev/mailbox    empties the mailbox (204), handy between manual tries
  * app.ts mounts it at /dev only when NODE_ENV is not production.
  */
+import { escapeMarkup as esc } from '@nadirline/shared';
 import { Router } from 'express';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { securityHeaders } from '../http/security.ts';
 import { getMailService, type KeptMessage } from '../services/mail.ts';
 
-function esc(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c);
-}
 
 function page(messages: KeptMessage[]): string {
   const items = [...messages]
