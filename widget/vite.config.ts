@@ -9,19 +9,34 @@ const require = createRequire(import.meta.url);
 /** Files served beside the script, with a content hash in their names so they can be cached for a year. */
 const ASSETS = [
   { key: 'world', src: 'world-atlas/countries-110m.json', name: 'countries-110m', ext: 'json' },
+  // the land alone, half the size: drawn first, while the countries (for place names) wait for an idle moment
+  { key: 'land', src: 'world-atlas/land-110m.json', name: 'land-110m', ext: 'json' },
   { key: '400', src: '@fontsource/work-sans/files/work-sans-latin-400-normal.woff2', name: 'work-sans-latin-400', ext: 'woff2' },
   { key: '600', src: '@fontsource/work-sans/files/work-sans-latin-600-normal.woff2', name: 'work-sans-latin-600', ext: 'woff2' },
 ] as const;
 
-function hashedAssets(): { files: { fileName: string; source: Buffer }[]; define: { world: string; fonts: Record<string, string> } } {
+/** The widget's words in the languages beyond English, fetched only by pages that need them (src/lib/words.ts). */
+const LOCALES = ['de', 'fr', 'es'] as const;
+
+function hashedAssets(): { files: { fileName: string; source: Buffer }[]; define: { world: string; land: string; fonts: Record<string, string>; words: Record<string, string> } } {
+  const words = LOCALES.map((lang) => {
+    // parsed and written again: a broken file fails the build, and the copy is minified
+    const source = Buffer.from(JSON.stringify(JSON.parse(readFileSync(new URL(`./src/locales/${lang}.json`, import.meta.url), 'utf8'))));
+    const hash = createHash('sha256').update(source).digest('hex').slice(0, 10);
+    return { lang, fileName: `assets/words-${lang}.${hash}.json`, source };
+  });
   const files = ASSETS.map((a) => {
     const source = readFileSync(require.resolve(a.src));
     const hash = createHash('sha256').update(source).digest('hex').slice(0, 10);
     return { key: a.key, fileName: `assets/${a.name}.${hash}.${a.ext}`, source };
   });
   const world = files.find((f) => f.key === 'world')!.fileName;
-  const fonts = Object.fromEntries(files.filter((f) => f.key !== 'world').map((f) => [f.key, f.fileName]));
-  return { files, define: { world, fonts } };
+  const land = files.find((f) => f.key === 'land')!.fileName;
+  const fonts = Object.fromEntries(files.filter((f) => f.key === '400' || f.key === '600').map((f) => [f.key, f.fileName]));
+  return {
+    files: [...files, ...words],
+    define: { world, land, fonts, words: Object.fromEntries(words.map((w) => [w.lang, w.fileName])) },
+  };
 }
 
 /** Emits the map and font files and tells the code their names through __NADIR_ASSETS__. */

@@ -2,12 +2,14 @@
  * Builds the Express app. Tests import createApp and drive it over real HTTP (supertest);
  * index.ts opens the database through it, listens and shuts down cleanly.
  */
+import compression from 'compression';
 import express from 'express';
 import pino from 'pino';
 import { pinoHttp } from 'pino-http';
 import type { Config } from './config.ts';
 import type { AppContext } from './context.ts';
 import { openDatabase } from './db/index.ts';
+import { bodyTimeout, refuseControlChars } from './http/input-guards.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
@@ -18,11 +20,11 @@ import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
 
-/** Keys and one-time tokens never reach the logs. */
-function redactUrl(url: string): string {
+/** Keys and one-time tokens (in queries, invitation links and their API paths) never reach the logs. */
+export function redactUrl(url: string): string {
   return url
-    .replace(/([?&](?:key|token)=)[^&]+/g, '$1[hidden]')
-    .replace(/(\/api\/invitations\/)[^/?]+/, '$1[hidden]');
+    .replace(/([?&](?:key|token)=)[^&#]+/gi, '$1[hidden]')
+    .replace(/(\/(?:api\/invitations|invite)\/)[^/?#]+/gi, '$1[hidden]');
 }
 
 export interface NadirlineApp {
@@ -65,6 +67,15 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     }),
   );
 
+  // Before any route: a body that never arrives, and control characters in the URL.
+  app.use(bodyTimeout(config.BODY_TIMEOUT_MS));
+  app.use(refuseControlChars);
+
+  // Text answers (widget script, map data, JSON, pages) go out gzip- or brotli-compressed when the
+  // client accepts it; fonts and images are already compressed and are left alone (the filter
+  // looks at the content type). Answers under 1 KB are not worth it.
+  app.use(compression({ threshold: 1024 }));
+
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
   });
@@ -74,7 +85,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.use(await createSiteRouter(context));
 
   app.use(notFoundHandler);
-  app.use(errorHandler({ exposeInternals: !config.isProduction, logger }));
+  // Stack traces go to the log; answers carry them only under NODE_ENV=test.
+  app.use(errorHandler({ exposeInternals: config.isTest, logger }));
 
   let closed: Promise<void> | undefined;
   const close = () => {

@@ -3,6 +3,8 @@
  * Every variable is documented in server/.env.example. Other modules import `config`;
  * nothing else reads process.env.
  */
+import crypto from 'node:crypto';
+import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { z } from 'zod';
@@ -18,8 +20,13 @@ const bool = z
 const schema = z.object({
   NODE_ENV: z.enum(['development', 'production', 'test']).default('development'),
   PORT: z.coerce.number().int().min(0).max(65535).default(8080),
-  HOST: z.string().default('0.0.0.0'),
-  /** Public base URL used in e-mails and snippets. Defaults to http://localhost:PORT. */
+  /** Interface to listen on: loopback unless told otherwise (HOST=0.0.0.0 serves the network). */
+  HOST: z.string().default('127.0.0.1'),
+  /**
+   * The server's own origin (scheme, host, port) and base URL: links in e-mails and snippets, and
+   * the one origin (besides the listening address outside production) that counts as this
+   * server's own pages for console preview tokens and browser keys. Defaults to http://localhost:PORT.
+   */
   PUBLIC_URL: z.string().url().optional(),
   /** SQLite file path, used when DATABASE_URL is not set. */
   SQLITE_FILE: z.string().default(path.join(repoRoot, 'data', 'nadirline.sqlite')),
@@ -40,10 +47,19 @@ const schema = z.object({
   PAYMENTS_API_BASE: z.string().optional(),
   PAYMENTS_SECRET_KEY: z.string().optional(),
   PAYMENTS_WEBHOOK_SECRET: z.string().optional(),
+  /** How long a request body may take to arrive after its headers, ms (0 = no limit): then 408 and the connection closes. */
+  BODY_TIMEOUT_MS: z.coerce.number().int().min(0).max(600_000).default(10_000),
 });
 
 export type Config = z.infer<typeof schema> & {
+  /** PUBLIC_URL without a trailing slash; without PUBLIC_URL, http://localhost:<listening port> once listening. */
   publicUrl: string;
+  /**
+   * Origins of pages this server serves itself (lower case): PUBLIC_URL's origin, plus outside
+   * production the loopback addresses it listens on (noteListening adds them). Never taken from
+   * request headers.
+   */
+  selfOrigins: string[];
   isProduction: boolean;
   isTest: boolean;
   demo: boolean;
@@ -51,8 +67,46 @@ export type Config = z.infer<typeof schema> & {
   dataDir: string;
 };
 
+/** An empty variable (`NODE_ENV=`) counts as unset, as if the line were not there. */
+function withoutEmpty(env: Record<string, string | undefined>): Record<string, string> {
+  const out: Record<string, string> = {};
+  for (const [k, v] of Object.entries(env)) if (v !== undefined && v.trim() !== '') out[k] = v;
+  return out;
+}
+
+/** File in the data directory that keeps the generated session secret when SESSION_SECRET is unset. */
+export const SESSION_SECRET_FILE = 'session-secret';
+
+/**
+ * The data directory's own random secret, made on first use and kept (mode 0600) so sessions and
+ * preview tokens survive a restart. Every data directory gets a different one.
+ */
+export function dataDirSecret(dataDir: string): string {
+  const file = path.join(dataDir, SESSION_SECRET_FILE);
+  try {
+    const kept = fs.readFileSync(file, 'utf8').trim();
+    if (kept.length >= 32) return kept;
+  } catch (err) {
+    if ((err as NodeJS.ErrnoException).code !== 'ENOENT') throw err;
+  }
+  fs.mkdirSync(dataDir, { recursive: true });
+  const secret = crypto.randomBytes(32).toString('base64url');
+  try {
+    fs.writeFileSync(file, `${secret}\n`, { mode: 0o600, flag: 'wx' });
+    return secret;
+  } catch (err) {
+    // Another process of the same data directory wrote it first: use theirs.
+    if ((err as NodeJS.ErrnoException).code === 'EEXIST') return fs.readFileSync(file, 'utf8').trim();
+    throw err;
+  }
+}
+
+function originOf(url: string): string {
+  return new URL(url).origin.toLowerCase();
+}
+
 export function loadConfig(env: Record<string, string | undefined> = process.env): Config {
-  const parsed = schema.safeParse(env);
+  const parsed = schema.safeParse(withoutEmpty(env));
   if (!parsed.success) {
     const lines = parsed.error.issues.map((i) => `  ${i.path.join('.')}: ${i.message}`);
     throw new Error(`Invalid configuration:\n${lines.join('\n')}`);
@@ -60,13 +114,34 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
   const c = parsed.data;
   const isProduction = c.NODE_ENV === 'production';
   if (isProduction && !c.SESSION_SECRET) throw new Error('Invalid configuration:\n  SESSION_SECRET: required in production');
+  const dataDir = path.dirname(c.SQLITE_FILE);
+  const publicUrl = (c.PUBLIC_URL ?? `http://localhost:${c.PORT}`).replace(/\/$/, '');
+  const selfOrigins = c.PUBLIC_URL || c.PORT !== 0 ? [originOf(publicUrl)] : [];
   return {
     ...c,
-    publicUrl: (c.PUBLIC_URL ?? `http://localhost:${c.PORT}`).replace(/\/$/, ''),
+    publicUrl,
+    selfOrigins,
     isProduction,
     isTest: c.NODE_ENV === 'test',
     demo: c.DEMO ?? !isProduction,
-    sessionSecret: c.SESSION_SECRET ?? 'nadirline-development-session-secret',
-    dataDir: path.dirname(c.SQLITE_FILE),
+    sessionSecret: c.SESSION_SECRET ?? dataDirSecret(dataDir),
+    dataDir,
   };
+}
+
+/**
+ * Called once listening: without PUBLIC_URL the public URL becomes http://localhost:<port>; and
+ * outside production the loopback origins of the port (and HOST's, when it names one interface)
+ * count as this server's own, since those are the addresses its own pages are opened at.
+ */
+export function noteListening(config: Config, port: number): void {
+  if (!config.PUBLIC_URL) config.publicUrl = `http://localhost:${port}`;
+  const own = new Set(config.selfOrigins);
+  own.add(originOf(config.publicUrl));
+  if (!config.isProduction) {
+    for (const host of ['localhost', '127.0.0.1', '[::1]']) own.add(`http://${host}:${port}`);
+    const h = config.HOST;
+    if (h !== '0.0.0.0' && h !== '::' && h !== '') own.add(originOf(`http://${h.includes(':') && !h.startsWith('[') ? `[${h}]` : h}:${port}`));
+  }
+  config.selfOrigins.splice(0, config.selfOrigins.length, ...own);
 }

@@ -5,7 +5,7 @@
  */
 import type { Server } from 'node:http';
 import { createApp } from './app.ts';
-import { loadConfig } from './config.ts';
+import { loadConfig, noteListening } from './config.ts';
 import { seedDemo } from './seed/demo.ts';
 
 const config = loadConfig();
@@ -17,18 +17,23 @@ const server: Server = await new Promise<Server>((resolve, reject) => {
 });
 const address = server.address();
 const port = typeof address === 'object' && address ? address.port : config.PORT;
-logger.info({ port }, `Nadirline listening on http://localhost:${port}`);
+noteListening(config, port);
+logger.info({ port, host: config.HOST }, `Nadirline listening on ${config.HOST} port ${port}`);
 
 if (config.demo) {
   const demo = await seedDemo(context, { port });
   process.stdout.write(
     `\nDemo data ready (${demo.created ? 'seeded now' : 'kept from an earlier start'}).\n` +
       `Sign in at ${demo.credentials.signInUrl} with a user from ${demo.credentialsFile}\n` +
-      `  e.g. ${demo.credentials.users[0]?.email} / ${demo.credentials.users[0]?.password}\n` +
-      `Try: curl -H "Authorization: Bearer ${demo.credentials.serverKey}" http://localhost:${port}/v1/satellites\n`,
+      `(the demo users' passwords and the demo keys are in that file, readable by you only).\n`,
   );
 }
-process.stdout.write(`\nNadirline is running at http://localhost:${port}/\n`);
+const loopbackOnly = config.HOST === '127.0.0.1' || config.HOST === 'localhost' || config.HOST === '::1';
+const listening = `http://${loopbackOnly ? 'localhost' : config.HOST.includes(':') ? `[${config.HOST}]` : config.HOST}:${port}/`;
+process.stdout.write(
+  `\nNadirline is running at ${listening}${loopbackOnly ? ' (this machine only; set HOST=0.0.0.0 to serve the network)' : ''}` +
+    `${config.PUBLIC_URL ? `, public URL ${config.publicUrl}/` : ''}\n`,
+);
 
 let stopping = false;
 async function shutdown(signal: string): Promise<void> {

@@ -12,7 +12,9 @@ interface BenchModule {
 
 const modules: BenchModule[] = [
   { name: 'orbit engine', load: () => import('./orbit.bench.ts') },
+  { name: 'element-set parsing (hostile texts)', load: () => import('./parse.bench.ts') },
   { name: 'server', load: () => import('./server.bench.ts') },
+  { name: 'concurrent writes', load: () => import('./writes.bench.ts') },
   { name: 'widget', load: () => import('./widget.bench.ts') },
 ];
 

@@ -4,7 +4,14 @@
  *   - time from navigation to the first drawn track on the science centre example, next to the
  *     load time of a blank page from the same server in the same run;
  *   - main-thread CPU time over 10 idle seconds with the map on screen;
- *   - /v1 requests while the tab is hidden and while the map is scrolled off-screen (goal: none).
+ *   - /v1 requests while the tab is hidden and while the map is scrolled off-screen (goal: none);
+ *   - on a slow link (1.6 Mbit/s down, 150 ms latency, Chromium DevTools network emulation): time
+ *     to the first drawn track and to the drawn coastlines (goal: coastlines no later than tracks),
+ *     next to a blank page's load over the same link in the same run;
+ *   - 50 satellites in one widget (created through /v1 with the demo server key): time to the
+ *     first drawing of all 50 tracks (goal under 2 s locally), /v1 requests it took, and
+ *     main-thread CPU over 10 idle seconds (goal under 3 % of a core), next to the one-satellite
+ *     example in the same run.
  * The browser figures need the server: NADIRLINE_BENCH_URL points at a running one (its demo
  * credentials must be usable by the example page); otherwise a fresh one is started with
  * tests/support/server.ts. Chromium is Debian's (/usr/bin/chromium).
@@ -13,9 +20,10 @@ import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
 import path from 'node:path';
 import { gzipSync } from 'node:zlib';
-import type { Browser, Page } from 'playwright-core';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { fromKeplerian, toTle } from '@nadirline/shared';
 import { launchChromium } from '../support/chromium.ts';
-import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
+import { repoRoot, startServer, type DemoCredentials, type StartedServer } from '../support/server.ts';
 
 const DIST = path.join(repoRoot, 'widget', 'dist');
 const BUDGET_KB = 60;
@@ -46,6 +54,135 @@ async function firstTrackMs(page: Page, url: string): Promise<number> {
   await page.goto(url);
   const h = await page.waitForFunction(`window.__firstTrack ?? null`, undefined, { timeout: 20_000 });
   return Number(await h.jsonValue());
+}
+
+/** The link of a reader on a slow mobile connection: 1.6 Mbit/s down, 750 kbit/s up, 150 ms round trip. */
+const SLOW = { offline: false, latency: 150, downloadThroughput: (1.6e6 / 8) * 0.9, uploadThroughput: (750e3 / 8) * 0.9 };
+
+async function throttle(ctx: BrowserContext, page: Page): Promise<void> {
+  const cdp = await ctx.newCDPSession(page);
+  await cdp.send('Network.enable');
+  await cdp.send('Network.emulateNetworkConditions', SLOW);
+}
+
+/** ms to the first drawn track and to the drawn land outline, probed every 5 ms. */
+const PROBE_BOTH = `(() => { const t = setInterval(() => { const r = document.querySelector('nadir-track')?.shadowRoot; const d = r?.querySelector('path.past')?.getAttribute('d') ?? ''; const land = r?.querySelector('path.land')?.getAttribute('d') ?? ''; if (d.length > 20 && window.__firstTrack === undefined) window.__firstTrack = performance.now(); if (land.length > 20 && window.__coast === undefined) window.__coast = performance.now(); if (window.__firstTrack !== undefined && window.__coast !== undefined) clearInterval(t); }, 5); })()`;
+
+async function slowLinkFigures(browser: Browser, base: string): Promise<void> {
+  const example = `${base}/examples/science-centre.html`;
+  const track: number[] = [];
+  const coast: number[] = [];
+  const blank: number[] = [];
+  for (let i = 0; i < 3; i++) {
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const page = await ctx.newPage();
+    await throttle(ctx, page);
+    blank.push(await blankLoadMs(page, `${base}/bench-slow-blank-${i}.html`));
+    await ctx.close();
+    const ctx2 = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const p2 = await ctx2.newPage();
+    await throttle(ctx2, p2);
+    await p2.addInitScript(PROBE_BOTH);
+    await p2.goto(example);
+    await p2.waitForFunction(`window.__firstTrack !== undefined && window.__coast !== undefined`, undefined, { timeout: 30_000 });
+    const [t, c] = (await p2.evaluate(`[window.__firstTrack, window.__coast]`)) as [number, number];
+    track.push(t);
+    coast.push(c);
+    await ctx2.close();
+  }
+  const late = coast.filter((c, i) => c > track[i]! + 20).length;
+  console.log(
+    `slow link (1.6 Mbit/s, 150 ms): first drawn track median ${median(track).toFixed(0)} ms (runs: ${track.map((x) => x.toFixed(0)).join(', ')}), ` +
+      `coastlines median ${median(coast).toFixed(0)} ms (after the tracks in ${late} of ${coast.length} runs; goal 0); ` +
+      `blank page over the same link: median ${median(blank).toFixed(0)} ms (ratio ${(median(track) / median(blank)).toFixed(1)}x)`,
+  );
+}
+
+/** Element sets for extra satellites: low orbits spread over planes and phases, epoch an hour ago. */
+function constellationTle(i: number): string {
+  const r = fromKeplerian({
+    epoch: new Date(Math.floor(Date.now() / 60_000) * 60_000 - 3_600_000).toISOString(),
+    name: `BENCH ${i + 1}`,
+    catalogNumber: String(98000 + i),
+    intlDesignator: `26${String(100 + i).padStart(3, '0')}A`,
+    semiMajorAxisKm: 6378.137 + 500 + (i % 5) * 40,
+    eccentricity: 0.001,
+    inclinationDeg: 53 + (i % 3) * 20,
+    raanDeg: (i * 36) % 360,
+    argPerigeeDeg: 0,
+    meanAnomalyDeg: (i * 47) % 360,
+    bstar: 0.0001,
+  });
+  if (!r.ok) throw new Error(`bench element set refused: ${r.message}`);
+  return toTle(r.elementSet).text;
+}
+
+/** The demo satellites plus new ones made through POST /v1/satellites until there are `n`. */
+async function fiftySatellites(base: string, creds: DemoCredentials, n: number): Promise<string[]> {
+  const ids = creds.satellites.map((s) => s.id);
+  const listed = (await (await fetch(`${base}/v1/satellites`, { headers: { Authorization: `Bearer ${creds.serverKey}` } })).json()) as { satellites: Array<{ id: string; name: string }> };
+  for (const s of listed.satellites) if (!ids.includes(s.id) && /^Bench /.test(s.name)) ids.push(s.id);
+  for (let i = ids.length; i < n; i++) {
+    const res = await fetch(`${base}/v1/satellites`, {
+      method: 'POST',
+      headers: { Authorization: `Bearer ${creds.serverKey}`, 'Content-Type': 'application/json' },
+      body: JSON.stringify({ name: `Bench ${i + 1}`, elements: constellationTle(i) }),
+    });
+    if (res.status !== 201) throw new Error(`creating bench satellite ${i + 1}: ${res.status} ${await res.text()}`);
+    ids.push(((await res.json()) as { id: string }).id);
+  }
+  return ids.slice(0, n);
+}
+
+async function idleCpu(ctx: BrowserContext, page: Page): Promise<{ task: number; script: number }> {
+  const cdp = await ctx.newCDPSession(page);
+  await cdp.send('Performance.enable');
+  const metric = async (name: string) => (await cdp.send('Performance.getMetrics')).metrics.find((m) => m.name === name)?.value ?? 0;
+  const t0 = await metric('TaskDuration');
+  const s0 = await metric('ScriptDuration');
+  await page.waitForTimeout(10_000);
+  return { task: (await metric('TaskDuration')) - t0, script: (await metric('ScriptDuration')) - s0 };
+}
+
+async function manySatelliteFigures(browser: Browser, base: string, creds: DemoCredentials): Promise<void> {
+  const N = 50;
+  const ids = await fiftySatellites(base, creds, N);
+  const pageUrl = `${base}/bench-fifty.html`;
+  const html = `<!doctype html><meta name="viewport" content="width=device-width"><body style="margin:0"><script type="module" src="/widget/nadir-track.js"></script><nadir-track satellites="${ids.join(',')}" api-key="${creds.browserKey}" style="display:block"></nadir-track>`;
+  const all = `(() => { const t = setInterval(() => { const r = document.querySelector('nadir-track')?.shadowRoot; if (!r) return; const n = [...r.querySelectorAll('path.past')].filter((p) => (p.getAttribute('d') ?? '').length > 20).length; if (n >= ${N}) { window.__allTracks = performance.now(); clearInterval(t); } }, 5); })()`;
+  const first: number[] = [];
+  const requests: number[] = [];
+  for (let i = 0; i < 3; i++) {
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const page = await ctx.newPage();
+    let v1 = 0;
+    page.on('request', (r) => {
+      if (new URL(r.url()).pathname.startsWith('/v1/')) v1++;
+    });
+    await page.route(pageUrl, (r) => r.fulfill({ contentType: 'text/html', body: html }));
+    await page.addInitScript(all);
+    await page.goto(pageUrl);
+    const h = await page.waitForFunction(`window.__allTracks ?? null`, undefined, { timeout: 60_000 });
+    first.push(Number(await h.jsonValue()));
+    requests.push(v1);
+    if (i === 2) {
+      await page.waitForTimeout(2000);
+      const cpu = await idleCpu(ctx, page);
+      console.log(
+        `${N} satellites: all tracks drawn median ${median(first).toFixed(0)} ms (runs: ${first.map((x) => x.toFixed(0)).join(', ')}; goal under 2000 ms), ` +
+          `/v1 requests to get there ${requests.join(', ')}; CPU over 10 idle s ${(cpu.task * 1000).toFixed(0)} ms (${((cpu.task / 10) * 100).toFixed(1)} % of a core; goal under 3 %), of which script ${(cpu.script * 1000).toFixed(0)} ms`,
+      );
+    }
+    await ctx.close();
+  }
+  // the one-satellite baseline in this run
+  const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+  const page = await ctx.newPage();
+  const one = await firstTrackMs(page, `${base}/examples/science-centre.html`);
+  await page.waitForTimeout(2000);
+  const cpu = await idleCpu(ctx, page);
+  console.log(`baseline, the science centre example: first track ${one.toFixed(0)} ms, CPU over 10 idle s ${((cpu.task / 10) * 100).toFixed(1)} %; ${N}-satellite first draw ratio ${(median(first) / one).toFixed(1)}x`);
+  await ctx.close();
 }
 
 async function blankLoadMs(page: Page, url: string): Promise<number> {
@@ -124,6 +261,9 @@ export async function run(): Promise<void> {
     const base = process.env.NADIRLINE_BENCH_URL?.replace(/\/+$/, '') ?? (server = await startServer()).url;
     browser = await launchChromium();
     await browserFigures(browser, base);
+    await slowLinkFigures(browser, base);
+    const creds = server?.credentials ?? (JSON.parse(fs.readFileSync(path.join(repoRoot, 'data', 'demo-credentials.json'), 'utf8')) as DemoCredentials);
+    await manySatelliteFigures(browser, base, creds);
   } catch (e) {
     console.log(`browser figures skipped: ${(e as Error).message.split('\n')[0]}`);
   } finally {

@@ -266,7 +266,9 @@ describe('in production', () => {
       const res = await prod.browser().get('/dev/mailbox.json');
       expect(res.status).toBe(404);
       const session = await prod.browser().agent.get('/api/session').set('X-Forwarded-Proto', 'https');
-      expect(String(session.headers['set-cookie'])).toMatch(/nadir\.sid=.*; Secure/i);
+      // Not signed in: no session is stored; the CSRF cookie is Secure.
+      expect(String(session.headers['set-cookie'])).toMatch(/nadir\.csrf=.*; Secure/i);
+      expect(String(session.headers['set-cookie'])).not.toMatch(/nadir\.sid=/);
       expect(session.headers['strict-transport-security']).toMatch(/max-age=\d+/);
     } finally {
       await prod.close();

@@ -69,7 +69,19 @@ describe('browser keys and origins', () => {
 
   it('serves a browser key on pages of this server itself (console preview, hosted embeds, examples)', async () => {
     await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Origin', 'http://nadirline.test').expect(200);
-    await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Sec-Fetch-Site', 'same-origin').expect(200);
+    await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Referer', 'http://nadirline.test/examples/').expect(200);
+  });
+
+  it('takes this server\u2019s own origin from its configuration, never from Host or Sec-Fetch-Site', async () => {
+    // A rebound DNS name: the page and the Host header agree, but neither is this server.
+    const rebound = await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Host', 'evil.example').set('Origin', 'http://evil.example');
+    expectProblem(rebound, 403, 'origin-not-allowed');
+    const byReferer = await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Host', 'evil.example').set('Referer', 'http://evil.example/page');
+    expectProblem(byReferer, 403, 'origin-not-allowed');
+    // Sec-Fetch-Site is only a claim; with no Origin and no Referer nothing names the page.
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ key: t.browserKey }).set('Sec-Fetch-Site', 'same-origin'), 403, 'origin-not-allowed');
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Sec-Fetch-Site', 'same-origin'), 403, 'origin-not-allowed');
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Host', 'evil.example').set('Origin', 'http://evil.example'), 403, 'origin-not-allowed');
   });
 
   it('refuses writes with a browser key', async () => {
@@ -98,7 +110,7 @@ describe('embeds as read credentials', () => {
   it('reads the embed\u2019s satellites with its browser key, from the key\u2019s origins and this server\u2019s own', async () => {
     await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Origin', PAGE_ORIGIN).expect(200);
     await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Origin', 'http://nadirline.test').expect(200);
-    await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Sec-Fetch-Site', 'same-origin').expect(200);
+    await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Referer', 'http://nadirline.test/embed/x').expect(200);
     expectProblem(await request(t.app).get(`${sat()}/position`).query({ embed: t.embedId }).set('Origin', 'https://copycat.example.com'), 403, 'origin-not-allowed');
   });
 

@@ -114,10 +114,19 @@ describe('a preview token on /v1', () => {
     expect(Array.isArray(passes.body.passes)).toBe(true);
   });
 
-  it('works as ?key= on a same-origin GET that names its page by Referer or Sec-Fetch-Site only', async () => {
+  it('works as ?key= on a same-origin GET that names its page by Referer only', async () => {
     const token = await tokenFor(viewer);
     await request(t.app).get(`/v1/satellites/${satId}/elements?key=${token}`).set('Referer', `${SELF}/o/${orgId}/satellites/${satId}`).expect(200);
-    await request(t.app).get(`/v1/satellites/${satId}/elements?key=${token}`).set('Sec-Fetch-Site', 'same-origin').expect(200);
+  });
+
+  it('refuses a request that names no page (Sec-Fetch-Site alone proves nothing) and one whose Host header claims to be the page\u2019s', async () => {
+    const token = await tokenFor(viewer);
+    const bare = await request(t.app).get(`/v1/satellites/${satId}/elements?key=${token}`).set('Sec-Fetch-Site', 'same-origin');
+    expect(bare.status).toBe(403);
+    expect(bare.body.code).toBe('origin-not-allowed');
+    const rebound = await request(t.app).get(`/v1/satellites/${satId}/elements`).set('Authorization', `Bearer ${token}`).set('Host', 'evil.example').set('Origin', 'http://evil.example');
+    expect(rebound.status).toBe(403);
+    expect(rebound.body.code).toBe('origin-not-allowed');
   });
 
   it('hides another organization’s satellite behind 404', async () => {

@@ -4,6 +4,8 @@
  * `npm run build`); then the app must say so clearly, and that is checked instead.
  */
 import fs from 'node:fs';
+import http from 'node:http';
+import type { AddressInfo } from 'node:net';
 import os from 'node:os';
 import path from 'node:path';
 import request from 'supertest';
@@ -27,6 +29,26 @@ afterAll(async () => {
   await t?.close();
   fs.rmSync(dir, { recursive: true, force: true });
 });
+
+/** The bytes on the wire (still compressed) and the headers of one GET over a real socket. */
+async function wireBytes(url: string, encoding: string): Promise<{ bytes: number; headers: http.IncomingHttpHeaders }> {
+  const server = http.createServer(t.app);
+  await new Promise<void>((resolve) => server.listen(0, '127.0.0.1', resolve));
+  try {
+    const { port } = server.address() as AddressInfo;
+    return await new Promise((resolve, reject) => {
+      http
+        .get({ host: '127.0.0.1', port, path: url, headers: { 'Accept-Encoding': encoding } }, (res) => {
+          let bytes = 0;
+          res.on('data', (c: Buffer) => (bytes += c.length));
+          res.on('end', () => resolve({ bytes, headers: res.headers }));
+        })
+        .on('error', reject);
+    });
+  } finally {
+    server.close();
+  }
+}
 
 describe('demo seed', () => {
   it('writes an invented organization with a user per role, four satellites, two keys and an embed', async () => {
@@ -81,6 +103,42 @@ describe('widget files', () => {
     const missing = await request(t.app).get('/widget/nope.js');
     expect(missing.status).toBe(404);
     expect(missing.headers['content-type']).toMatch(/problem\+json/);
+  });
+
+  it('compresses the script and the map data for clients that accept it', async () => {
+    if (!widgetBuilt) return;
+    const raw = fs.statSync(path.join(repoRoot, 'widget', 'dist', 'nadir-track.js')).size;
+    const gz = await wireBytes('/widget/nadir-track.js', 'gzip');
+    expect(gz.headers['content-encoding']).toBe('gzip');
+    expect(gz.headers['vary']).toMatch(/Accept-Encoding/i);
+    const br = await request(t.app).get('/widget/nadir-track.js').set('Accept-Encoding', 'br');
+    expect(br.headers['content-encoding']).toBe('br');
+    expect(gz.bytes).toBeLessThan(raw / 2);
+    const world = fs.readdirSync(path.join(repoRoot, 'widget', 'dist', 'assets')).find((f) => f.endsWith('.json')) as string;
+    const map = await request(t.app).get(`/widget/assets/${world}`).set('Accept-Encoding', 'gzip');
+    expect(map.headers['content-encoding']).toBe('gzip');
+    expect(map.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    const plain = await request(t.app).get('/widget/nadir-track.js').set('Accept-Encoding', 'identity');
+    expect(plain.headers['content-encoding']).toBeUndefined();
+  });
+
+  it('serves the script under a versioned name for a year, and names the current version', async () => {
+    if (!widgetBuilt) return;
+    const v = await request(t.app).get('/widget/versions.json').expect(200);
+    expect(v.body.module).toMatch(/^\/widget\/nadir-track\.[0-9a-f]{10}\.js$/);
+    expect(v.body.classic).toMatch(/^\/widget\/nadir-track\.iife\.[0-9a-f]{10}\.js$/);
+    const plain = await request(t.app).get('/widget/nadir-track.js').expect(200);
+    const pinned = await request(t.app).get(v.body.module).expect(200);
+    expect(pinned.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    expect(pinned.headers['content-type']).toMatch(/javascript/);
+    expect(pinned.headers['access-control-allow-origin']).toBe('*');
+    expect(pinned.text).toBe(plain.text);
+    const classic = await request(t.app).get(v.body.classic).expect(200);
+    expect(classic.headers['cache-control']).toBe('public, max-age=31536000, immutable');
+    // a version no longer built sends the page to the current script rather than breaking it
+    const old = await request(t.app).get('/widget/nadir-track.0123456789.js').expect(302);
+    expect(old.headers.location).toBe('/widget/nadir-track.js');
+    expect(old.headers['cache-control']).toBe('public, max-age=300');
   });
 });
 
@@ -146,9 +204,37 @@ describe('examples and the hosted embed page', () => {
   it('serves a page holding only the widget for a saved embed, framable by the key\u2019s origins', async () => {
     const res = await request(t.app).get(`/embed/${creds.embedId}`).expect(200);
     expect(res.text).toContain(`embed="${creds.embedId}"`);
-    expect(res.text).toContain('/widget/nadir-track.js');
+    expect(res.text).toMatch(/\/widget\/nadir-track\.[0-9a-f]{10}\.js/);
     expect(res.headers['content-security-policy']).toMatch(/frame-ancestors 'self' http:\/\/localhost:8080 http:\/\/127\.0\.0\.1:8080/);
     expect(res.headers['x-frame-options']).toBeUndefined();
     await request(t.app).get('/embed/nosuchembed').expect(404);
+  });
+
+  it('loads the versioned script in the hosted embed page', async () => {
+    if (!widgetBuilt) return;
+    const v = await request(t.app).get('/widget/versions.json').expect(200);
+    const res = await request(t.app).get(`/embed/${creds.embedId}`).expect(200);
+    expect(res.text).toContain(`src="${v.body.module}"`);
+    expect(res.text).toContain(`src="${v.body.classic}"`);
+  });
+
+  it('answers our own refusal page, framable anywhere, when a site the key does not list frames the embed', async () => {
+    const res = await request(t.app)
+      .get(`/embed/${creds.embedId}`)
+      .set('Sec-Fetch-Dest', 'iframe')
+      .set('Sec-Fetch-Site', 'cross-site')
+      .set('Referer', 'https://elsewhere.example.com/blog/post')
+      .expect(403);
+    expect(res.headers['content-type']).toMatch(/text\/html/);
+    expect(res.headers['content-security-policy']).toMatch(/frame-ancestors \*/);
+    expect(res.headers['content-security-policy']).not.toMatch(/script-src/);
+    expect(res.text).toContain('This map is not allowed on this site');
+    expect(res.text).toContain('https://elsewhere.example.com');
+    expect(res.text).not.toContain('/blog/post');
+    expect(res.text).not.toContain('<nadir-track');
+    // a listed site still gets the map, under the key's frame-ancestors
+    const ok = await request(t.app).get(`/embed/${creds.embedId}`).set('Sec-Fetch-Dest', 'iframe').set('Referer', 'http://localhost:8080/page.html').expect(200);
+    expect(ok.text).toContain(`embed="${creds.embedId}"`);
+    expect(ok.headers['content-security-policy']).toMatch(/frame-ancestors 'self' http:\/\/localhost:8080/);
   });
 });

@@ -5,6 +5,7 @@
  */
 import type { ErrorRequestHandler, RequestHandler, Response } from 'express';
 import type { Logger } from 'pino';
+import { BUSY_RETRY_AFTER_S, isDatabaseBusy } from '../db/write-lock.ts';
 
 export interface ProblemFieldError {
   /** Where the problem is: a JSON pointer, a query parameter name, or "line 3, column 12". */
@@ -35,6 +36,7 @@ export const PROBLEM_TYPES = {
   'email-mismatch': { status: 403, title: 'Signed in with another e-mail address' },
   'not-found': { status: 404, title: 'Not found' },
   'method-not-allowed': { status: 405, title: 'Method not allowed' },
+  'request-timeout': { status: 408, title: 'Request body not received in time' },
   'conflict': { status: 409, title: 'Conflict' },
   'owner-protected': { status: 409, title: 'The owner cannot be removed or demoted' },
   'payload-too-large': { status: 413, title: 'Payload too large' },
@@ -48,6 +50,7 @@ export const PROBLEM_TYPES = {
   'quota-exceeded': { status: 429, title: 'Monthly quota reached' },
   'too-many-attempts': { status: 429, title: 'Too many attempts' },
   'internal': { status: 500, title: 'Internal server error' },
+  'busy': { status: 503, title: 'Busy with other writes' },
   'unavailable': { status: 503, title: 'Service unavailable' },
 } as const;
 export type ProblemCode = keyof typeof PROBLEM_TYPES;
@@ -79,7 +82,7 @@ export class HttpError extends Error {
 export function problemInstance(url: string): string {
   const cut = url.search(/[?#]/);
   const path = cut === -1 ? url : url.slice(0, cut);
-  return path.replace(/(\/api\/invitations\/)[^/]+/, '$1[hidden]');
+  return path.replace(/(\/(?:api\/invitations|invite)\/)[^/]+/i, '$1[hidden]');
 }
 
 export function sendProblem(
@@ -194,6 +197,12 @@ export function errorHandler(opts: { exposeInternals: boolean; logger: Logger })
     const status = e?.status ?? e?.statusCode;
     if (typeof status === 'number' && status >= 400 && status < 500) {
       sendProblem(res, 'bad-request', e.message ?? 'Bad request.', {}, req.originalUrl);
+      return;
+    }
+    if (isDatabaseBusy(err)) {
+      opts.logger.warn({ err, url: req.originalUrl }, 'database busy');
+      res.setHeader('Retry-After', String(BUSY_RETRY_AFTER_S));
+      sendProblem(res, 'busy', `The database is busy with other writes and this request could not get its turn in time; nothing was changed by it. Send it again in ${BUSY_RETRY_AFTER_S} s.`, {}, req.originalUrl);
       return;
     }
     opts.logger.error({ err, url: req.originalUrl }, 'unhandled error');

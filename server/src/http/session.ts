@@ -3,11 +3,17 @@
  * table (created by migration 0001; the store is never synced). Cookie `nadir.sid`: httpOnly,
  * SameSite=Lax, Secure in production, rolling 14 days.
  *
+ * The table never holds a session id as the cookie carries it: the store keys rows by
+ * storedSid(id), a SHA-256 of the id, so someone who can read the database cannot sign in as
+ * anyone. Only signed-in sessions are stored (anonymous visitors get their CSRF token from a
+ * cookie, see csrf.ts).
+ *
  *   createSessionMiddleware(ctx)      the middleware (one store per app; stopped on close)
  *   currentUser(req, res)             the signed-in User or null (cached per request)
  *   signIn(req, userId) / signOut(req, res)
  *   destroyUserSessions(userId, exceptSid?)  sign a user out everywhere (after a password reset)
  */
+import crypto from 'node:crypto';
 import type { Request, RequestHandler, Response } from 'express';
 import session from 'express-session';
 import connectSessionSequelize from 'connect-session-sequelize';
@@ -28,6 +34,14 @@ export const SESSION_MAX_AGE_MS = 14 * 24 * 3600 * 1000;
 /** Model name the store registers on the Sequelize instance. */
 export const SESSION_MODEL = 'Session';
 
+/**
+ * The key a session is stored under: SHA-256 of its id, base64url, cut to the 36 characters of the
+ * `Sessions.sid` column (216 bits).
+ */
+export function storedSid(sid: string): string {
+  return crypto.createHash('sha256').update(sid).digest('base64url').slice(0, 36);
+}
+
 export function createSessionMiddleware(ctx: AppContext): RequestHandler {
   const SequelizeStore = connectSessionSequelize(session.Store);
   const store = new SequelizeStore({
@@ -38,6 +52,12 @@ export function createSessionMiddleware(ctx: AppContext): RequestHandler {
     expiration: SESSION_MAX_AGE_MS,
   });
   ctx.onClose(() => store.stopExpiringSessions());
+  // The same store, keyed by storedSid(id) instead of the id (none of these calls another).
+  const methods = store as unknown as Record<'get' | 'set' | 'touch' | 'destroy', (sid: string, ...rest: unknown[]) => unknown>;
+  for (const name of ['get', 'set', 'touch', 'destroy'] as const) {
+    const original = methods[name].bind(store);
+    methods[name] = (sid: string, ...rest: unknown[]) => original(storedSid(sid), ...rest);
+  }
   return session({
     name: SESSION_COOKIE,
     secret: ctx.config.sessionSecret,
@@ -81,14 +101,14 @@ export async function signOut(req: Request, res: Response): Promise<void> {
   res.clearCookie(SESSION_COOKIE, { path: '/', httpOnly: true, sameSite: 'lax', secure: req.secure });
 }
 
-/** Removes every stored session of a user (except one), e.g. after a password reset. */
+/** Removes every stored session of a user (except the one with id exceptSid, as req.sessionID gives it), e.g. after a password reset. */
 export async function destroyUserSessions(ctx: AppContext, userId: string, exceptSid?: string): Promise<number> {
   const model = ctx.sequelize.models[SESSION_MODEL];
   if (!model) return 0;
   // The session data is JSON text. LIKE (portable SQL) narrows the rows; `_` in an id is a LIKE
   // wildcard that also matches itself, so the exact check on the parsed data follows.
   const where: Record<string | symbol, unknown> = { data: { [Op.like]: `%"userId":"${userId.replace(/[%\\"]/g, '')}"%` } };
-  if (exceptSid) where['sid'] = { [Op.ne]: exceptSid };
+  if (exceptSid) where['sid'] = { [Op.ne]: storedSid(exceptSid) };
   const rows = (await model.findAll({ where, attributes: ['sid', 'data'] })) as unknown as Array<{ sid: string; data: string | null }>;
   const sids = rows.filter((r) => {
     try {

@@ -3,7 +3,8 @@
  *   GET /dev/mailbox       an HTML page listing every kept message, newest first
  *   GET /dev/mailbox.json  { messages: [{ id, to, from, subject, text, html, links, receivedAt }] } oldest first
  *   DELETE /dev/mailbox    empties the mailbox (204), handy between manual tries
- * app.ts mounts it at /dev only when NODE_ENV is not production.
+ * app.ts mounts it at /dev only when NODE_ENV is not production, and it answers only clients on
+ * this machine (loopback addresses): the mailbox holds password-reset and invitation links.
  */
 import { escapeMarkup as esc } from '@nadirline/shared';
 import { Router } from 'express';
@@ -48,8 +49,22 @@ ${items || '<p>No messages yet.</p>'}
 </html>`;
 }
 
+/** 127.0.0.0/8, ::1 and their IPv4-mapped form. */
+export function isLoopback(address: string | undefined): boolean {
+  if (!address) return false;
+  const a = address.startsWith('::ffff:') ? address.slice(7) : address;
+  return a === '::1' || /^127\.\d{1,3}\.\d{1,3}\.\d{1,3}$/.test(a);
+}
+
 export async function createDevRouter(ctx: AppContext): Promise<Router> {
   const router = Router();
+  router.use((req, _res, next) => {
+    // req.ip: the client as the proxy settings see it; a remote client behind a local proxy is remote.
+    if (!isLoopback(req.ip) || !isLoopback(req.socket.remoteAddress)) {
+      throw new HttpError('not-found', 'The development mailbox is shown only on the machine the server runs on.');
+    }
+    next();
+  });
   const mail = await getMailService(ctx);
   const mailbox = () => {
     if (!mail.mailbox) throw new HttpError('not-found', 'The development mailbox exists only when SMTP_URL is unset.');

@@ -1,10 +1,17 @@
 /**
  * Static hosting and pages served by the app:
  *   /widget/*          widget/dist: hashed files cached for a year (immutable), nadir-track.js and
- *                      nadir-track.iife.js for 5 minutes; readable from any origin (CORS *, CORP
- *                      cross-origin), since pages on other sites load them.
+ *                      nadir-track.iife.js for 5 minutes (revalidated by ETag); readable from any
+ *                      origin (CORS *, CORP cross-origin), since pages on other sites load them.
+ *                      /widget/nadir-track.<version>.js and nadir-track.iife.<version>.js are the
+ *                      same scripts under a versioned name (the first 10 hex digits of the file's
+ *                      SHA-256), cached for a year; /widget/versions.json names the current ones.
+ *                      A version that is no longer built redirects (302, short cache) to the plain URL.
+ *                      Text answers are compressed (gzip or brotli) by the app (app.ts).
  *   /embed/:id         a page holding only <nadir-track embed="ID"> for a saved embed; framable by
- *                      the origins of the embed's key.
+ *                      the origins of the embed's key. Framed by a page of another origin (its
+ *                      Referer) the key does not list, it answers our own short refusal page,
+ *                      framable anywhere, instead of a frame the browser would blank.
  *   /examples/*        examples/: in demo mode, {{BROWSER_KEY}}, {{SATELLITE_IDS}}, {{EMBED_ID}} and
  *                      {{API_BASE}} in .html/.js files are replaced from the demo credentials.
  *   /docs/api          API reference rendered from the OpenAPI document; /docs/problems the problem codes.
@@ -13,6 +20,7 @@
  *                      under /v1, /api, /dev get index.html (history fallback).
  * Missing builds answer a clear page (HTML) or problem (anything else).
  */
+import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import { createRequire } from 'node:module';
 import path from 'node:path';
@@ -23,12 +31,12 @@ import type { AppContext } from '../context.ts';
 import { HttpError, PROBLEM_TYPE_BASE, sendProblem } from '../http/problem.ts';
 import { securityHeaders } from '../http/security.ts';
 import { getEmbedService } from '../services/embeds.ts';
-import { getKeyService } from '../services/keys.ts';
+import { getKeyService, originAllowed } from '../services/keys.ts';
 import { buildOpenApi, PROBLEM_DOCS } from '../services/openapi.ts';
 
 /** The Nadirline mark: a ring (the orbit) with the point beneath it (the nadir). */
 const FAVICON_SVG =
-  "<svg xmlns='http://www.w3.org/2000/svg' viewBox='0 0 32 32'><circle cx='16' cy='16' r='13' fill='none' stroke='#b3541e' stroke-width='3'/><circle cx='16' cy='27' r='3' fill='#b3541e'/></svg>";
+  "<svg xmlns='http://www.w3.org/2000/svg' viewBox='0 0 32 32'><circle cx='16' cy='16' r='13' fill='none' stroke='#08646f' stroke-width='3'/><circle cx='16' cy='27' r='3' fill='#08646f'/></svg>";
 
 const YEAR_S = 31_536_000;
 const HASHED = /[.-][A-Za-z0-9_-]{8,}\.[a-z0-9]+$/;
@@ -49,12 +57,12 @@ function fontDir(): string | null {
   }
 }
 
-/** Calm paper palette of the server's own pages (docs, placeholders). */
+/** The Nadirline palette (console/src/styles/tokens.css, Day and Night) for the server's own pages (docs, placeholders). */
 const PAGE_CSS = `
 @font-face { font-family: 'Work Sans'; font-weight: 400; font-style: normal; font-display: swap; src: url(/fonts/work-sans-latin-400-normal.woff2) format('woff2'); }
 @font-face { font-family: 'Work Sans'; font-weight: 600; font-style: normal; font-display: swap; src: url(/fonts/work-sans-latin-600-normal.woff2) format('woff2'); }
-:root { --paper: #f7f4ed; --ink: #2a2925; --muted: #6a655a; --rule: #dcd5c6; --accent: #1d5e63; --code: #efe9dc; --warn: #8a4b16; }
-@media (prefers-color-scheme: dark) { :root { --paper: #1c1d1f; --ink: #e8e4da; --muted: #a59f92; --rule: #3a3a38; --accent: #7cc2c4; --code: #27292b; --warn: #e0a86a; } }
+:root { --paper: #f2f5f8; --ink: #0f1b2a; --muted: #3b4859; --rule: #d2dae3; --accent: #08646f; --code: #e4eaf0; --warn: #7a4f00; }
+@media (prefers-color-scheme: dark) { :root { --paper: #0b1118; --ink: #e4ebf2; --muted: #b3c0cd; --rule: #243140; --accent: #4fc3cc; --code: #131b25; --warn: #e7bf62; } }
 * { box-sizing: border-box; }
 body { margin: 0; background: var(--paper); color: var(--ink); font: 16px/1.55 'Work Sans', system-ui, sans-serif; }
 main { max-width: 58rem; margin: 0 auto; padding: 2rem 1.25rem 4rem; }
@@ -133,6 +141,39 @@ function fieldsTable(schema: Json | undefined): string {
   return stackTable(['field', 'type', 'meaning'], rows);
 }
 
+/** Values that make each route's example runnable against the demo data (the README shows how to set KEY and SAT). */
+const EXAMPLE_VALUES: Record<string, string> = {
+  id: '$SAT',
+  ids: '$SAT,$SAT2',
+  lat: '51.38',
+  lon: '-2.36',
+  step: '60',
+  days: '2',
+};
+
+/**
+ * A curl line for one route: the base URL, the path with its ids, the required query parameters
+ * (and a telling optional one), the credential the route takes, and a body for uploads.
+ */
+export function exampleRequest(method: string, p: string, op: Json, baseUrl: string): string {
+  const params = (op.parameters as Json[] | undefined) ?? [];
+  const path = p.replace(/\{(\w+)\}/g, (_m, name: string) => (name === 'id' && p.startsWith('/v1/embeds') ? '$EMBED' : (EXAMPLE_VALUES[name] ?? `$${name.toUpperCase()}`)));
+  const query = params
+    .filter((x) => x.in === 'query' && x.name !== 'key' && x.name !== 'embed' && (x.required || x.name === 'step' || x.name === 'days'))
+    .map((x) => `${String(x.name)}=${EXAMPLE_VALUES[String(x.name)] ?? String((x.schema as Json | undefined)?.example ?? (x as Json).example ?? '')}`);
+  const url = `${baseUrl}${path}${query.length ? `?${query.join('&')}` : ''}`;
+  const secured = ((op.security as unknown[] | undefined) ?? []).length > 0;
+  const parts = ['curl'];
+  if (method === 'post') parts.push('-X POST');
+  if (secured) parts.push(method === 'post' ? '-H "Authorization: Bearer $SERVER_KEY"' : '-H "Authorization: Bearer $KEY"');
+  const body = op.requestBody as Json | undefined;
+  const types = body ? Object.keys(body.content as Json) : [];
+  if (types.includes('text/plain')) parts.push('-H "Content-Type: text/plain" --data-binary @elements.tle');
+  else if (types.includes('application/json')) parts.push(`-H "Content-Type: application/json" -d '{"name": "Kestrel-2", "elements": "<TLE or OMM text>"}'`);
+  parts.push(`"${url}"`);
+  return parts.join(' ');
+}
+
 export function renderApiReference(doc: ReturnType<typeof buildOpenApi>, baseUrl: string): string {
   const info = doc.info as Json;
   const sections: string[] = [];
@@ -163,6 +204,8 @@ ${op.description ? `<p class="muted">${prose(String(op.description))}</p>` : ''}
 <p class="muted">Credential: ${(op.security as unknown[]).length === 0 ? 'none' : method === 'post' ? 'server key with <code>element-sets:write</code> (Authorization: Bearer)' : 'any key (Authorization: Bearer), or <code>?key=</code> with a browser key, or <code>?embed=</code>'}</p>
 ${paramRows.length ? stackTable(['parameter', 'in', 'type', 'meaning'], paramRows) : ''}
 ${bodyTypes.length ? `<h3>Body</h3><p>${bodyTypes.map((t) => `<code>${esc(t)}</code>`).join(', ')}</p>${fieldsTable(bodyJson)}` : ''}
+<h3>Example</h3>
+<pre><code>${esc(exampleRequest(method, p, op, baseUrl))}</code></pre>
 ${responses}
 </section>`);
     }
@@ -174,6 +217,13 @@ ${responses}
 <h1>${esc(String(info.title))}</h1>
 <p class="muted">Version ${esc(String(info.version))} · base URL <code>${esc(baseUrl)}/v1</code></p>
 <p>${prose(String(info.description))}</p>
+<h2>Trying the examples</h2>
+<p>Each route below has a <code>curl</code> example. With the demo data (<code>npm start</code>), set the shell variables from <code>data/demo-credentials.json</code> first:</p>
+<pre><code>KEY=$(node -p "require('./data/demo-credentials.json').serverKey")
+SERVER_KEY=$KEY
+SAT=$(node -p "require('./data/demo-credentials.json').satellites[0].id")
+SAT2=$(node -p "require('./data/demo-credentials.json').satellites[1].id")
+EMBED=$(node -p "require('./data/demo-credentials.json').embedId")</code></pre>
 <h2>Keys</h2>
 <p><strong>Browser keys</strong> (<code>nlb_…</code>) are read-only and work only from web pages of the origins they list (exact, like <code>https://www.example.org</code>, or a wildcard, like <code>https://*.example.org</code>, which matches subdomains at any depth but not <code>https://example.org</code> itself); they may go in page source and in <code>?key=</code> on GET. A request with a browser key that names no origin (no Origin or Referer header, as from curl) is refused. <strong>Server keys</strong> (<code>nls_…</code>) are secret and belong on your backend, in the <code>Authorization: Bearer</code> header only; with the <code>element-sets:write</code> scope they may upload element sets. A rotated key keeps working until its grace period ends; a revoked key stops at once.</p>
 <h2>Limits</h2>
@@ -219,6 +269,57 @@ function substituteDemo(text: string, creds: DemoCredentialsFile | null, apiBase
     .replaceAll('{{API_BASE}}', apiBase);
 }
 
+/** The built widget scripts under their versioned names, re-read when a build changes them. */
+export interface WidgetVersions {
+  /** versioned file name -> plain file name in widget/dist */
+  files: Map<string, string>;
+  module: string;
+  classic: string;
+}
+
+const WIDGET_SCRIPTS = [
+  { plain: 'nadir-track.js', stem: 'nadir-track' },
+  { plain: 'nadir-track.iife.js', stem: 'nadir-track.iife' },
+] as const;
+const VERSIONED = /^nadir-track(?:\.iife)?\.([0-9a-f]{10})\.js$/;
+
+export function widgetVersionReader(dist: string): () => WidgetVersions | null {
+  let cached: { stamp: string; value: WidgetVersions } | undefined;
+  return () => {
+    let stamp = '';
+    try {
+      stamp = WIDGET_SCRIPTS.map((f) => {
+        const st = fs.statSync(path.join(dist, f.plain));
+        return `${st.mtimeMs}:${st.size}`;
+      }).join('|');
+    } catch {
+      return null;
+    }
+    if (cached?.stamp === stamp) return cached.value;
+    const files = new Map<string, string>();
+    const names: string[] = [];
+    for (const f of WIDGET_SCRIPTS) {
+      const hash = createHash('sha256').update(fs.readFileSync(path.join(dist, f.plain))).digest('hex').slice(0, 10);
+      const name = `${f.stem}.${hash}.js`;
+      files.set(name, f.plain);
+      names.push(name);
+    }
+    cached = { stamp, value: { files, module: names[0]!, classic: names[1]! } };
+    return cached.value;
+  };
+}
+
+/** Our own page for a hosted embed framed by a site its key does not list. */
+function refusedEmbedPage(origin: string): string {
+  return `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="color-scheme" content="light dark"><title>Not allowed on this site · Nadirline</title>
+<style>${PAGE_CSS} body{background:transparent} main{padding:1.25rem;max-width:36rem} h1{font-size:1.15rem;margin:0 0 .5rem} p{margin:.25rem 0}</style></head>
+<body><main role="alert"><h1>This map is not allowed on this site</h1>
+<p>The Nadirline embed shown here may only appear on the sites its key lists, and <code>${esc(origin)}</code> is not one of them.</p>
+<p class="muted">The site owner can add this address to the key’s allowed origins in the Nadirline console.</p></main></body></html>`;
+}
+
 function missingBuild(res: Response, req: Request, what: string, command: string): void {
   if (req.accepts(['html', 'json']) === 'html') {
     res
@@ -228,6 +329,26 @@ function missingBuild(res: Response, req: Request, what: string, command: string
     return;
   }
   sendProblem(res, 'unavailable', `The ${what} is not built; run ${command}.`, {}, req.originalUrl);
+}
+
+/**
+ * The origin of the page framing this request, when the browser says it is framed (Sec-Fetch-Dest)
+ * and names the page (Referer) and that page is of another origin. Null otherwise: a framer
+ * that sends no Referer is left to the frame-ancestors policy.
+ */
+function framingOrigin(req: Request): string | null {
+  if (req.get('sec-fetch-dest') !== 'iframe' && req.get('sec-fetch-dest') !== 'frame') return null;
+  if (req.get('sec-fetch-site') === 'same-origin') return null;
+  const referer = req.get('referer');
+  if (!referer) return null;
+  try {
+    const origin = new URL(referer).origin;
+    const host = req.get('host');
+    if (!origin || origin === 'null' || (host && origin === `${req.protocol}://${host}`)) return null;
+    return origin;
+  } catch {
+    return null;
+  }
 }
 
 export async function createSiteRouter(ctx: AppContext): Promise<Router> {
@@ -260,6 +381,25 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
     }
     next();
   });
+  const widgetVersions = widgetVersionReader(widgetDist);
+  router.get('/widget/versions.json', (_req, res) => {
+    const v = widgetVersions();
+    res.setHeader('Cache-Control', 'public, max-age=300, must-revalidate');
+    res.json({ module: `/widget/${v?.module}`, classic: `/widget/${v?.classic}` });
+  });
+  router.get('/widget/:file', (req, res, next) => {
+    const file = String(req.params.file);
+    if (!VERSIONED.test(file)) return next();
+    const v = widgetVersions();
+    const plain = v?.files.get(file);
+    if (!plain) {
+      // an older build: the current script under its plain name keeps the page working
+      res.setHeader('Cache-Control', 'public, max-age=300');
+      res.redirect(302, `/widget/${file.includes('.iife.') ? 'nadir-track.iife.js' : 'nadir-track.js'}`);
+      return;
+    }
+    res.sendFile(path.join(widgetDist, plain), { headers: { 'Cache-Control': `public, max-age=${YEAR_S}, immutable` }, cacheControl: false });
+  });
   router.use(
     '/widget',
     express.static(widgetDist, {
@@ -284,6 +424,16 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
     }
     const key = embed.apiKeyId ? await getKeyService(ctx).findById(embed.apiKeyId) : null;
     const ancestors = ["'self'", ...(key?.origins ?? [])].join(' ');
+    // Framed by another site's page: a site the key does not list gets our words, not a blanked frame.
+    const framer = framingOrigin(req);
+    if (framer && !originAllowed(key?.origins ?? [], framer)) {
+      res.setHeader('Content-Security-Policy', "default-src 'none'; style-src 'unsafe-inline'; base-uri 'none'; form-action 'none'; frame-ancestors *");
+      res.setHeader('X-Content-Type-Options', 'nosniff');
+      res.setHeader('Cache-Control', 'no-store');
+      res.setHeader('Vary', 'Referer, Sec-Fetch-Dest');
+      res.status(403).type('html').send(refusedEmbedPage(framer));
+      return;
+    }
     const size = (v: unknown, d: string) => (typeof v === 'string' && /^[0-9.]+(px|rem|em|vh|vw|%)$/.test(v) ? v : d);
     res.setHeader(
       'Content-Security-Policy',
@@ -294,7 +444,13 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
     res.setHeader('Cache-Control', 'no-cache');
     const template = path.join(repoRoot, 'widget', 'embed.html');
     if (fs.existsSync(template)) {
-      const html = fs.readFileSync(template, 'utf8').replaceAll('{{EMBED_ID}}', esc(embed.id)).replaceAll('{{EMBED_NAME}}', esc(embed.name));
+      const v = widgetVersions();
+      const html = fs
+        .readFileSync(template, 'utf8')
+        .replaceAll('{{EMBED_ID}}', esc(embed.id))
+        .replaceAll('{{EMBED_NAME}}', esc(embed.name))
+        .replaceAll('/widget/nadir-track.js', `/widget/${v?.module ?? 'nadir-track.js'}`)
+        .replaceAll('/widget/nadir-track.iife.js', `/widget/${v?.classic ?? 'nadir-track.iife.js'}`);
       res.type('html').send(html);
       return;
     }

@@ -15,11 +15,13 @@
  *   findById(id) -> Promise<KeyRecord | null>                  (cached)
  *   originAllowed(record, origin) / normalizeOrigin(text)      (module functions)
  *
- * Records are cached in-process by hash and by id (KEY_CACHE_TTL_MS); rotate, revoke and update
+ * Records are cached in-process by hash and by id (KEY_CACHE_TTL_MS, least recently used evicted
+ * first; unknown keys in a separate small cache, so guessed keys cannot evict working ones); rotate, revoke and update
  * drop the cached entries at once. lastUsedAt is kept in memory and written in one batch every
  * flush interval and on close: no database write on the request path.
  */
 import crypto from 'node:crypto';
+import { LRUCache } from 'lru-cache';
 import { nanoid } from 'nanoid';
 import { z } from 'zod';
 import type { AppContext } from '../context.ts';
@@ -242,11 +244,22 @@ interface CacheEntry {
   at: number;
 }
 
+/** Key records cached, and key texts whose hash is kept: the working keys of many sites. */
+export const KEY_CACHE_MAX = 10_000;
+/** Unknown key hashes remembered (for UNKNOWN_KEY_TTL_MS), apart from the working keys. */
+export const UNKNOWN_KEY_CACHE_MAX = 1_000;
+export const UNKNOWN_KEY_TTL_MS = 5_000;
+
 export class KeyService {
-  private readonly byHash = new Map<string, CacheEntry>();
-  private readonly byId = new Map<string, CacheEntry>();
-  /** SHA-256 of recently seen key texts (hashing is a tenth of a cached request's CPU time). */
-  private readonly hashes = new Map<string, string>();
+  /**
+   * Working keys by hash and by id (least recently used go first). Unknown keys live in their own
+   * small cache, so a flood of guessed keys can neither evict a working key nor grow memory.
+   */
+  private readonly byHash = new LRUCache<string, CacheEntry>({ max: KEY_CACHE_MAX });
+  private readonly byId = new LRUCache<string, CacheEntry>({ max: KEY_CACHE_MAX });
+  private readonly unknown = new LRUCache<string, true>({ max: UNKNOWN_KEY_CACHE_MAX, ttl: UNKNOWN_KEY_TTL_MS, ttlAutopurge: false });
+  /** SHA-256 of working key texts (hashing is a tenth of a cached request's CPU time); unknown texts are hashed each time. */
+  private readonly hashes = new LRUCache<string, string>({ max: KEY_CACHE_MAX });
   /** lastUsedAt not yet written, by key id. */
   private readonly pendingUse = new Map<string, number>();
   private timer: NodeJS.Timeout | undefined;
@@ -391,15 +404,14 @@ export class KeyService {
     if (!kindOfKeyText(text) || text.length > 100) {
       throw new HttpError('invalid-key', 'The key is not a Nadirline key: keys start with nlb_ (browser) or nls_ (server).');
     }
-    let hash = this.hashes.get(text);
-    if (hash === undefined) {
-      hash = hashKeyText(text);
-      if (this.hashes.size >= 10_000) this.hashes.clear();
-      this.hashes.set(text, hash);
-    }
+    const hash = this.hashes.get(text) ?? hashKeyText(text);
     const hit = this.byHash.get(hash);
-    if (!hit || Date.now() - hit.at >= (hit.record ? KEY_CACHE_TTL_MS : 5_000)) return undefined;
-    return this.checked(text, hit.record, now);
+    if (hit && Date.now() - hit.at < KEY_CACHE_TTL_MS) {
+      if (hit.record) this.hashes.set(text, hash);
+      return this.checked(text, hit.record, now);
+    }
+    if (this.unknown.has(hash)) return this.checked(text, null, now);
+    return undefined;
   }
 
   private checked(text: string, record: KeyRecord | null, now: Date): KeyRecord {
@@ -433,6 +445,7 @@ export class KeyService {
   invalidate(key: { id: string; hash: string }): void {
     this.byHash.delete(key.hash);
     this.byId.delete(key.id);
+    this.unknown.delete(key.hash);
   }
 
   serializeKey(key: ApiKey | KeyRecord, now: Date = new Date()): KeyJson {
@@ -456,14 +469,22 @@ export class KeyService {
 
   private async lookup(hash: string): Promise<KeyRecord | null> {
     const hit = this.byHash.get(hash);
-    const ttl = hit?.record ? KEY_CACHE_TTL_MS : 5_000;
-    if (hit && Date.now() - hit.at < ttl) return hit.record;
+    if (hit && Date.now() - hit.at < KEY_CACHE_TTL_MS) return hit.record;
+    if (this.unknown.has(hash)) return null;
     const row = await ApiKey.findOne({ where: { hash } });
     const record = row ? toRecord(row) : null;
-    if (this.byHash.size > 10_000) this.byHash.clear();
+    if (!record) {
+      this.unknown.set(hash, true);
+      return null;
+    }
     this.byHash.set(hash, { record, at: Date.now() });
-    if (record) this.byId.set(record.id, { record, at: Date.now() });
+    this.byId.set(record.id, { record, at: Date.now() });
     return record;
+  }
+
+  /** How many keys each cache holds (for tests and diagnostics). */
+  cacheSizes(): { known: number; unknown: number; hashes: number } {
+    return { known: this.byHash.size, unknown: this.unknown.size, hashes: this.hashes.size };
   }
 }
 

@@ -9,6 +9,7 @@
 import { z } from 'zod';
 import { PROBLEM_TYPES, type ProblemCode } from '../http/problem.ts';
 import { CAPS, V1_ROUTES, problemSchema, type RouteSpec } from '@nadirline/shared/contract';
+import { MAX_SETS_PER_UPLOAD } from './satellites.ts';
 
 export type OpenApiDocument = Record<string, unknown> & {
   openapi: string;
@@ -43,9 +44,10 @@ const MEANINGS: Record<ProblemCode, string> = {
   'email-mismatch': 'The invitation was sent to another e-mail address than the one signed in. Sign in, or sign up, with the invited address to accept it.',
   'not-found': 'No such route, satellite, element set or embed visible to this credential. Check the id (GET /v1/satellites lists them) and that the key belongs to the satellite\u2019s organization.',
   'method-not-allowed': 'The path exists but not for this method; the `Allow` header lists the methods it takes.',
+  'request-timeout': 'The request body did not arrive in time after the headers (the server waits BODY_TIMEOUT_MS, 10 s unless configured), usually because Content-Length promised more bytes than were sent. The connection is closed; send the request again with its whole body.',
   'conflict': 'The change clashes with what exists (an account or member that exists already, a key rotated or revoked already, the plan already chosen). The detail says what; reload and decide again.',
   'owner-protected': 'The owner cannot be removed or given another role. The owner can first transfer the organization to another member.',
-  'payload-too-large': `Bodies and files are limited to ${CAPS.uploadMaxBytes / 1024 / 1024} MiB each (${CAPS.uploadMaxFiles} files per upload); the detail names the file. Split the upload into smaller files or several requests.`,
+  'payload-too-large': `Bodies and files are limited to ${CAPS.uploadMaxBytes / 1024 / 1024} MiB each (${CAPS.uploadMaxFiles} files per upload), and one upload holds at most ${MAX_SETS_PER_UPLOAD} element sets (counted over all its files; \`limitSets\` and \`line\`, with \`file\`, say where set ${MAX_SETS_PER_UPLOAD + 1} starts). Split the upload into smaller files or several requests.`,
   'unsupported-media-type': 'Element sets go as text/plain, application/xml, application/json or multipart/form-data; set the Content-Type header to one of them.',
   'unprocessable-element-set': 'No submitted element set could be used; `errors` gives file, line, column and field of each problem. Fix those and upload again.',
   'unprocessable': 'The request was well formed but cannot be carried out as asked; the detail says why and what to change.',
@@ -56,6 +58,7 @@ const MEANINGS: Record<ProblemCode, string> = {
   'quota-exceeded': 'The organization used its plan\u2019s monthly requests. The quota resets on the first day of the next month (UTC); the owner can move to a larger plan.',
   'too-many-attempts': 'Too many sign-in, sign-up or e-mail attempts in a short time. Wait the minutes the detail names, then try again.',
   'internal': 'Something failed on the server\u2019s side; it is logged. Retry later, and tell the operator if it keeps happening.',
+  'busy': 'The database was busy with other writes for longer than the server waits; nothing was stored by this request. Send it again after `Retry-After` seconds.',
   'unavailable': 'A part of this server is not ready (the console or widget is not built, or a provider is not set up); the detail says which. Retry later, or ask the server\u2019s operator.',
 };
 

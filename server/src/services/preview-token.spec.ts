@@ -51,4 +51,14 @@ describe('console preview tokens', () => {
     const sig = crypto.createHmac('sha256', key).update(payload).digest('base64url');
     expect(verifyPreviewToken(SECRET, `nlp_${payload}.${sig}`, T0)).toEqual({ ok: false, reason: 'malformed' });
   });
+
+  it('refuses a correctly signed token whose expiry lies further out than the fifteen minutes tokens are issued for', () => {
+    const yearAhead = issuePreviewToken(SECRET, 'org_1', T0 + 365 * 86_400_000).token;
+    expect(verifyPreviewToken(SECRET, yearAhead, T0)).toMatchObject({ ok: false, reason: 'too-long' });
+    const hourAhead = issuePreviewToken(SECRET, 'org_1', T0 + 3_600_000).token;
+    expect(verifyPreviewToken(SECRET, hourAhead, T0)).toMatchObject({ ok: false, reason: 'too-long' });
+    // A clock of the issuing process up to a minute ahead is tolerated.
+    const skewed = issuePreviewToken(SECRET, 'org_1', T0 + 50_000).token;
+    expect(verifyPreviewToken(SECRET, skewed, T0).ok).toBe(true);
+  });
 });

@@ -9,7 +9,8 @@
  *   isPreviewTokenText(text)                -> boolean (the `nlp_` prefix)
  *
  * Format: `nlp_<base64url(JSON payload)>.<base64url(HMAC-SHA256)>`, payload `{ org, exp }` with
- * `exp` in seconds since the epoch. The HMAC key is derived from SESSION_SECRET with a fixed label,
+ * `exp` in seconds since the epoch; a token whose `exp` lies further out than the 15 minutes tokens
+ * are issued for (plus a minute of clock skew) is refused. The HMAC key is derived from SESSION_SECRET with a fixed label,
  * so a preview signature never doubles as a session-cookie signature. Nothing is stored: a token
  * works until it expires (PREVIEW_TOKEN_TTL_MS), which bounds what a member removed meanwhile can
  * still read. What a token may do on /v1 (read only, this server's own origin, the organization's
@@ -32,7 +33,10 @@ export interface PreviewClaims {
   exp: number;
 }
 
-export type PreviewVerdict = { ok: true; claims: PreviewClaims } | { ok: false; reason: 'malformed' | 'signature' | 'expired'; claims?: PreviewClaims };
+export type PreviewVerdict = { ok: true; claims: PreviewClaims } | { ok: false; reason: 'malformed' | 'signature' | 'expired' | 'too-long'; claims?: PreviewClaims };
+
+/** Clock difference allowed between processes that issue and check tokens. */
+export const PREVIEW_CLOCK_SKEW_MS = 60_000;
 
 export function isPreviewTokenText(text: string): boolean {
   return text.startsWith(PREVIEW_TOKEN_PREFIX);
@@ -73,5 +77,7 @@ export function verifyPreviewToken(secret: string, text: string, now = Date.now(
   }
   const valid = { org: c.org, exp: c.exp };
   if (now >= valid.exp * 1000) return { ok: false, reason: 'expired', claims: valid };
+  // Tokens are issued for PREVIEW_TOKEN_TTL_MS; one that claims to last longer was not made here.
+  if (valid.exp * 1000 > now + PREVIEW_TOKEN_TTL_MS + PREVIEW_CLOCK_SKEW_MS) return { ok: false, reason: 'too-long', claims: valid };
   return { ok: true, claims: valid };
 }

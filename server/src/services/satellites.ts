@@ -25,11 +25,12 @@
  *   Actor = { userId?: string | null, keyId?: string | null }
  */
 import { nanoid } from 'nanoid';
+import { UniqueConstraintError } from 'sequelize';
 import {
   deriveElements,
   fromKeplerian,
-  parseElementSets,
   propagateAt,
+  readElementSets,
   stalenessOf,
   toOmmJson,
   toOmmKvn,
@@ -139,7 +140,7 @@ export class SatelliteService {
     }
     let entries: ParsedEntry[] | null = null;
     if (input.elementsText !== undefined && input.elementsText.trim() !== '') {
-      entries = this.parseText(input.elementsText, input.format);
+      entries = this.parseText(input.elementsText, input.format, MAX_SETS_PER_UPLOAD);
       const usable = entries.filter((e) => e.result.ok);
       if (usable.length === 0) throw unprocessable(entries.map((e) => reportOf(e)), 'None of the submitted element sets could be used; the satellite was not created.');
     }
@@ -184,10 +185,11 @@ export class SatelliteService {
 
   /** Parse and store element sets for a satellite; bad entries are reported, good ones kept. */
   async addElementSets(satellite: Satellite, input: UploadInput, actor: Actor): Promise<UploadResult> {
+    // One cap for the whole upload (text and every file), enforced while each text is read.
     const batch: BatchItem[] = [];
-    if (input.text !== undefined) batch.push(...withRawText(input.text, this.parseText(input.text, input.format)));
+    if (input.text !== undefined) batch.push(...withRawText(input.text, this.parseText(input.text, input.format, MAX_SETS_PER_UPLOAD)));
     for (const f of input.files ?? []) {
-      batch.push(...withRawText(f.text, this.parseText(f.text, formatFromFileName(f.name)), f.name));
+      batch.push(...withRawText(f.text, this.parseText(f.text, formatFromFileName(f.name), MAX_SETS_PER_UPLOAD - batch.length, f.name), f.name));
     }
     if (input.kepler !== undefined) {
       const result = fromKeplerian(input.kepler as Parameters<typeof fromKeplerian>[0]);
@@ -295,20 +297,54 @@ export class SatelliteService {
     return Promise.all(satellites.map((s) => this.view(s, now, uploaders)));
   }
 
-  private parseText(text: string, format?: ElementFormat): ParsedEntry[] {
+  /**
+   * The entries of one text, at most `room` of them: reading stops at the first entry over the
+   * upload's cap (413, with where that entry starts), so a text of a million lines costs no more
+   * than one of five hundred sets.
+   */
+  private parseText(text: string, format: ElementFormat | undefined, room: number, file?: string): ParsedEntry[] {
     if (text.length > MAX_ELEMENT_TEXT_CHARS) {
       throw new HttpError('payload-too-large', `Element set text is limited to ${MAX_ELEMENT_TEXT_CHARS.toLocaleString('en')} characters.`);
     }
-    return parseElementSets(text, format);
+    const read = readElementSets(text, { hint: format, maxEntries: Math.max(0, room) });
+    if (!read.ok) {
+      const where = `line ${read.line}${file !== undefined ? ` of ${file}` : ''}`;
+      throw new HttpError(
+        'payload-too-large',
+        `At most ${MAX_SETS_PER_UPLOAD} element sets per upload; this one holds more (set ${MAX_SETS_PER_UPLOAD + 1} starts at ${where}). Send the rest in another upload.`,
+        { limitSets: MAX_SETS_PER_UPLOAD, line: read.line, ...(file !== undefined ? { file } : {}) },
+      );
+    }
+    return read.entries;
   }
 
+  /**
+   * Store the usable entries of a batch in one transaction. The epochs already stored are read
+   * inside it, after the satellite's row is locked (PostgreSQL: FOR UPDATE; SQLite: the
+   * transaction is IMMEDIATE and queued, see db/write-lock.ts), so two uploads of one epoch cannot
+   * both miss each other. The unique (satelliteId, epoch) index is the backstop: should it still
+   * refuse a row, the whole batch runs again and finds that epoch stored.
+   */
   private async storeEntries(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
+    for (let attempt = 1; ; attempt++) {
+      try {
+        return await this.storeEntriesOnce(satellite, batch, actor);
+      } catch (err) {
+        if (!(err instanceof UniqueConstraintError) || attempt >= 3) throw err;
+      }
+    }
+  }
+
+  private async storeEntriesOnce(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
     const report: ReportEntry[] = [];
     const created: ElementSetRecord[] = [];
-    const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'] });
-    const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
     let catalog = satellite.catalogNumber;
     await this.ctx.sequelize.transaction(async (transaction) => {
+      const locked = await Satellite.findByPk(satellite.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ['id', 'catalogNumber'] });
+      if (!locked) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
+      catalog = locked.catalogNumber;
+      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'], transaction });
+      const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
       for (const { entry, file, raw } of batch) {
         const base = reportOf(entry, file);
         if (!entry.result.ok) {
@@ -367,25 +403,26 @@ export class SatelliteService {
   }
 }
 
-interface BatchItem {
+export interface BatchItem {
   entry: ParsedEntry;
   /** The entry's own text as submitted (kept with the stored set). */
   raw: string;
   file?: string;
 }
 
-/** Each entry with its slice of the submitted text: from its first line to the next entry's. */
-function withRawText(text: string, entries: ParsedEntry[], file?: string): BatchItem[] {
-  const lines = text.split(/\r\n|\n|\r/);
+/**
+ * Each entry with its slice of the submitted text: from its first line to the next entry's.
+ * One pass: the start lines are sorted once and each slice is cut once (entries that start on
+ * the same line share it).
+ */
+export function withRawText(text: string, entries: ParsedEntry[], file?: string): BatchItem[] {
   const starts = [...new Set(entries.map((e) => e.line))].sort((a, b) => a - b);
-  return entries.map((entry) => {
-    let raw = text;
-    if (starts.length > 1) {
-      const next = starts.find((l) => l > entry.line) ?? lines.length + 1;
-      raw = lines.slice(entry.line - 1, next - 1).join('\n').trim();
-    }
-    return { entry, raw, ...(file !== undefined ? { file } : {}) };
-  });
+  const extra = file !== undefined ? { file } : {};
+  if (starts.length <= 1) return entries.map((entry) => ({ entry, raw: text, ...extra }));
+  const lines = text.split(/\r\n|\n|\r/);
+  const slices = new Map<number, string>();
+  starts.forEach((line, i) => slices.set(line, lines.slice(line - 1, (starts[i + 1] ?? lines.length + 1) - 1).join('\n').trim()));
+  return entries.map((entry) => ({ entry, raw: slices.get(entry.line) ?? text, ...extra }));
 }
 
 /**

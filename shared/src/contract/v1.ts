@@ -22,6 +22,10 @@ export const CAPS = {
   passesDefaultDays: 3,
   passesDefaultMinElevationDeg: 10,
   positionsMaxIds: 50,
+  /** Most satellites in one batch track request (GET /v1/tracks). */
+  tracksMaxIds: 50,
+  /** Most points of all tracks together in one batch answer (50 satellites of about 1200 points). */
+  tracksMaxPoints: 60_000,
   /** Largest element-set body or file, bytes. */
   uploadMaxBytes: 2 * 1024 * 1024,
   uploadMaxFiles: 20,
@@ -100,6 +104,14 @@ export const positionsQuery = z.object({
     `comma-separated satellite ids (at most ${CAPS.positionsMaxIds})`,
   ),
   at: isoTime('Time of the positions. Default: now.').optional(),
+});
+
+/** One window for many satellites: the ids of /positions (same cap) with the window of /track. */
+export const tracksQuery = z.object({
+  ids: positionsQuery.shape.ids,
+  start: trackQuery.shape.start,
+  end: isoTime(`Last point at or before this time, the same for every satellite. Default: one orbital period of each satellite after start. At most ${CAPS.trackMaxWindowS / 3600} h after start.`).optional(),
+  step: trackQuery.shape.step,
 });
 
 export const passesQuery = z.object({
@@ -195,6 +207,22 @@ export const trackSchema = z.object({
   stepS: z.number(),
   count: z.number().int(),
   points: z.array(trackPointSchema),
+});
+
+export const trackErrorSchema = z.object({
+  code: z.string().meta({ description: 'The problem code the one-satellite track route would answer (not-found, no-element-set, decayed, propagation-failed)' }),
+  status: z.number().int().meta({ description: 'The HTTP status that route would answer' }),
+  detail: z.string().meta({ description: 'A sentence for people' }),
+});
+export const tracksSchema = z.object({
+  start: t,
+  stepS: z.number(),
+  tracks: z.array(
+    z.union([
+      trackSchema.extend({ name: z.string() }),
+      z.object({ satelliteId: z.string(), name: z.string().nullable(), error: trackErrorSchema }),
+    ]),
+  ),
 });
 
 export const passSchema = z.object({
@@ -351,6 +379,20 @@ export const V1_ROUTES: RouteSpec[] = [
   },
   {
     method: 'get',
+    path: '/tracks',
+    operationId: 'getTracks',
+    summary: 'Ground tracks of several satellites over one window',
+    description: `One request, counted once against the rate limit and the quota, for the same window of up to ${CAPS.tracksMaxIds} satellites: each id gets the answer of \`GET /v1/satellites/{id}/track\` (same caps per track; at most ${CAPS.tracksMaxPoints} points in all), in the order asked. An id this key may not see, or whose track cannot be computed, gets an \`error\` with the code and status the one-satellite route would answer, and the others are still answered. Answers carry an ETag; windows whose start and end are whole multiples of ${CAPS.trackCacheQuantumS} s are publicly cacheable.`,
+    access: 'read',
+    query: tracksQuery,
+    responses: {
+      '200': { description: 'One entry per id, in the order asked', schema: tracksSchema },
+      '304': { description: 'Not modified (If-None-Match matched the ETag)' },
+    },
+    problems: ['validation-failed'],
+  },
+  {
+    method: 'get',
     path: '/satellites/{id}/passes',
     operationId: 'getPasses',
     summary: 'Passes over an observer',
@@ -441,6 +483,8 @@ export type V1PositionsEntry = (V1Position & { id: string; name: string }) | { i
 export type V1Positions = { t: string; positions: V1PositionsEntry[] };
 export type V1TrackPoint = z.output<typeof trackPointSchema>;
 export type V1Track = z.output<typeof trackSchema>;
+export type V1Tracks = z.output<typeof tracksSchema>;
+export type V1TracksEntry = V1Tracks['tracks'][number];
 export type V1Pass = z.output<typeof passSchema>;
 export type V1Passes = z.output<typeof passesSchema>;
 export type V1ReportEntry = z.output<typeof reportEntrySchema>;

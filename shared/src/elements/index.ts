@@ -14,7 +14,8 @@ export {
   meanMotionFromPeriod,
 } from './kepler.ts';
 export type { KeplerianInput } from './kepler.ts';
-export { parseElementSets, parseElementSet, detectElementSetFormat } from './detect.ts';
+export { parseElementSets, parseElementSet, readElementSets, detectElementSetFormat } from './detect.ts';
+export type { ElementSetsRead, ReadElementSetsOptions } from './detect.ts';
 export { toSatrec } from './satrec.ts';
 export type { ElementSetErrorCode } from './errors.ts';
 export { MIN_MEAN_MOTION, MAX_MEAN_MOTION, MAX_TLE_CATALOG, MAX_OMM_CATALOG } from './validate.ts';

@@ -174,9 +174,10 @@ export function readJson(text: string): JsonRead<JsonNode> {
 
 /**
  * Read a JSON document whose top level is an array, one element at a time: elements before a
- * syntax error are kept, and the error is reported at its place.
+ * syntax error are kept, and the error is reported at its place. Reading stops after `limit`
+ * elements (what follows them is not read).
  */
-export function readJsonArrayItems(text: string): { items: JsonNode[]; error?: { offset: number; reason: string } } {
+export function readJsonArrayItems(text: string, limit = Infinity): { items: JsonNode[]; error?: { offset: number; reason: string } } {
   const r = new Reader(text);
   r.skipSpace();
   if (text[r.pos] !== '[') {
@@ -193,6 +194,7 @@ export function readJsonArrayItems(text: string): { items: JsonNode[]; error?: {
       const v = r.value(1);
       if (!v.ok) return { items, error: { offset: v.offset, reason: v.reason } };
       items.push(v.value);
+      if (items.length >= limit) return { items };
       r.skipSpace();
       const c = text[r.pos];
       if (c === ',') {

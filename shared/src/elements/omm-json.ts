@@ -48,10 +48,10 @@ function fromObject(obj: unknown): ParseResult {
   return buildFromOmm(items, { source: 'omm-json', requireHeader: false });
 }
 
-/** Every object of a JSON text (one object or an array of them), each with its own result. */
-export function parseOmmJsonEntries(text: string): ParsedEntry[] {
+/** Every object of a JSON text (one object or an array of them; at most `limit`), each with its own result. */
+export function parseOmmJsonEntries(text: string, limit = Infinity): ParsedEntry[] {
   const pos = new TextPositions(text);
-  const { items, error } = readJsonArrayItems(text);
+  const { items, error } = readJsonArrayItems(text, limit);
   const entries: ParsedEntry[] = items.map((node, i) => ({
     index: i + 1,
     line: pos.at(node.start).line,

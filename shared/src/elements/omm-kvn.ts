@@ -7,7 +7,7 @@ import type { ElementSet, ParseResult, ParsedEntry } from '../types.ts';
 import { reject } from './errors.ts';
 import { buildFromOmm, fieldText, isOmmKeyword, ommSections } from './omm-common.ts';
 import type { OmmExportOptions, OmmItem } from './omm-common.ts';
-import { splitLines } from './tle.ts';
+import { iterateLines, splitLines } from './tle.ts';
 import type { SourceLine } from './tle.ts';
 
 const KVN_LINE = /^(\s*)([A-Za-z][A-Za-z0-9_]*)(\s*)=(\s*)(.*)$/;
@@ -19,19 +19,26 @@ function isSkippable(l: SourceLine): boolean {
   return l.text.trim() === '' || COMMENT_LINE.test(l.text);
 }
 
-/** Split KVN text into messages at each CCSDS_OMM_VERS line. Lines before the first one form a chunk of their own. */
-export function splitKvnMessages(lines: SourceLine[]): SourceLine[][] {
+/**
+ * Split KVN lines into messages at each CCSDS_OMM_VERS line. Lines before the first one form a
+ * chunk of their own. Lines are read as needed: splitting stops once `limit` messages are made.
+ */
+export function splitKvnMessages(lines: Iterable<SourceLine>, limit = Infinity): SourceLine[][] {
   const chunks: SourceLine[][] = [];
   let current: SourceLine[] = [];
+  let content = false;
   for (const l of lines) {
-    if (VERSION_LINE.test(l.text) && current.some((c) => !isSkippable(c))) {
+    if (content && VERSION_LINE.test(l.text)) {
       chunks.push(current);
+      if (chunks.length >= limit) return chunks;
       current = [];
+      content = false;
     }
     current.push(l);
+    if (!content && !isSkippable(l)) content = true;
   }
-  chunks.push(current);
-  return chunks.filter((c) => c.some((l) => !isSkippable(l)));
+  if (content) chunks.push(current);
+  return chunks;
 }
 
 /** Parse one KVN message (its lines carry their numbers in the whole text). */
@@ -68,9 +75,9 @@ export function parseKvnMessage(lines: SourceLine[]): ParseResult {
   return buildFromOmm(items, { source: 'omm-kvn', requireHeader: true, line: first.line, column: 1 });
 }
 
-/** Every message of a KVN text, each with its own result. */
-export function parseOmmKvnEntries(text: string): ParsedEntry[] {
-  return splitKvnMessages(splitLines(text)).map((chunk, i) => {
+/** Every message of a KVN text (at most `limit` of them), each with its own result. */
+export function parseOmmKvnEntries(text: string, limit = Infinity): ParsedEntry[] {
+  return splitKvnMessages(iterateLines(text), limit).map((chunk, i) => {
     const first = chunk.find((l) => !isSkippable(l));
     return { index: i + 1, line: first?.line ?? 1, result: parseKvnMessage(chunk) };
   });

@@ -32,22 +32,72 @@ interface Chunk {
   end: number;
 }
 
-/** Replace XML comments by blanks of the same length (newlines kept), so searches skip them. */
-function maskComments(text: string): string {
-  return text.replace(/<!--[\s\S]*?(?:-->|$)/g, (m) => m.replace(/[^\r\n]/g, ' '));
+/**
+ * Replace XML comments by blanks of the same length (newlines kept), so searches skip them;
+ * `unclosed` is where a comment starts that never ends.
+ */
+function maskComments(text: string): { masked: string; unclosed: number | null } {
+  const parts: string[] = [];
+  let from = 0;
+  for (let open = text.indexOf('<!--'); open >= 0; open = text.indexOf('<!--', from)) {
+    const close = text.indexOf('-->', open + 4);
+    const end = close < 0 ? text.length : close + 3;
+    const comment = text.slice(open, end);
+    parts.push(text.slice(from, open), /[\r\n]/.test(comment) ? comment.replace(/[^\r\n]/g, ' ') : ' '.repeat(comment.length));
+    from = end;
+    if (close < 0) return { masked: parts.join(''), unclosed: open };
+  }
+  parts.push(text.slice(from));
+  return { masked: parts.join(''), unclosed: null };
 }
 
 const OMM_OPEN = /<([A-Za-z_][\w.-]*:)?omm(?=[\s>/])/g;
+const OMM_CLOSE = /<\/([A-Za-z_][\w.-]*:)?omm/g;
 
-function findOmmChunks(masked: string): Chunk[] {
+/**
+ * Where each <omm> element sits: from its start tag to the end of its matching close tag, or to
+ * the next <omm> (or the end) when it is not closed. One pass over the text for the start tags
+ * (stopping after `limit` chunks), one for the close tags, then the two lists are walked
+ * together, so the cost is linear in the text whatever it holds.
+ */
+function findOmmChunks(masked: string, limit = Infinity): Chunk[] {
   const opens: { start: number; prefix: string }[] = [];
-  for (const m of masked.matchAll(OMM_OPEN)) opens.push({ start: m.index, prefix: m[1] ?? '' });
-  return opens.map((o, i) => {
-    const limit = opens[i + 1]?.start ?? masked.length;
-    const close = masked.indexOf(`</${o.prefix}omm`, o.start);
-    if (close < 0 || close >= limit) return { start: o.start, end: limit };
-    const gt = masked.indexOf('>', close);
-    return { start: o.start, end: gt < 0 || gt >= limit ? limit : gt + 1 };
+  OMM_OPEN.lastIndex = 0;
+  // One start tag past the limit is read too: it is where the last chunk read ends.
+  for (let m = OMM_OPEN.exec(masked); m !== null && opens.length <= limit; m = OMM_OPEN.exec(masked)) {
+    opens.push({ start: m.index, prefix: m[1] ?? '' });
+  }
+  // Close tags per namespace prefix, in text order; one cursor each, moving forward only.
+  const closes = new Map<string, { at: number[]; next: number }>();
+  OMM_CLOSE.lastIndex = 0;
+  for (let m = OMM_CLOSE.exec(masked); m !== null; m = OMM_CLOSE.exec(masked)) {
+    const prefix = m[1] ?? '';
+    let list = closes.get(prefix);
+    if (!list) closes.set(prefix, (list = { at: [], next: 0 }));
+    list.at.push(m.index);
+  }
+  // The first '>' at or after a position. Positions asked for only grow, and no '>' lies
+  // between the last position asked and the '>' found then, so each stretch is searched once.
+  let asked = -1;
+  let found = -1;
+  const gtAfter = (from: number): number => {
+    if (asked < 0 || (found >= 0 && found < from)) {
+      asked = from;
+      found = masked.indexOf('>', from);
+    }
+    return found;
+  };
+  return opens.slice(0, limit).map((o, i) => {
+    const limitAt = opens[i + 1]?.start ?? masked.length;
+    const list = closes.get(o.prefix);
+    let close = -1;
+    if (list) {
+      while (list.next < list.at.length && (list.at[list.next] as number) < o.start) list.next++;
+      close = list.at[list.next] ?? -1;
+    }
+    if (close < 0 || close >= limitAt) return { start: o.start, end: limitAt };
+    const gt = gtAfter(close);
+    return { start: o.start, end: gt < 0 || gt >= limitAt ? limitAt : gt + 1 };
   });
 }
 
@@ -82,44 +132,84 @@ function localName(qname: string): string {
   return i < 0 ? qname : qname.slice(i + 1);
 }
 
-const TOKEN =
-  /<!--[\s\S]*?-->|<!\[CDATA\[([\s\S]*?)\]\]>|<\?[\s\S]*?\?>|<\/([^\s>]+)\s*>|<([^\s/>!?]+)((?:\s+[^\s=/>]+\s*=\s*(?:"[^"]*"|'[^']*'))*)\s*(\/?)>|[^<]+/y;
+/** Elements nested deeper than this are refused (an OMM is six levels deep: omm, body, segment, data, meanElements, a value). */
+const MAX_DEPTH = 16;
+/** At most this many elements in one <omm> (CCSDS 502.0-B-3 defines about seventy keywords). */
+const MAX_ELEMENTS = 1000;
+/** At most this many pieces (tags, text runs, comments) in one <omm>. */
+const MAX_TOKENS = 10 * MAX_ELEMENTS;
+/** At most this many attributes on one element (OMM uses id, version, units and namespace declarations). */
+const MAX_ATTRIBUTES = 32;
+
+const TOKEN = new RegExp(
+  `<!--[\\s\\S]*?-->|<!\\[CDATA\\[([\\s\\S]*?)\\]\\]>|<\\?[\\s\\S]*?\\?>|<\\/([^\\s>]+)\\s*>|<([^\\s/>!?]+)((?:\\s+[^\\s=/>]+\\s*=\\s*(?:"[^"]*"|'[^']*')){0,${MAX_ATTRIBUTES}})\\s*(\\/?)>|[^<]+`,
+  'y',
+);
+/** A start tag with more attributes than MAX_ATTRIBUTES (checked where TOKEN stopped). */
+const CROWDED_TAG = new RegExp(`<[^\\s/>!?]+(?:\\s+[^\\s=/>]+\\s*=\\s*(?:"[^"]*"|'[^']*')){${MAX_ATTRIBUTES + 1}}`, 'y');
 const ATTR = /([^\s=/>]+)\s*=\s*(?:"([^"]*)"|'([^']*)')/g;
 
+type ReadXml = { ok: true; root: XmlElement } | { ok: false; at: number; limit?: string };
+
 /**
- * Read a chunk that XMLValidator (fast-xml-parser) has found well-formed into elements that
- * keep their offsets, so every value can be reported at its own line and column.
+ * Read a chunk into elements that keep their offsets, so every value can be reported at its
+ * own line and column. Stops at the first thing it cannot read (XMLValidator of fast-xml-parser
+ * then says what is wrong) or at the first limit crossed (depth, elements, attributes), so a
+ * hostile chunk costs no more than the limits allow before the validator sees it.
  */
-function readElements(xml: string): XmlElement | null {
+function readElements(xml: string): ReadXml {
   const root: XmlElement = { name: '#document', attrs: new Map(), children: [], text: '', textAt: 0, at: 0 };
   const stack: XmlElement[] = [root];
+  // Text pieces per open element, joined when it closes (growing one string and trimming it
+  // for every piece would cost the square of the number of pieces).
+  const pieces: string[][] = [[]];
+  const seenText: boolean[] = [false];
+  let elements = 0;
+  let tokens = 0;
   TOKEN.lastIndex = 0;
   while (TOKEN.lastIndex < xml.length) {
     const at = TOKEN.lastIndex;
+    if (++tokens > MAX_TOKENS) return { ok: false, at, limit: `one <omm> holds more than ${MAX_TOKENS} pieces (tags, text and comments)` };
     const m = TOKEN.exec(xml);
-    if (!m) return null;
+    if (!m) {
+      CROWDED_TAG.lastIndex = at;
+      if (CROWDED_TAG.test(xml)) return { ok: false, at, limit: `an element has more than ${MAX_ATTRIBUTES} attributes` };
+      return { ok: false, at };
+    }
     const top = stack[stack.length - 1] as XmlElement;
     const [whole, cdata, endName, startName, attrText = '', selfClose] = m;
     if (startName !== undefined) {
+      if (++elements > MAX_ELEMENTS) return { ok: false, at, limit: `one <omm> holds more than ${MAX_ELEMENTS} elements` };
       const el: XmlElement = { name: localName(startName), attrs: new Map(), children: [], text: '', textAt: at + whole.length, at };
       for (const a of attrText.matchAll(ATTR)) {
         el.attrs.set(localName(a[1] ?? ''), { value: decodeEntities(a[2] ?? a[3] ?? ''), at: at + startName.length + 1 + (a.index ?? 0) });
       }
       top.children.push(el);
-      if (selfClose !== '/') stack.push(el);
+      if (selfClose !== '/') {
+        stack.push(el);
+        pieces.push([]);
+        seenText.push(false);
+        if (stack.length > MAX_DEPTH + 1) return { ok: false, at, limit: `elements are nested more than ${MAX_DEPTH} levels deep (an OMM needs six)` };
+      }
     } else if (endName !== undefined) {
-      if (stack.length <= 1) return null;
+      if (stack.length <= 1) return { ok: false, at };
+      top.text = (pieces.pop() as string[]).join('');
+      seenText.pop();
       stack.pop();
     } else if (cdata !== undefined || !whole.startsWith('<')) {
       const piece = cdata ?? decodeEntities(whole);
-      if (top.text.trim() === '' && piece.trim() !== '') {
+      const depth = stack.length - 1;
+      if (!seenText[depth] && piece.trim() !== '') {
         const lead = whole.length - whole.trimStart().length;
         top.textAt = at + (cdata !== undefined ? 9 : lead);
+        seenText[depth] = true;
       }
-      top.text += piece;
+      (pieces[depth] as string[]).push(piece);
     }
   }
-  return stack.length === 1 ? root : null;
+  if (stack.length !== 1) return { ok: false, at: xml.length };
+  root.text = (pieces[0] as string[]).join('');
+  return { ok: true, root };
 }
 
 /** Parse one <omm> element's text; `chunk` is where it sits in the whole text. */
@@ -128,14 +218,15 @@ function parseOmmChunk(text: string, chunk: Chunk, pos: TextPositions): ParseRes
   const base = pos.at(chunk.start);
   const absolute = (line: number, column: number): { line: number; column: number } =>
     line === 1 ? { line: base.line, column: base.column + column - 1 } : { line: base.line + line - 1, column };
+  const doc = readElements(xml);
+  if (!doc.ok && doc.limit) return reject('structure', { field: 'xml', ...pos.at(chunk.start + doc.at) }, doc.limit);
   const valid = XMLValidator.validate(xml);
   if (valid !== true) {
     const { err } = valid;
     const where = absolute(err.line ?? 1, err.col ?? 1);
     return reject('syntax', { field: 'xml', ...where }, `not well-formed XML: ${err.msg}`);
   }
-  const doc = readElements(xml);
-  const root = doc?.children.length === 1 ? doc.children[0] : undefined;
+  const root = doc.ok && doc.root.children.length === 1 ? doc.root.children[0] : undefined;
   if (!root || root.name !== 'omm') {
     return reject('syntax', { field: 'xml', ...base }, 'expected one well-formed <omm> element');
   }
@@ -184,8 +275,8 @@ function parseOmmChunk(text: string, chunk: Chunk, pos: TextPositions): ParseRes
   return buildFromOmm(items, { source: 'omm-xml', requireHeader: true, line: base.line, column: base.column });
 }
 
-/** Text outside the <omm> elements that is neither prolog, comment nor the <ndm> wrapper. */
-function strayText(masked: string, chunks: Chunk[]): { offset: number; text: string }[] {
+/** Text outside the <omm> elements that is neither prolog, comment nor the <ndm> wrapper (at most `limit` pieces). */
+function strayText(masked: string, chunks: Chunk[], limit = Infinity): { offset: number; text: string }[] {
   const parts: string[] = [];
   let from = 0;
   for (const c of chunks) {
@@ -199,11 +290,11 @@ function strayText(masked: string, chunks: Chunk[]): { offset: number; text: str
   const stray: { offset: number; text: string }[] = [];
   const re = /\S[^\r\n]*/g;
   let m: RegExpExecArray | null;
-  while ((m = re.exec(outside)) !== null) stray.push({ offset: m.index, text: m[0].trimEnd() });
+  while (stray.length < limit && (m = re.exec(outside)) !== null) stray.push({ offset: m.index, text: m[0].trimEnd() });
   return stray;
 }
 
-function xmlEntries(text: string): { messages: ParsedEntry[]; stray: ParsedEntry[] } {
+function xmlEntries(text: string, limit = Infinity): { messages: ParsedEntry[]; stray: ParsedEntry[] } {
   const pos = new TextPositions(text);
   const doctype = /<!(?:DOCTYPE|ENTITY)/i.exec(text);
   if (doctype) {
@@ -213,14 +304,16 @@ function xmlEntries(text: string): { messages: ParsedEntry[]; stray: ParsedEntry
       stray: [{ index: 1, line: p.line, result: reject('syntax', { field: 'xml', ...p }, 'DOCTYPE and ENTITY declarations are not accepted') }],
     };
   }
-  const masked = maskComments(text);
-  const chunks = findOmmChunks(masked);
+  const { masked, unclosed } = maskComments(text);
+  const chunks = findOmmChunks(masked, limit);
+  // Reading stopped at the cap: what follows the last chunk read is not looked at.
+  const read = chunks.length >= limit ? masked.slice(0, chunks[chunks.length - 1]?.end ?? masked.length) : masked;
   const messages: ParsedEntry[] = chunks.map((c) => ({
     index: 0,
     line: pos.at(c.start).line,
     result: parseOmmChunk(text, c, pos),
   }));
-  const stray: ParsedEntry[] = strayText(masked, chunks).map((s) => {
+  const stray: ParsedEntry[] = strayText(read, chunks, limit).map((s) => {
     const p = pos.at(s.offset);
     const what = s.text.length > 30 ? `${s.text.slice(0, 30)}...` : s.text;
     return {
@@ -229,14 +322,21 @@ function xmlEntries(text: string): { messages: ParsedEntry[]; stray: ParsedEntry
       result: reject('syntax', { field: 'xml', ...p }, `"${what}" is outside any <omm> element`),
     };
   });
+  if (unclosed !== null && chunks.every((c) => c.end <= unclosed)) {
+    const p = pos.at(unclosed);
+    stray.push({ index: 0, line: p.line, result: reject('syntax', { field: 'xml', ...p }, 'a comment starts here (<!--) and is never closed (-->)') });
+  }
   return { messages, stray };
 }
 
-/** Every <omm> of an XML text (a lone <omm> or an <ndm> holding many), each with its own result. */
-export function parseOmmXmlMany(text: string): ParsedEntry[] {
+/**
+ * Every <omm> of an XML text (a lone <omm> or an <ndm> holding many), each with its own result;
+ * text outside any <omm> is an entry of its own. At most `limit` entries are read.
+ */
+export function parseOmmXmlMany(text: string, limit = Infinity): ParsedEntry[] {
   if (typeof text !== 'string') return [];
-  const { messages, stray } = xmlEntries(text);
-  const all = [...messages, ...stray].sort((a, b) => a.line - b.line);
+  const { messages, stray } = xmlEntries(text, limit);
+  const all = [...messages, ...stray].sort((a, b) => a.line - b.line).slice(0, limit);
   return all.map((e, i) => ({ ...e, index: i + 1 }));
 }
 

@@ -22,10 +22,39 @@ export interface SourceLine {
   line: number;
 }
 
+/**
+ * The lines of a text (LF, CRLF or CR), trailing blanks and tabs removed, numbered from
+ * `firstLine`, one at a time: a reader that stops early (at an entry cap) reads no further.
+ * One pass over the text: trailing blanks are found by walking back from each line end, never
+ * by a regular expression (`/[ \t]+$/` retries from every blank of a long run: quadratic).
+ */
+export function* iterateLines(text: string, firstLine = 1): Generator<SourceLine, void, undefined> {
+  let from = text.charCodeAt(0) === 0xfeff ? 1 : 0;
+  let line = firstLine;
+  const n = text.length;
+  for (;;) {
+    let end = from;
+    while (end < n) {
+      const c = text.charCodeAt(end);
+      if (c === 10 || c === 13) break;
+      end++;
+    }
+    let last = end;
+    while (last > from) {
+      const c = text.charCodeAt(last - 1);
+      if (c !== 32 && c !== 9) break;
+      last--;
+    }
+    yield { text: text.slice(from, last), line };
+    if (end >= n) return;
+    from = end + (text.charCodeAt(end) === 13 && text.charCodeAt(end + 1) === 10 ? 2 : 1);
+    line++;
+  }
+}
+
 /** Split text into lines (LF, CRLF or CR), trailing blanks removed, numbered from `firstLine`. */
 export function splitLines(text: string, firstLine = 1): SourceLine[] {
-  const body = text.startsWith('\uFEFF') ? text.slice(1) : text;
-  return body.split(/\r\n|\r|\n/).map((t, i) => ({ text: t.replace(/[ \t]+$/, ''), line: firstLine + i }));
+  return [...iterateLines(text, firstLine)];
 }
 
 // ---------------------------------------------------------------------------------------------

@@ -109,6 +109,7 @@ export interface EmbedConfig extends Pick<V1Embed, 'id' | 'satellites'> {
     theme: string;
     timeZone: string;
     locale: string;
+    observerName: string;
   }>;
   apiKey?: string;
 }
@@ -176,6 +177,28 @@ export class NadirApi {
       ok: true,
       value: r.value.points.map((p) => ({ t: Date.parse(p.t), lat: p.lat, lon: p.lon, altKm: p.altKm, sunlit: p.sunlit })),
     };
+  }
+  /** Every satellite this credential may see, with names and derived elements: one request for many. */
+  satellites(signal?: AbortSignal) {
+    return this.get<{ satellites?: Partial<SatelliteInfo>[] }>('v1/satellites', {}, signal);
+  }
+  /**
+   * One window for many satellites in one request (GET /v1/tracks). Each id gets its samples or
+   * its own problem (no element set, decayed ...), as the one-satellite route would have answered.
+   */
+  async tracks(ids: readonly string[], startMs: number, endMs: number, stepS: number, signal?: AbortSignal): Promise<ApiResult<Map<string, ApiResult<Sample[]>>>> {
+    type Entry = { satelliteId?: string; points?: { t: string; lat: number; lon: number; altKm: number; sunlit: boolean }[]; error?: { code?: string; status?: number; detail?: string } };
+    const r = await this.get<{ tracks?: Entry[] }>('v1/tracks', { ids: ids.join(','), start: iso(startMs), end: iso(endMs), step: stepS }, signal);
+    if (!r.ok) return r;
+    if (!Array.isArray(r.value.tracks)) return { ok: false, code: 'bad-answer', status: 200, title: 'Unreadable answer', detail: '' };
+    const out = new Map<string, ApiResult<Sample[]>>();
+    for (const e of r.value.tracks) {
+      if (typeof e.satelliteId !== 'string') continue;
+      if (Array.isArray(e.points)) out.set(e.satelliteId, { ok: true, value: e.points.map((p) => ({ t: Date.parse(p.t), lat: p.lat, lon: p.lon, altKm: p.altKm, sunlit: p.sunlit })) });
+      else out.set(e.satelliteId, { ok: false, code: e.error?.code ?? 'bad-answer', status: e.error?.status ?? 422, title: e.error?.code ?? '', detail: e.error?.detail ?? '' });
+    }
+    for (const id of ids) if (!out.has(id)) out.set(id, { ok: false, code: 'bad-answer', status: 200, title: 'Unreadable answer', detail: '' });
+    return { ok: true, value: out };
   }
   passes(id: string, obs: { lat: number; lon: number; altM: number }, startMs: number, days: number, signal?: AbortSignal) {
     return this.get<PassesAnswer>(

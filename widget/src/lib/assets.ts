@@ -7,7 +7,9 @@ import { feature } from 'topojson-client';
 import type { Topology, GeometryCollection } from 'topojson-specification';
 import type { Feature, FeatureCollection, Geometry, MultiPolygon, Polygon } from 'geojson';
 
-declare const __NADIR_ASSETS__: { world: string; fonts: Record<string, string> };
+import type { Lang, WordTable } from './words.ts';
+
+declare const __NADIR_ASSETS__: { world: string; land: string; fonts: Record<string, string>; words: Record<string, string> };
 
 /**
  * URL of this script, read once while it runs: `document.currentScript` for the classic script,
@@ -48,6 +50,24 @@ export interface World {
 }
 
 let worldPromise: Promise<World | null> | undefined;
+let landPromise: Promise<World['land'] | null> | undefined;
+
+/**
+ * The land outline alone (world-atlas land-110m, about half the bytes of the countries), once per
+ * page: what the map draws first, so coastlines come no later than tracks on a slow link. Null,
+ * never a throw, when it cannot be had; a later call tries again.
+ */
+export function loadLand(base = scriptUrl, fetchImpl: typeof fetch = (u) => fetch(u)): Promise<World['land'] | null> {
+  landPromise ??= fetchImpl(assetUrl(__NADIR_ASSETS__.land, base))
+    .then((r) => (r.ok ? (r.json() as Promise<Topology>) : null))
+    .then((topo) => (topo ? (feature(topo, topo.objects.land as GeometryCollection) as World['land']) : null))
+    .catch(() => null);
+  const p = landPromise;
+  void p.then((l) => {
+    if (!l && landPromise === p) landPromise = undefined;
+  });
+  return p;
+}
 
 /** Load the world map once per page; null (never a throw) when it cannot be had. */
 export function loadWorld(base = scriptUrl, fetchImpl: typeof fetch = (u) => fetch(u)): Promise<World | null> {
@@ -65,5 +85,27 @@ export function loadWorld(base = scriptUrl, fetchImpl: typeof fetch = (u) => fet
   void p.then((w) => {
     if (!w && worldPromise === p) worldPromise = undefined;
   });
+  return p;
+}
+
+const wordPromises = new Map<string, Promise<WordTable | null>>();
+
+/**
+ * The word table of a language beyond English, fetched once per page from `assets/`; null for
+ * English (built in) and, never a throw, when it cannot be had (the widget then reads in English).
+ */
+export function loadWords(lang: Lang, base = scriptUrl, fetchImpl: typeof fetch = (u) => fetch(u)): Promise<WordTable | null> {
+  const file = typeof __NADIR_ASSETS__ === 'undefined' ? undefined : __NADIR_ASSETS__.words?.[lang];
+  if (lang === 'en' || !file) return Promise.resolve(null);
+  let p = wordPromises.get(lang);
+  if (!p) {
+    p = fetchImpl(assetUrl(file, base))
+      .then((r) => (r.ok ? (r.json() as Promise<WordTable>) : null))
+      .catch(() => null);
+    wordPromises.set(lang, p);
+    void p.then((w) => {
+      if (!w) wordPromises.delete(lang);
+    });
+  }
   return p;
 }

@@ -45,3 +45,12 @@ describe('parseObserver', () => {
     expect(parseObserver({ lat: 10, lon: 20 })).toEqual({ lat: 10, lon: 20, altM: 0 });
   });
 });
+
+describe('observer name', () => {
+  it('takes a trimmed place name from the attribute, then from the saved embed, and none when blank', () => {
+    expect(settle({ observer: '51.4,-2.4', observerName: '  Ostwick   Hall ' }).observerName).toBe('Ostwick Hall');
+    expect(settle({}, { id: 'e', satellites: [], options: { observerName: 'Roof terrace' } }).observerName).toBe('Roof terrace');
+    expect(settle({ observerName: '   ' }).observerName).toBeUndefined();
+    expect(settle({ observerName: 'x'.repeat(200) }).observerName).toHaveLength(60);
+  });
+});

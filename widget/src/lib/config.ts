@@ -23,6 +23,8 @@ export interface Settings {
   theme: Theme;
   timeZone: string | undefined;
   locale: string | undefined;
+  /** What to call a fixed observer place in the pass list ("Ostwick Hall"); none: its coordinates. */
+  observerName: string | undefined;
 }
 
 /** The attributes as the element receives them (all optional strings or numbers). */
@@ -36,6 +38,7 @@ export interface RawOptions {
   theme?: string | undefined;
   timeZone?: string | undefined;
   locale?: string | undefined;
+  observerName?: string | undefined;
 }
 
 export function parseList(v: string | string[] | undefined): string[] {
@@ -68,6 +71,12 @@ function pick<T>(attr: T | undefined | null, saved: T | undefined | null): T | u
   return attr === undefined || attr === null || attr === '' ? (saved ?? undefined) : attr;
 }
 
+/** A place name for people: trimmed, at most 60 characters, none when empty. */
+function observerName(v: string | undefined): string | undefined {
+  const s = typeof v === 'string' ? v.replace(/\s+/g, ' ').trim().slice(0, 60) : '';
+  return s || undefined;
+}
+
 /**
  * Settle the configuration: attributes set on the element win over the saved embed options,
  * which win over the defaults (Equal Earth, one orbit behind and one ahead, all layers, light).
@@ -87,5 +96,6 @@ export function settle(attrs: RawOptions, embed?: EmbedConfig | null): Settings 
     theme: theme === 'dark' || theme === 'auto' ? theme : 'light',
     timeZone: pick(attrs.timeZone, o.timeZone),
     locale: pick(attrs.locale, o.locale),
+    observerName: observerName(pick(attrs.observerName, o.observerName)),
   };
 }

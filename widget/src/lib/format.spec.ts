@@ -1,6 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import type { Pass } from './api.ts';
-import { ageWords, compassWord, latWords, lonWords, passRow } from './format.ts';
+import { ageWords, compassWord, latWords, lonWords, passRow, zoneWords } from './format.ts';
 
 describe('compassWord', () => {
   it('turns azimuths into eight compass words', () => {
@@ -98,5 +98,23 @@ describe('ageWords', () => {
     expect(ageWords(1 / 24)).toBe('1 hour');
     expect(ageWords(2.04)).toBe('2.0 days');
     expect(ageWords(23.5)).toBe('24 days');
+  });
+});
+
+describe('zoneWords', () => {
+  const jan = Date.UTC(2026, 0, 15, 12);
+  it('names a zone as people say it, in the reader’s language, not by its id', () => {
+    expect(zoneWords('America/New_York', 'en', jan)).toBe('Eastern Time');
+    expect(zoneWords('Europe/Berlin', 'de', jan)).toBe('Mitteleuropäische Zeit');
+    expect(zoneWords('Europe/Berlin', 'fr', jan)).toBe('heure d’Europe centrale');
+    expect(zoneWords('Europe/Berlin', 'es', jan)).toBe('hora de Europa central');
+    expect(zoneWords('America/New_York', 'en', jan)).not.toContain('/');
+  });
+  it('reads UTC by its long name rather than as an offset', () => {
+    expect(zoneWords('UTC', 'en', jan)).toBe('Coordinated Universal Time');
+  });
+  it('falls back to the words of the id for a zone the engine does not know, and to the given words without a zone', () => {
+    expect(zoneWords('Nowhere/Far_Away', 'en', jan)).toBe('Far Away');
+    expect(zoneWords('', 'en', jan, 'local time')).not.toBe('');
   });
 });

@@ -1,22 +1,32 @@
 /** Words and times for people: compass directions, latitudes, pass rows, ages. */
 import type { Pass } from './api.ts';
+import { compassIn, compassPhrase, english, type Translate } from './words.ts';
 
-const COMPASS = ['north', 'north-east', 'east', 'south-east', 'south', 'south-west', 'west', 'north-west'] as const;
-
-/** Azimuth in degrees (0 north, 90 east) as one of eight compass words. */
+/** Azimuth in degrees (0 north, 90 east) as one of eight English compass words; `compassIn` for other languages. */
 export function compassWord(azimuthDeg: number): string {
-  const i = Math.round((((azimuthDeg % 360) + 360) % 360) / 45) % 8;
-  return COMPASS[i]!;
+  return compassIn(english, azimuthDeg);
 }
 
-/** "51.6 degrees south" style latitude, and the same for longitude. */
-export function latWords(lat: number): string {
+/** "51.6 degrees south" style latitude, and the same for longitude, in the words of `t`. */
+export function latWords(lat: number, t: Translate = english, locale?: string): string {
   const a = Math.abs(lat).toFixed(1);
-  return a === '0.0' ? 'the equator' : `${a} degrees ${lat >= 0 ? 'north' : 'south'}`;
+  if (a === '0.0') return t('equator');
+  return t(lat >= 0 ? 'latNorth' : 'latSouth', { d: localDecimal(Math.abs(lat), locale) });
 }
-export function lonWords(lon: number): string {
+export function lonWords(lon: number, t: Translate = english, locale?: string): string {
   const a = Math.abs(lon).toFixed(1);
-  return a === '0.0' || a === '180.0' ? `${a} degrees` : `${a} degrees ${lon >= 0 ? 'east' : 'west'}`;
+  const d = localDecimal(Math.abs(lon), locale);
+  return a === '0.0' || a === '180.0' ? t('lonPlain', { d }) : t(lon >= 0 ? 'lonEast' : 'lonWest', { d });
+}
+
+/** One decimal in the locale's digits and separator ("51,6" in German); plain digits without a locale. */
+function localDecimal(x: number, locale: string | undefined): string {
+  if (!locale) return x.toFixed(1);
+  try {
+    return x.toLocaleString(locale, { minimumFractionDigits: 1, maximumFractionDigits: 1 });
+  } catch {
+    return x.toFixed(1);
+  }
 }
 
 /** Short coordinates for the panel: 51.6° S, 20.3° W. */
@@ -71,7 +81,7 @@ export interface PassRow {
  * mask (`minElevationDeg`), not the horizon, and the sentence says so. A pass still under way when
  * the two-day forecast ends has no true set: it reads "still up at ..." with its height so far.
  */
-export function passRow(p: Pass, nowMs: number, opts: ClockOptions, minElevationDeg = 10): PassRow {
+export function passRow(p: Pass, nowMs: number, opts: ClockOptions, minElevationDeg = 10, t: Translate = english): PassRow {
   const fmt = clock(opts);
   const dayFmt = (() => {
     try {
@@ -90,31 +100,71 @@ export function passRow(p: Pass, nowMs: number, opts: ClockOptions, minElevation
     key: p.rise.t,
     day,
     rise: fmt.format(rise),
-    riseDir: compassWord(p.rise.azimuth),
+    riseDir: compassIn(t, p.rise.azimuth),
     highest: fmt.format(top),
-    highestDir: compassWord(p.culmination.azimuth),
-    elevation: open ? `${elev}° so far` : `${elev}°`,
+    highestDir: compassIn(t, p.culmination.azimuth),
+    elevation: open ? t('soFar', { deg: elev }) : `${elev}°`,
     set: fmt.format(set),
-    setDir: compassWord(p.set.azimuth),
+    setDir: compassIn(t, p.set.azimuth),
     visible: p.visible,
     open,
   };
-  const mask = `${minElevationDeg} degrees`;
-  const sentence =
-    `${day ? `${day} ` : ''}climbs above ${mask} at ${row.rise} in the ${row.riseDir}, ` +
-    (open
-      ? `still up at ${row.set} when the forecast ends, ${elev} degrees up so far`
-      : `highest at ${row.highest}, ${elev} degrees up in the ${row.highestDir}, sinks below ${mask} at ${row.set} in the ${row.setDir}`) +
-    (p.visible ? ', visible to the eye' : ', not visible to the eye');
+  const sentence = t(open ? 'passSentenceOpen' : 'passSentence', {
+    day: day ? `${day} ` : '',
+    mask: minElevationDeg,
+    rise: row.rise,
+    riseDirIn: compassPhrase(t, p.rise.azimuth),
+    highest: row.highest,
+    deg: elev,
+    highestDirIn: compassPhrase(t, p.culmination.azimuth),
+    set: row.set,
+    setDirIn: compassPhrase(t, p.set.azimuth),
+    visibility: t(p.visible ? 'visibleToEye' : 'notVisibleToEye'),
+  });
   return { ...row, sentence };
 }
 
-/** "3.2 days" / "5 hours" for element-set ages. */
-export function ageWords(ageDays: number): string {
+/** "3.2 days" / "5 hours" for element-set ages, in the words of `t`. */
+export function ageWords(ageDays: number, t: Translate = english, locale?: string): string {
   if (ageDays < 1) {
     const h = Math.max(1, Math.round(ageDays * 24));
-    return `${h} hour${h === 1 ? '' : 's'}`;
+    return t('hours', { n: h });
   }
-  const d = ageDays < 10 ? ageDays.toFixed(1) : String(Math.round(ageDays));
-  return `${d} days`;
+  const d = ageDays < 10 ? Math.round(ageDays * 10) / 10 : Math.round(ageDays);
+  let n = ageDays < 10 ? d.toFixed(1) : String(d);
+  try {
+    if (locale) n = d.toLocaleString(locale, { minimumFractionDigits: ageDays < 10 ? 1 : 0, maximumFractionDigits: 1 });
+  } catch {
+    // unknown locale: plain digits
+  }
+  return t('days', { n });
+}
+
+/**
+ * A time zone as people say it, in the reader's language: "Eastern Time", "Mitteleuropäische
+ * Zeit", "heure d’Europe centrale" (Intl's generic long name, else its long name at `atMs`),
+ * never the raw "America/New_York". An unknown zone or an engine without these names falls back
+ * to the zone id read as words ("New York"), then to `fallback`.
+ */
+export function zoneWords(timeZone: string | undefined, locale: string | undefined, atMs: number, fallback = 'local time'): string {
+  let zone = timeZone;
+  try {
+    zone ||= Intl.DateTimeFormat().resolvedOptions().timeZone;
+  } catch {
+    zone = undefined;
+  }
+  if (!zone) return fallback;
+  for (const style of ['longGeneric', 'long'] as const) {
+    try {
+      const part = new Intl.DateTimeFormat(locale || undefined, { timeZone: zone, timeZoneName: style })
+        .formatToParts(atMs)
+        .find((p) => p.type === 'timeZoneName')?.value;
+      // engines without a name for the zone give an offset ("GMT-5"), which is no better than the city
+      if (part && !/^(GMT|UTC)[+−-]\d/.test(part)) return part;
+    } catch {
+      // unknown zone or style: try the next
+    }
+  }
+  if (/^(Etc\/)?(UTC|GMT|UCT|Zulu)$/i.test(zone)) return 'UTC';
+  return zone.split('/').pop()!.replace(/_/g, ' ') || fallback;
 }

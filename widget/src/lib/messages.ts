@@ -4,6 +4,7 @@
  */
 import type { ApiProblem } from './api.ts';
 import { ageWords } from './format.ts';
+import { english, type Translate } from './words.ts';
 
 export type Severity = 'error' | 'warning' | 'info';
 
@@ -18,6 +19,8 @@ export interface Notice {
   fatal: boolean;
   /** Milliseconds before the widget asks again; undefined means it does not retry by itself. */
   retryMs?: number;
+  /** What the notice was made from, so a view can say it again in the reader's language. */
+  source?: { problem: Pick<ApiProblem, 'code' | 'status' | 'retryAfterS'>; ctx: NoticeContext };
 }
 
 export interface NoticeContext {
@@ -38,11 +41,10 @@ export function backoffMs(attempt: number): number {
   return Math.min(120_000, 2000 * 2 ** Math.max(0, attempt - 1));
 }
 
-function secondsWords(ms: number): string {
+function secondsWords(ms: number, t: Translate): string {
   const s = Math.round(ms / 1000);
-  if (s < 60) return `${s} second${s === 1 ? '' : 's'}`;
-  const m = Math.round(s / 60);
-  return `${m} minute${m === 1 ? '' : 's'}`;
+  if (s < 60) return t('seconds', { n: s });
+  return t('minutes', { n: Math.round(s / 60) });
 }
 
 /**
@@ -67,105 +69,83 @@ export function actionFor(p: Pick<ApiProblem, 'code' | 'status'>): ProblemAction
 export const WIDGET_CODES = ['no-key', 'no-satellites', 'stale-element-set', 'network', 'server', 'bad-answer', 'widget'] as const;
 const WIDGET_FATAL = new Set<string>(['no-key', 'no-satellites']);
 
-const KEY_HELP = 'The site owner can set a current browser key in the api-key attribute, from the Nadirline console.';
-
-export function noticeFor(p: Pick<ApiProblem, 'code' | 'status' | 'retryAfterS'>, ctx: NoticeContext = {}): Notice {
-  const sat = ctx.satellite ? `“${ctx.satellite}”` : 'this satellite';
-  const Sat = ctx.satellite ? `“${ctx.satellite}”` : 'This satellite';
+/**
+ * The notice for a problem, in the words of `t` (English by default). The decision (fatal,
+ * retry) never depends on the language; a view may call this again with the reader's translator
+ * from `notice.source`.
+ */
+export function noticeFor(p: Pick<ApiProblem, 'code' | 'status' | 'retryAfterS'>, ctx: NoticeContext = {}, t: Translate = english): Notice {
+  const source = { problem: p, ctx };
+  const sat = ctx.satellite ? t('quoted', { name: ctx.satellite }) : t('thisSatellite');
+  const Sat = ctx.satellite ? t('quoted', { name: ctx.satellite }) : t('ThisSatellite');
+  const help = t('keyHelp');
   const attempt = ctx.attempt ?? 1;
-  const stop = (heading: string, text: string, severity: Severity = 'error'): Notice => ({ code: p.code, severity, heading, text, fatal: true });
-  const satNotice = (heading: string, text: string, severity: Severity = 'error'): Notice => ({ code: p.code, severity, heading, text, fatal: false });
+  const stop = (heading: string, text: string, severity: Severity = 'error'): Notice => ({ code: p.code, severity, heading, text, fatal: true, source });
+  const satNotice = (heading: string, text: string, severity: Severity = 'error'): Notice => ({ code: p.code, severity, heading, text, fatal: false, source });
+  const age = ctx.ageDays === undefined ? '' : ageWords(ctx.ageDays, t);
   switch (p.code) {
     case 'no-key':
     case 'unauthenticated':
-      return stop(
-        'This map has no key',
-        'Without one Nadirline cannot show it. The page owner can set the api-key attribute of <nadir-track> to a browser key from the Nadirline console, or set the embed attribute to a saved embed’s id.',
-      );
+      return stop(t('noKeyHead'), t('noKeyText'));
     case 'invalid-key':
-      return stop('Map key not accepted', `Nadirline did not accept the key this map uses. ${KEY_HELP}`);
+      return stop(t('invalidKeyHead'), t('invalidKeyText', { help }));
     case 'key-expired':
-      return stop('Map key expired', `The key this map uses has expired. ${KEY_HELP}`);
+      return stop(t('expiredHead'), t('expiredText', { help }));
     case 'key-revoked':
-      return stop('Map key withdrawn', `The key this map uses has been revoked. ${KEY_HELP}`);
+      return stop(t('revokedHead'), t('revokedText', { help }));
     case 'key-rotated':
-      return stop('Map key replaced', `The key this map uses was replaced by a new one. ${KEY_HELP}`);
+      return stop(t('rotatedHead'), t('rotatedText', { help }));
     case 'origin-not-allowed':
-      return stop(
-        'Not allowed on this site',
-        `This map’s key is not allowed on ${ctx.origin ?? 'this site'}. The site owner can add this address to the key’s allowed origins in the Nadirline console.`,
-      );
+      return stop(t('originHead'), t('originText', { origin: ctx.origin ?? t('thisSite') }));
     case 'quota-exceeded': {
       const retryMs = (p.retryAfterS ?? 15 * 60) * 1000;
-      return {
-        ...stop('Allowance used up', `This site has used its Nadirline allowance for now. The map will try again in ${secondsWords(retryMs)}.`),
-        retryMs,
-      };
+      return { ...stop(t('quotaHead'), t('quotaText', { wait: secondsWords(retryMs, t) })), retryMs };
     }
     case 'rate-limited': {
       const retryMs = Math.max(1000, (p.retryAfterS ?? 0) * 1000 || backoffMs(attempt));
-      return { ...satNotice('Busy for a moment', `Too many requests just now. Trying again in ${secondsWords(retryMs)}.`, 'warning'), retryMs };
+      return { ...satNotice(t('busyHead'), t('busyText', { wait: secondsWords(retryMs, t) }), 'warning'), retryMs };
     }
     case 'not-found':
-      return satNotice('Satellite not found', `Nadirline does not know ${sat}, or this key may not show it. The site owner can check the satellites attribute.`);
+      return satNotice(t('notFoundHead'), t('notFoundText', { sat }));
     case 'stale-element-set':
-      return satNotice(
-        'Old orbit data',
-        `The orbit data for ${sat} is ${ctx.ageDays === undefined ? 'out of date' : `${ageWords(ctx.ageDays)} old`}, so its position may be off by many kilometres.`,
-        'warning',
-      );
+      return satNotice(t('staleHead'), ctx.ageDays === undefined ? t('staleTextNoAge', { sat }) : t('staleText', { sat, age }), 'warning');
     case 'no-element-set':
-      return satNotice(
-        'No orbit data yet',
-        `${Sat} has no element set yet, so it cannot be drawn. The satellite’s team can upload one in the Nadirline console.`,
-        'warning',
-      );
+      return satNotice(t('noSetHead'), t('noSetText', { Sat }), 'warning');
     case 'decayed':
-      return satNotice(
-        'No longer in orbit',
-        `${Sat} appears to have re-entered or its orbit can no longer be computed${ctx.ageDays === undefined ? '' : ` (orbit data ${ageWords(ctx.ageDays)} old)`}.`,
-      );
+      return satNotice(t('decayedHead'), ctx.ageDays === undefined ? t('decayedText', { Sat }) : t('decayedTextAge', { Sat, age }));
     case 'propagation-failed':
-      return satNotice('Position not available', `Nadirline could not work out where ${sat} is from its element set. The satellite’s team can check its latest upload.`);
+      return satNotice(t('propagationHead'), t('propagationText', { sat }));
     case 'no-satellites':
-      return stop(
-        'Nothing to show yet',
-        'No satellites are set for this map. The site owner can list satellite ids in the satellites attribute or choose an embed.',
-        'info',
-      );
+      return stop(t('noSatellitesHead'), t('noSatellitesText'), 'info');
     case 'network':
     case 'server':
     case 'internal':
     case 'unavailable':
     case 'bad-answer': {
       const retryMs = backoffMs(attempt);
-      const kept = ctx.dataTime ? ` Showing what was known at ${ctx.dataTime}, marked as out of date.` : '';
-      return {
-        ...satNotice(
-          p.code === 'network' ? 'No connection' : 'Nadirline did not answer properly',
-          `${p.code === 'network' ? 'Cannot reach Nadirline.' : 'The Nadirline service had a problem.'}${kept} Trying again in ${secondsWords(retryMs)}.`,
-          'warning',
-        ),
-        retryMs,
-      };
+      const net = p.code === 'network';
+      const parts = [net ? t('networkText') : t('serverText'), ctx.dataTime ? t('keptData', { time: ctx.dataTime }) : '', t('tryingAgain', { wait: secondsWords(retryMs, t) })];
+      return { ...satNotice(net ? t('networkHead') : t('serverHead'), parts.filter(Boolean).join(' '), 'warning'), retryMs };
     }
     default: {
       const what = `${p.code}${p.status ? `, ${p.status}` : ''}`;
       switch (actionFor(p)) {
         case 'stop-map':
-          return p.status === 403
-            ? stop('Not allowed', `Nadirline refused this map’s requests (${what}). The site owner can check the key in the Nadirline console.`)
-            : stop('Map key not accepted', `Nadirline refused this map’s requests (${what}). ${KEY_HELP}`);
+          return p.status === 403 ? stop(t('refusedHead'), t('refusedText', { what })) : stop(t('invalidKeyHead'), t('refusedKeyText', { what, help }));
         case 'stop-satellite':
-          return satNotice('Satellite not shown', `Nadirline could not give the orbit of ${sat} (${what}).`);
+          return satNotice(t('satNotShownHead'), t('satNotShownText', { sat, what }));
         default: {
           const retryMs = backoffMs(attempt);
-          return {
-            ...satNotice('Something went wrong', `Nadirline answered with an unexpected problem (${what}). Trying again in ${secondsWords(retryMs)}.`),
-            retryMs,
-          };
+          return { ...satNotice(t('unexpectedHead'), t('unexpectedText', { what, wait: secondsWords(retryMs, t) })), retryMs };
         }
       }
     }
   }
+}
+
+/** A notice said again in the reader's language (the same decision, other words). */
+export function sayNotice<N extends Notice>(n: N, t: Translate): N {
+  if (!n.source || t === english) return n;
+  const again = noticeFor(n.source.problem, n.source.ctx, t);
+  return { ...n, heading: again.heading, text: again.text };
 }

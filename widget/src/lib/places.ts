@@ -5,6 +5,7 @@
  */
 import { geoBounds, geoContains } from 'd3-geo';
 import type { Feature, Geometry } from 'geojson';
+import { english, type Translate, type WordKey } from './words.ts';
 
 export interface NamedArea {
   name: string;
@@ -29,33 +30,34 @@ function inBounds(b: NamedArea['bounds'], lat: number, lon: number): boolean {
  * Seas that the 110m country outlines leave as water and that read better by their own name
  * than as part of an ocean; boxes drawn for Nadirline, tried in this order, [south, north, west, east].
  */
-const SEAS: readonly [name: string, s: number, n: number, w: number, e: number][] = [
-  ['the Caspian Sea', 36.5, 47.5, 46.5, 55],
-  ['the Black Sea', 40.9, 47.5, 27.3, 42],
-  ['the Red Sea', 12.5, 30.5, 32, 43.5],
-  ['the Persian Gulf', 23.8, 30.6, 47.5, 56.6],
-  ['the Baltic Sea', 53.8, 66, 9.8, 30.5],
-  ['the North Sea', 51, 61, -1.5, 9],
-  ['Hudson Bay', 51, 66, -95.5, -76.5],
-  ['the South China Sea', 0, 23, 105, 121],
+const SEAS: readonly [name: WordKey, s: number, n: number, w: number, e: number][] = [
+  ['caspian', 36.5, 47.5, 46.5, 55],
+  ['black', 40.9, 47.5, 27.3, 42],
+  ['red', 12.5, 30.5, 32, 43.5],
+  ['persian', 23.8, 30.6, 47.5, 56.6],
+  ['baltic', 53.8, 66, 9.8, 30.5],
+  ['northSea', 51, 61, -1.5, 9],
+  ['hudson', 51, 66, -95.5, -76.5],
+  ['southChina', 0, 23, 105, 121],
 ];
 
-/** Ocean or sea name (with "the") for a point assumed to be over water. */
-export function oceanName(lat: number, lon: number): string {
-  if (lat > 66) return 'the Arctic Ocean';
-  if (lat < -60) return 'the Southern Ocean';
-  for (const [name, s, n, w, e] of SEAS) if (lat >= s && lat <= n && lon >= w && lon <= e) return name;
+/** Ocean or sea name (with "the" in English) for a point assumed to be over water, in the words of `t`. */
+export function oceanName(lat: number, lon: number, t: Translate = english): string {
+  if (lat > 66) return t('arctic');
+  if (lat < -60) return t('southern');
+  for (const [name, s, n, w, e] of SEAS) if (lat >= s && lat <= n && lon >= w && lon <= e) return t(name);
   // west of 0 and north of 40 inside the box is the Bay of Biscay, which is the Atlantic
-  if (lat > 30 && lat < 46 && lon > -5.6 && lon < 36.5 && !(lon < 0 && lat > 40)) return 'the Mediterranean Sea';
-  const ns = lat >= 0 ? 'North' : 'South';
+  if (lat > 30 && lat < 46 && lon > -5.6 && lon < 36.5 && !(lon < 0 && lat > 40)) return t('mediterranean');
+  const north = lat >= 0;
   const indian = (lat < 30 && lon >= 20 && lon < 100) || (lat < -8 && lon >= 100 && lon < 147);
-  if (indian) return 'the Indian Ocean';
+  if (indian) return t('indian');
   const atlantic =
     (lon >= -70 && lon < 20) ||
     (lat >= 18 && lat < 31 && lon >= -98 && lon < -70) || // Gulf of Mexico
     (lat >= 9 && lat < 18 && lon >= -84 && lon < -70) || // Caribbean
     (lat >= 31 && lon >= -82 && lon < -70);
-  return atlantic ? `the ${ns} Atlantic` : `the ${ns} Pacific`;
+  if (atlantic) return t(north ? 'northAtlantic' : 'southAtlantic');
+  return t(north ? 'northPacific' : 'southPacific');
 }
 
 /** Country names that read better with "the" in a sentence. */
@@ -66,10 +68,10 @@ const WITH_THE = /^(United|Dem\. Rep\.|Central African|Dominican|Solomon|Falklan
  * outlines are not loaded yet, since without them any point, inland Siberia too, would be called
  * an ocean (callers then give coordinates alone).
  */
-export function placeName(lat: number, lon: number, areas: readonly NamedArea[]): string | null {
+export function placeName(lat: number, lon: number, areas: readonly NamedArea[], t: Translate = english): string | null {
   if (areas.length === 0) return null;
   for (const a of areas) {
-    if (inBounds(a.bounds, lat, lon) && geoContains(a.feature, [lon, lat])) return WITH_THE.test(a.name) ? `the ${a.name}` : a.name;
+    if (inBounds(a.bounds, lat, lon) && geoContains(a.feature, [lon, lat])) return t === english && WITH_THE.test(a.name) ? `the ${a.name}` : a.name;
   }
-  return oceanName(lat, lon);
+  return oceanName(lat, lon, t);
 }

@@ -380,3 +380,72 @@ describe('Tracker', () => {
     expect(t.state.fatal?.heading).toBe('Nothing to show yet');
   });
 });
+
+describe('Tracker with many satellites', () => {
+  /** A fake /v1 with the list and the batch track route; `gone` ids are unknown to it. */
+  function batchApi(opts: { gone?: string[]; noSet?: string[] } = {}) {
+    const calls: Call[] = [];
+    const json = (body: unknown, status = 200) => new Response(JSON.stringify(body), { status, headers: { 'content-type': 'application/json' } });
+    const known = (id: string) => !opts.gone?.includes(id);
+    const derived = (id: string) => (opts.noSet?.includes(id) ? null : { epoch: '2026-03-04T00:00:00Z', periodMin: 92, semiMajorAxisKm: 6780, inclinationDeg: 51.6, ageDays: 0.5, stale: false });
+    const fetch: FetchLike = async (input) => {
+      const u = new URL(input);
+      calls.push({ path: u.pathname, q: u.searchParams });
+      if (u.pathname === '/v1/satellites') {
+        const ids = Array.from({ length: 60 }, (_, i) => `s${i}`).filter(known);
+        return json({ satellites: ids.map((id) => ({ id, name: `Sat ${id}`, derived: derived(id) })) });
+      }
+      if (u.pathname === '/v1/tracks') {
+        const start = Date.parse(u.searchParams.get('start')!);
+        const end = Date.parse(u.searchParams.get('end')!);
+        const step = Number(u.searchParams.get('step')) * 1000;
+        const tracks = u.searchParams.get('ids')!.split(',').map((id) => {
+          if (!known(id)) return { satelliteId: id, error: { code: 'not-found', status: 404, detail: 'no' } };
+          if (!derived(id)) return { satelliteId: id, error: { code: 'no-element-set', status: 422, detail: 'no' } };
+          const points = [];
+          for (let t = start; t <= end; t += step) points.push({ t: new Date(t).toISOString(), lat: 0, lon: ((t / 1000) % 360) - 180, altKm: 420, sunlit: true });
+          return { satelliteId: id, points };
+        });
+        return json({ tracks });
+      }
+      return json({ title: 'no', status: 404, code: 'not-found' }, 404);
+    };
+    return { fetch, calls };
+  }
+  const ids = (n: number) => Array.from({ length: n }, (_, i) => `s${i}`).join(',');
+
+  it('draws 50 satellites from one list request and one batch request per track window', async () => {
+    const fake = batchApi();
+    const { t, events } = make(fake, { attrs: { satellites: ids(50), orbitsBehind: 0.5, orbitsAhead: 1 } });
+    t.resume();
+    await advance(10);
+    expect(t.state.phase).toBe('ready');
+    expect(t.state.sats.every((s) => s.named && s.samples.length > 100)).toBe(true);
+    expect(fake.calls.filter((c) => c.path === '/v1/satellites')).toHaveLength(1);
+    const batches = fake.calls.filter((c) => c.path === '/v1/tracks');
+    // the windows of 1.5 orbits of a 92-minute orbit around now: a few, each asked once for all 50
+    expect(batches.length).toBeLessThanOrEqual(3);
+    expect(new Set(batches.map((c) => c.q.get('start'))).size).toBe(batches.length);
+    for (const c of batches) expect(c.q.get('ids')!.split(',')).toHaveLength(50);
+    expect(fake.calls.filter((c) => /\/v1\/satellites\/[^/]+/.test(c.path))).toHaveLength(0);
+    expect(events.filter((e) => e.type === 'load')).toHaveLength(1);
+    // the next round asks for nothing already held
+    const n = fake.calls.length;
+    await advance(30_000);
+    expect(fake.calls.length).toBe(n);
+    t.dispose();
+  });
+
+  it('stops only the satellites the batch answer names as unknown or without an element set', async () => {
+    const fake = batchApi({ gone: ['s3'], noSet: ['s5'] });
+    const { t, events } = make(fake, { attrs: { satellites: ids(8) } });
+    t.resume();
+    await advance(10);
+    expect(t.state.fatal).toBeNull();
+    expect(t.state.sats.find((s) => s.id === 's3')).toMatchObject({ dead: true, notice: expect.objectContaining({ code: 'not-found' }) });
+    expect(t.state.sats.find((s) => s.id === 's5')).toMatchObject({ dead: true, notice: expect.objectContaining({ code: 'no-element-set' }) });
+    expect(t.state.sats.filter((s) => !s.dead).every((s) => s.samples.length > 0)).toBe(true);
+    expect(events.filter((e) => e.type === 'error').map((e) => e.detail.satellite).sort()).toEqual(['s3', 's5']);
+    t.dispose();
+  });
+});

@@ -81,6 +81,13 @@ export interface TrackerOptions {
 }
 
 const REFRESH_MS = 30_000;
+/**
+ * From this many satellites on, a round asks for all of them together: names and elements from
+ * one GET /v1/satellites, and each track window from one GET /v1/tracks per window (at most
+ * BATCH_IDS ids each), so 50 satellites cost a handful of requests instead of a few hundred.
+ */
+export const BATCH_FROM = 4;
+const BATCH_IDS = 50;
 const PASS_ALIGN_MS = 6 * 3600_000;
 const PASS_DAYS = 2;
 const FALLBACK_PERIOD_MIN = 95;
@@ -214,7 +221,8 @@ export class Tracker {
     // satellites at once so the first track is drawn after as few round trips as possible
     const now = this.now();
     this.bumped = false;
-    const results = await Promise.all(this.state.sats.map((sat) => this.satRound(sat, now, signal)));
+    const results =
+      this.state.sats.length >= BATCH_FROM ? await this.batchRound(now, signal) : await Promise.all(this.state.sats.map((sat) => this.satRound(sat, now, signal)));
     if (signal.aborted) return undefined;
     const fatal = this.state.fatal as Notice | null; // set again by satRound when the key is refused
     if (fatal) return fatal.retryMs;
@@ -333,6 +341,141 @@ export class Tracker {
         this.passKey.set(sat.id, key);
       }
     }
+    return null;
+  }
+
+  /**
+   * A round for many satellites at once: one metadata request for all that lack it (with the
+   * window around now asked for alongside, on the guess of low orbits), then each missing track
+   * window once for all satellites that need it, then passes.
+   */
+  private async batchRound(now: number, signal: AbortSignal): Promise<(number | undefined | null)[]> {
+    const live = () => this.state.sats.filter((x) => !x.dead);
+    const rung0 = LADDER[0]!;
+    const early = new Map<number, Promise<ApiResult<Map<string, ApiResult<Sample[]>>>[]>>();
+    const chunks = (ids: string[]) => Array.from({ length: Math.ceil(ids.length / BATCH_IDS) }, (_, i) => ids.slice(i * BATCH_IDS, (i + 1) * BATCH_IDS));
+    const ask = (ids: string[], start: number, spanMs: number, stepS: number) => Promise.all(chunks(ids).map((c) => this.api.tracks(c, start, start + spanMs, stepS, signal)));
+    const results: (number | undefined | null)[] = [];
+
+    const unnamed = live().filter((x) => !x.elements);
+    const earlyStart = Math.floor(now / rung0.spanMs) * rung0.spanMs;
+    if (unnamed.length > 0) {
+      early.set(earlyStart, ask(unnamed.map((x) => x.id), earlyStart, rung0.spanMs, rung0.stepS));
+      const list = await this.api.satellites(signal);
+      if (signal.aborted) return [undefined];
+      if (!list.ok) return [actionFor(list) === 'stop-satellite' ? this.transientProblem(list) : this.problem(list, null)];
+      const byId = new Map((list.value.satellites ?? []).map((x) => [x.id, x]));
+      for (const sat of unnamed) {
+        const meta = byId.get(sat.id);
+        // the list holds every satellite this key may see: one that is not there is not found
+        if (!meta) {
+          results.push(this.problem({ ok: false, code: 'not-found', status: 404, title: 'Not found', detail: '' }, sat));
+          continue;
+        }
+        if (typeof meta.name === 'string' && meta.name) sat.name = meta.name;
+        sat.named = true;
+        let el: ElementsInfo | null | undefined = meta.derived;
+        if (el === undefined) {
+          const r = await this.api.elements(sat.id, signal);
+          if (signal.aborted) return [undefined];
+          if (!r.ok) {
+            results.push(this.problem(r, sat));
+            continue;
+          }
+          el = r.value;
+        }
+        this.useElements(sat, el);
+      }
+    }
+
+    // the windows each satellite lacks, grouped so that one request serves every satellite that needs a window
+    const s = this.state.settings;
+    const groups = new Map<string, { start: number; spanMs: number; stepS: number; sats: SatState[] }>();
+    for (const sat of live()) {
+      if (!sat.elements) continue;
+      const plan = planWindows(now, sat.elements.periodMin || FALLBACK_PERIOD_MIN, s.orbitsBehind, s.orbitsAhead);
+      let held = this.windows.get(sat.id);
+      if (!held || (sat.plan && sat.plan.spanMs !== plan.spanMs)) {
+        held = new Map();
+        this.windows.set(sat.id, held);
+      }
+      for (const start of [...held.keys()]) if (!plan.starts.includes(start)) held.delete(start);
+      sat.plan = plan;
+      for (const start of plan.starts) {
+        if (held.has(start)) continue;
+        const key = `${start}|${plan.spanMs}|${plan.stepS}`;
+        let g = groups.get(key);
+        if (!g) groups.set(key, (g = { start, spanMs: plan.spanMs, stepS: plan.stepS, sats: [] }));
+        g.sats.push(sat);
+      }
+    }
+    const stopOf = new Map<string, number | undefined | null>();
+    const take = (g: { start: number; sats: SatState[] }, answers: ApiResult<Map<string, ApiResult<Sample[]>>>[], ids: string[][]) => {
+      answers.forEach((a, i) => {
+        const chunk = ids[i]!;
+        for (const sat of g.sats.filter((x) => chunk.includes(x.id))) {
+          if (sat.dead || stopOf.get(sat.id) != null) continue;
+          const r: ApiResult<Sample[]> = a.ok ? a.value.get(sat.id)! : a;
+          if (r.ok) {
+            this.windows.get(sat.id)!.set(g.start, r.value);
+            sat.samples = markRaw(mergeSamples([...this.windows.get(sat.id)!.values()]));
+          } else if (!stopOf.has(sat.id)) stopOf.set(sat.id, this.problem(r, sat));
+        }
+      });
+    };
+    const pending: Promise<void>[] = [];
+    for (const g of groups.values()) {
+      const reuse = g.start === earlyStart && g.spanMs === rung0.spanMs && g.stepS === rung0.stepS ? early.get(earlyStart) : undefined;
+      // the early answer covers the satellites it asked for; the rest of the group is asked now
+      const earlyIds = reuse ? new Set(unnamed.map((x) => x.id)) : new Set<string>();
+      const rest = g.sats.filter((x) => !earlyIds.has(x.id));
+      if (reuse) pending.push(reuse.then((answers) => take({ start: g.start, sats: g.sats.filter((x) => earlyIds.has(x.id)) }, answers, chunks(unnamed.map((x) => x.id)))));
+      if (rest.length > 0) {
+        const restIds = chunks(rest.map((x) => x.id));
+        pending.push(ask(rest.map((x) => x.id), g.start, g.spanMs, g.stepS).then((answers) => take({ start: g.start, sats: rest }, answers, restIds)));
+      }
+    }
+    await Promise.all(pending);
+    if (signal.aborted) return [undefined];
+    for (const v of stopOf.values()) results.push(v);
+
+    // passes over the observer, for the satellites still going
+    const passes = await Promise.all(live().filter((x) => !stopOf.has(x.id)).map((sat) => this.passRound(sat, now, signal)));
+    if (signal.aborted) return [undefined];
+    return [...results, ...passes];
+  }
+
+  /** Take a satellite's derived elements (or their absence) from a metadata answer. */
+  private useElements(sat: SatState, el: ElementsInfo | null): void {
+    if (!el || !Number.isFinite(el.periodMin)) {
+      const p = { code: 'no-element-set', status: 200 };
+      sat.dead = true;
+      sat.notice = noticeFor(p, { satellite: sat.name });
+      this.report(sat.notice, p, sat.id);
+      return;
+    }
+    sat.elements = markRaw(el);
+    sat.notice = null;
+    if (el.stale) {
+      const p = { code: 'stale-element-set', status: 200 };
+      sat.notice = noticeFor(p, { satellite: sat.name, ageDays: el.ageDays });
+      this.report(sat.notice, p, sat.id);
+    }
+  }
+
+  /** Passes over the observer for one satellite when they are shown and not held yet for this place and day. */
+  private async passRound(sat: SatState, now: number, signal: AbortSignal): Promise<number | undefined | null> {
+    const obs = this.state.observer;
+    if (!obs || !this.state.settings.layers.has('passes')) return null;
+    const start = Math.floor(now / PASS_ALIGN_MS) * PASS_ALIGN_MS;
+    const key = `${obs.lat},${obs.lon},${obs.altM},${start}`;
+    if (this.passKey.get(sat.id) === key) return null;
+    const r = await this.api.passes(sat.id, obs, start, PASS_DAYS, signal);
+    if (signal.aborted) return undefined;
+    if (!r.ok) return this.problem(r, sat);
+    sat.passes = markRaw(Array.isArray(r.value.passes) ? r.value.passes : []);
+    sat.alwaysUp = r.value.alwaysUp === true;
+    this.passKey.set(sat.id, key);
     return null;
   }
 

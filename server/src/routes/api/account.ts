@@ -84,7 +84,7 @@ export function accountRoutes(ctx: AppContext): ApiRoutes {
     const session: SessionInfo = {
       user: user ? serializeUser(user) : null,
       memberships: user ? await membershipsOf(user.id) : [],
-      csrfToken: csrfToken(req),
+      csrfToken: csrfToken(req, res, ctx.config),
     };
     res.json(session);
   });

@@ -6,6 +6,7 @@
 import express, { Router } from 'express';
 import type { AppContext } from '../../context.ts';
 import { csrfProtection } from '../../http/csrf.ts';
+import { refuseNulInJson } from '../../http/input-guards.ts';
 import { ACCESS, requireRole, type Access, type Action } from '../../http/roles.ts';
 import { securityHeaders } from '../../http/security.ts';
 import { createSessionMiddleware } from '../../http/session.ts';
@@ -41,8 +42,9 @@ export async function createApiRouter(ctx: AppContext): Promise<Router> {
     next();
   });
   router.use(createSessionMiddleware(ctx));
-  router.use(csrfProtection);
+  router.use(csrfProtection(ctx.config));
   router.use(express.json({ limit: '2mb' }));
+  router.use(refuseNulInJson);
   const routes = buildApiRoutes(ctx);
   ctx.services.apiRoutes = routes.map((r) => ({ method: r.method, path: r.path, action: r.action, access: ACCESS[r.action] }));
   for (const route of routes) {

@@ -7,7 +7,8 @@ import multer from 'multer';
 import type { Request } from 'express';
 import { z } from 'zod';
 import type { AppContext } from '../../context.ts';
-import { HttpError } from '../../http/problem.ts';
+import { readMultipart } from '../../http/input-guards.ts';
+import { HttpError, withUploadLimits } from '../../http/problem.ts';
 import { orgAuth } from '../../http/roles.ts';
 import { parseBody, parseQuery } from '../../http/validate.ts';
 import { ElementSetRecord, type Satellite } from '../../models/index.ts';
@@ -36,7 +37,10 @@ const UploadBody = z
   .refine((b) => b.text !== undefined || b.kepler !== undefined, { message: 'Send element sets as text, as kepler elements, or as files.' });
 const ExportQuery = z.object({ format: FORMAT.default('tle') });
 
-const upload = multer({ storage: multer.memoryStorage(), limits: { fileSize: UPLOAD_MAX_FILE_BYTES, files: UPLOAD_MAX_FILES, fields: 10 } });
+const upload = readMultipart(
+  multer({ storage: multer.memoryStorage(), limits: { fileSize: UPLOAD_MAX_FILE_BYTES, files: UPLOAD_MAX_FILES, fields: 10 } }).any(),
+  (err) => withUploadLimits(err, { fileBytes: UPLOAD_MAX_FILE_BYTES, files: UPLOAD_MAX_FILES }),
+);
 
 function uploadedFiles(req: Request): Array<{ name: string; text: string }> {
   const files = (req.files as Express.Multer.File[] | undefined) ?? [];
@@ -129,7 +133,7 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     res.json({ elementSets: records.map((rec) => sats.summary(rec, parsedOf(rec), now, uploaders)) });
   });
 
-  r.post('/orgs/:org/satellites/:id/element-sets', 'element-sets.write', upload.any(), async (req, res) => {
+  r.post('/orgs/:org/satellites/:id/element-sets', 'element-sets.write', upload, async (req, res) => {
     const auth = orgAuth(res);
     const satellite = await sats.getSatellite(auth.organization.id, param(req, 'id'));
     let result: UploadResult;

@@ -13,13 +13,16 @@
  *
  * Origins (CORS answered per key):
  *   - browser key: the page's origin must be one the key lists (exact, or wildcard subdomain).
- *     The origin is the Origin header, else the origin of the Referer header; a same-origin GET
- *     (Sec-Fetch-Site: same-origin) counts as this server's own origin. A request naming no
- *     origin at all (curl, a backend) is refused: browser keys are for pages, backends use server
- *     keys. Reads from this server's own origin are also allowed (the hosted /embed/:id page, the
- *     console's live preview, the examples): only pages Nadirline itself serves run there.
- *   - console preview token: only this server's own origin (Origin, else Referer, else a
- *     same-origin Sec-Fetch-Site); any other origin, or none, is refused.
+ *     The origin is the Origin header, else the origin of the Referer header. A request naming no
+ *     origin at all (curl, a backend, or a header like Sec-Fetch-Site alone, which proves nothing)
+ *     is refused: browser keys are for pages, backends use server keys. Reads from this server's
+ *     own origins are also allowed (the hosted /embed/:id page, the console's live preview, the
+ *     examples): only pages Nadirline itself serves run there.
+ *   - console preview token: only this server's own origins (Origin, else Referer); any other
+ *     origin, or none, is refused.
+ *   - This server's own origins come from configuration (config.selfOrigins: PUBLIC_URL, plus the
+ *     listening loopback address outside production), never from the Host header, which the
+ *     client chooses (a rebound DNS name would otherwise make any page "this server").
  *   - server key: meant for backends, which send no Origin. A request that carries an Origin
  *     header (a web page) is refused unless the key lists that origin.
  *   - Every /v1 answer to a request with an Origin header reflects that origin in
@@ -63,12 +66,9 @@ export function canSee(auth: V1Auth, satellite: { id: string; organizationId: st
 
 export const EXPOSED_HEADERS = 'RateLimit, RateLimit-Policy, Retry-After, ETag, Location';
 
-/** This server's own origins: the public URL and the Host the request came to. */
-function selfOrigins(ctx: AppContext, req: Request): string[] {
-  const host = req.get('host');
-  const list = [ctx.config.publicUrl.toLowerCase()];
-  if (host) list.push(`${req.protocol}://${host}`.toLowerCase());
-  return list;
+/** This server's own origins, from configuration only (config.ts noteListening). */
+function selfOrigins(ctx: AppContext): string[] {
+  return ctx.config.selfOrigins;
 }
 
 function refererOrigin(req: Request): string | null {
@@ -94,24 +94,22 @@ export const corsHeaders: RequestHandler = (req, res, next) => {
   next();
 };
 
-/** The origin a page request names: Origin, else the Referer's origin, else this server for a same-origin fetch. */
-function pageOrigin(req: Request, self: string[]): string | null {
-  const origin = req.headers.origin ?? refererOrigin(req);
-  if (!origin && req.get('sec-fetch-site') === 'same-origin') return self[self.length - 1] ?? null;
-  return origin ?? null;
+/** The origin a page request names: Origin, else the Referer's origin, else none. */
+function pageOrigin(req: Request): string | null {
+  return req.headers.origin ?? refererOrigin(req);
 }
 
 function checkOrigin(ctx: AppContext, req: Request, cred: Credential): string | null {
   const { key, embed } = cred;
   const header = req.headers.origin;
   if (cred.via === 'preview') {
-    const self = selfOrigins(ctx, req);
-    const origin = pageOrigin(req, self);
+    const self = selfOrigins(ctx);
+    const origin = pageOrigin(req);
     if (origin && self.includes(origin.toLowerCase())) return origin;
     throw new HttpError(
       'origin-not-allowed',
       origin
-        ? `Console preview tokens work only in the Nadirline console on ${self[0] ?? 'this server'}; this request came from ${origin}. Pages elsewhere use a browser key or an embed.`
+        ? `Console preview tokens work only in the Nadirline console on ${ctx.config.publicUrl}; this request came from ${origin}. Pages elsewhere use a browser key or an embed.`
         : 'Console preview tokens work only in the Nadirline console on this server, and this request named no origin (no Origin or Referer header).',
       origin ? { origin } : {},
     );
@@ -124,8 +122,8 @@ function checkOrigin(ctx: AppContext, req: Request, cred: Credential): string | 
       `This is a server key, which is secret and belongs on a backend; this request came from a web page (${header}). Use a browser key in pages, and rotate this key if it was published.`,
     );
   }
-  const self = selfOrigins(ctx, req);
-  const origin = pageOrigin(req, self);
+  const self = selfOrigins(ctx);
+  const origin = pageOrigin(req);
   if (!origin) {
     throw new HttpError(
       'origin-not-allowed',
@@ -184,6 +182,9 @@ function previewCredential(ctx: AppContext, text: string): Credential {
       'key-expired',
       `This console preview token expired at ${new Date((v.claims?.exp ?? 0) * 1000).toISOString()}. The console fetches a new one before the old one ends; reload the page if the preview stays stopped.`,
     );
+  }
+  if (v.reason === 'too-long') {
+    throw new HttpError('invalid-key', 'This console preview token claims to last longer than the 15 minutes preview tokens are issued for, so this server did not issue it. Reload the console page to get a new one.');
   }
   throw new HttpError('invalid-key', 'This console preview token is not valid: it was changed, or signed by another server. Reload the console page to get a new one.');
 }

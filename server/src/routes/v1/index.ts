@@ -19,6 +19,7 @@ import {
   trackToGeoJSON,
 } from '@nadirline/shared';
 import type { AppContext } from '../../context.ts';
+import { readMultipart, refuseNulInJson } from '../../http/input-guards.ts';
 import { HttpError, withUploadLimits } from '../../http/problem.ts';
 import { safeParseMarked, validationProblem } from '../../http/validate.ts';
 import { Satellite } from '../../models/index.ts';
@@ -38,6 +39,7 @@ import {
   positionsQuery,
   routeTemplate,
   trackQuery,
+  tracksQuery,
   V1_ROUTES,
   type RouteSpec,
   type V1Passes,
@@ -103,6 +105,24 @@ function viewsFor(auth: V1Auth, sats: SatelliteService, satellites: Parameters<S
 function seen(auth: V1Auth, id: string, cached: CachedSatellite | null): CachedSatellite {
   if (!cached || !canSee(auth, cached.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
   return cached;
+}
+
+/** A track window within the caps, else a validation problem naming the parameter to change. */
+function checkWindow(start: number, end: number, stepS: number): void {
+  if (end <= start) {
+    throw new HttpError('validation-failed', 'end must be after start.', { errors: [{ where: 'query.end', field: 'end', message: 'must be after start' }] });
+  }
+  if (end - start > CAPS.trackMaxWindowS * 1000) {
+    throw new HttpError('validation-failed', `The window is ${((end - start) / 3_600_000).toFixed(1)} h; at most ${CAPS.trackMaxWindowS / 3600} h per request.`, {
+      errors: [{ where: 'query.end', field: 'end', message: `at most ${CAPS.trackMaxWindowS / 3600} h after start` }],
+    });
+  }
+  const count = Math.floor((end - start) / (stepS * 1000) + 1e-9) + 1;
+  if (count > CAPS.trackMaxPoints) {
+    throw new HttpError('validation-failed', `This window and step give ${count} points; at most ${CAPS.trackMaxPoints} per request. Use a larger step or a shorter window.`, {
+      errors: [{ where: 'query.step', field: 'step', message: `gives ${count} points, more than ${CAPS.trackMaxPoints}` }],
+    });
+  }
 }
 
 function requireSet(c: CachedSatellite): CurrentSet {
@@ -250,49 +270,67 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     res.json(body);
   });
 
-  keyed('get', '/satellites/:id/track', async (req, res) => {
-    const q = parseQuery(trackQuery, req);
-    const c = await visibleSatellite(sats, authOf(res), req.params.id);
-    const cur = requireSet(c);
+  /** The window of a track request: explicit start and end, or defaults from the orbit; refused beyond the caps. */
+  const trackWindow = (q: { start?: number | undefined; end?: number | undefined; step?: number | undefined }, cur: CurrentSet) => {
     const stepS = q.step ?? CAPS.trackDefaultStepS;
     const start = q.start ?? Math.floor(Date.now() / MINUTE_MS) * MINUTE_MS;
     const periodMs = (1440 / cur.elementSet.meanMotionRevPerDay) * MINUTE_MS;
     const end = q.end ?? start + Math.min(Math.ceil(periodMs / (stepS * 1000)) * stepS * 1000, CAPS.trackMaxWindowS * 1000);
-    if (end <= start) {
-      throw new HttpError('validation-failed', 'end must be after start.', { errors: [{ where: 'query.end', field: 'end', message: 'must be after start' }] });
-    }
-    if (end - start > CAPS.trackMaxWindowS * 1000) {
-      throw new HttpError('validation-failed', `The window is ${((end - start) / 3_600_000).toFixed(1)} h; at most ${CAPS.trackMaxWindowS / 3600} h per request.`, {
-        errors: [{ where: 'query.end', field: 'end', message: `at most ${CAPS.trackMaxWindowS / 3600} h after start` }],
-      });
-    }
-    const count = Math.floor((end - start) / (stepS * 1000) + 1e-9) + 1;
-    if (count > CAPS.trackMaxPoints) {
-      throw new HttpError('validation-failed', `This window and step give ${count} points; at most ${CAPS.trackMaxPoints} per request. Use a larger step or a shorter window.`, {
-        errors: [{ where: 'query.step', field: 'step', message: `gives ${count} points, more than ${CAPS.trackMaxPoints}` }],
-      });
-    }
-    const etag = `W/"${crypto.hash('sha1', `${c.satellite.id}|${cur.record.id}|${start}|${end}|${stepS}|${q.format}|${c.satellite.name}`, 'base64url').slice(0, 22)}"`;
+    checkWindow(start, end, stepS);
+    return { start, end, stepS, count: Math.floor((end - start) / (stepS * 1000) + 1e-9) + 1 };
+  };
+  /** Cache-Control of a track answer: public for whole-minute windows asked for explicitly. */
+  const trackCaching = (q: { start?: number | undefined; end?: number | undefined }, start: number, end: number) => {
     const quantum = CAPS.trackCacheQuantumS * 1000;
     const explicit = q.start !== undefined && q.end !== undefined;
+    return explicit && start % quantum === 0 && end % quantum === 0 ? 'public, max-age=600, stale-while-revalidate=60' : explicit ? 'private, max-age=60' : 'private, max-age=30';
+  };
+  const trackEtag = (c: CachedSatellite, cur: CurrentSet, start: number, end: number, stepS: number, format: string) =>
+    `W/"${crypto.hash('sha1', `${c.satellite.id}|${cur.record.id}|${start}|${end}|${stepS}|${format}|${c.satellite.name}`, 'base64url').slice(0, 22)}"`;
+  /** The JSON text of one track answer, from the finished-answer cache or computed and kept there. Throws the engine's problem. */
+  const trackJson = (c: CachedSatellite, cur: CurrentSet, start: number, end: number, stepS: number, etag: string, extra: Record<string, string> = {}): string => {
+    const cachedAnswer = trackAnswers.get(etag);
+    let body = cachedAnswer?.body;
+    if (body === undefined) {
+      const r = sampleTrack(cur.satrec, { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
+      if (!r.ok) throw engineProblem(r.code, r.message, c.satellite.name);
+      const headFields: Omit<V1Track, 'points'> = {
+        satelliteId: c.satellite.id,
+        elementSetId: cur.record.id,
+        start: iso(start),
+        end: iso(r.samples[r.samples.length - 1]?.t ?? end),
+        stepS,
+        count: r.samples.length,
+      };
+      const head = JSON.stringify(headFields);
+      body = `${head.slice(0, -1)},"points":${trackPointsJson(r.samples)}}`;
+      trackAnswers.set(etag, body, 'application/json; charset=utf-8');
+    }
+    const more = Object.entries(extra);
+    return more.length === 0 ? body : `${body.slice(0, -1)},${more.map(([k, v]) => `${JSON.stringify(k)}:${JSON.stringify(v)}`).join(',')}}`;
+  };
+
+  keyed('get', '/satellites/:id/track', async (req, res) => {
+    const q = parseQuery(trackQuery, req);
+    const c = await visibleSatellite(sats, authOf(res), req.params.id);
+    const cur = requireSet(c);
+    const { start, end, stepS } = trackWindow(q, cur);
+    const etag = trackEtag(c, cur, start, end, stepS, q.format);
     res.setHeader('ETag', etag);
     res.setHeader('Vary', 'Origin, Authorization');
-    res.setHeader(
-      'Cache-Control',
-      explicit && start % quantum === 0 && end % quantum === 0 ? 'public, max-age=600, stale-while-revalidate=60' : explicit ? 'private, max-age=60' : 'private, max-age=30',
-    );
+    res.setHeader('Cache-Control', trackCaching(q, start, end));
     if (req.fresh) {
       res.status(304).end();
       return;
     }
-    const cachedAnswer = trackAnswers.get(etag);
-    if (cachedAnswer) {
-      sendJson(res, cachedAnswer.body, cachedAnswer.type);
-      return;
-    }
-    const r = sampleTrack(cur.satrec, { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
-    if (!r.ok) throw engineProblem(r.code, r.message, c.satellite.name);
     if (q.format === 'geojson') {
+      const cachedAnswer = trackAnswers.get(etag);
+      if (cachedAnswer) {
+        sendJson(res, cachedAnswer.body, cachedAnswer.type);
+        return;
+      }
+      const r = sampleTrack(cur.satrec, { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
+      if (!r.ok) throw engineProblem(r.code, r.message, c.satellite.name);
       const fc = trackToGeoJSON(r.samples, {
         satelliteId: c.satellite.id,
         name: c.satellite.name,
@@ -306,18 +344,50 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       sendJson(res, body, 'application/geo+json; charset=utf-8');
       return;
     }
-    const headFields: Omit<V1Track, 'points'> = {
-      satelliteId: c.satellite.id,
-      elementSetId: cur.record.id,
-      start: iso(start),
-      end: iso(r.samples[r.samples.length - 1]?.t ?? end),
-      stepS,
-      count: r.samples.length,
-    };
-    const head = JSON.stringify(headFields);
-    const body = `${head.slice(0, -1)},"points":${trackPointsJson(r.samples)}}`;
-    trackAnswers.set(etag, body, 'application/json; charset=utf-8');
-    sendJson(res, body);
+    sendJson(res, trackJson(c, cur, start, end, stepS, etag));
+  });
+
+  // One window for many satellites: each entry is the one-satellite answer (from the same cache)
+  // or the problem that route would give, so one bad id never blanks the others.
+  keyed('get', '/tracks', async (req, res) => {
+    const q = parseQuery(tracksQuery, req);
+    const auth = authOf(res);
+    const stepS = q.step ?? CAPS.trackDefaultStepS;
+    const start = q.start ?? Math.floor(Date.now() / MINUTE_MS) * MINUTE_MS;
+    if (q.end !== undefined) checkWindow(start, q.end, stepS);
+    const found = await Promise.all(q.ids.map((id) => sats.current(id)));
+    const plans = q.ids.map((id, i) => {
+      const c = found[i];
+      if (!c || !canSee(auth, c.satellite)) return { id, error: new HttpError('not-found', `No satellite ${id} is visible to this key.`), name: null };
+      if (!c.current) return { id, error: new HttpError('no-element-set', `${c.satellite.name} has no element set yet; upload one (TLE or OMM) first.`), name: c.satellite.name };
+      const w = trackWindow({ start, end: q.end, step: stepS }, c.current);
+      return { id, c, cur: c.current, w, name: c.satellite.name, etag: trackEtag(c, c.current, w.start, w.end, w.stepS, 'json') };
+    });
+    const points = plans.reduce((n, p) => n + ('w' in p && p.w ? p.w.count : 0), 0);
+    if (points > CAPS.tracksMaxPoints) {
+      throw new HttpError('validation-failed', `These ${q.ids.length} tracks would hold ${points} points; at most ${CAPS.tracksMaxPoints} per request. Use a larger step, a shorter window or fewer ids.`, {
+        errors: [{ where: 'query.ids', field: 'ids', message: `${q.ids.length} tracks of this window give ${points} points, more than ${CAPS.tracksMaxPoints}` }],
+      });
+    }
+    const etag = `W/"${crypto.hash('sha1', plans.map((p) => ('etag' in p ? p.etag : `${p.id}:${p.error.code}`)).join('|'), 'base64url').slice(0, 22)}"`;
+    res.setHeader('ETag', etag);
+    res.setHeader('Vary', 'Origin, Authorization');
+    res.setHeader('Cache-Control', trackCaching(q, start, q.end ?? start + 1));
+    if (req.fresh) {
+      res.status(304).end();
+      return;
+    }
+    const entries = plans.map((p) => {
+      const fail = (e: HttpError) => JSON.stringify({ satelliteId: p.id, name: p.name, error: { code: e.code, status: e.status, detail: e.detail } });
+      if (!('c' in p) || !p.c || !p.cur || !p.w || !p.etag) return fail(p.error!);
+      try {
+        return trackJson(p.c, p.cur, p.w.start, p.w.end, p.w.stepS, p.etag, { name: p.c.satellite.name });
+      } catch (e) {
+        if (e instanceof HttpError) return fail(e);
+        throw e;
+      }
+    });
+    sendJson(res, `{"start":${JSON.stringify(iso(start))},"stepS":${stepS},"tracks":[${entries.join(',')}]}`);
   });
 
   keyed('get', '/satellites/:id/passes', async (req, res) => {
@@ -360,7 +430,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   // -- writes ----------------------------------------------------------------------------------
 
   const jsonBody = express.json({ limit: CAPS.uploadMaxBytes });
-  keyed('post', '/satellites', jsonBody, async (req, res) => {
+  keyed('post', '/satellites', jsonBody, refuseNulInJson, async (req, res) => {
     if (!req.is('application/json')) throw new HttpError('unsupported-media-type', 'Send JSON: { "name": "...", "elements": "<TLE or OMM text>" }.');
     const r = safeParseMarked(createSatelliteBody, req.body);
     if (!r.success) throw validationProblem(createSatelliteBody, req.body, r.error.issues, 'body', 'sentence');
@@ -379,14 +449,17 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
   });
 
   const textBody = express.text({ type: ['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'], limit: CAPS.uploadMaxBytes });
-  const files = multer({ storage: multer.memoryStorage(), limits: { fileSize: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles, fields: 10 } }).any();
+  const files = readMultipart(
+    multer({ storage: multer.memoryStorage(), limits: { fileSize: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles, fields: 10 } }).any(),
+    (err) => withUploadLimits(err, { fileBytes: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles }),
+  );
   keyed('post', '/satellites/:id/element-sets', async (req, res, next) => {
     // Check the satellite before reading any body.
     const auth = authOf(res);
     const id = checkId(req.params.id);
     const c = await sats.current(id);
     if (!c || !canSee(auth, c.satellite)) throw new HttpError('not-found', `No satellite ${id} is visible to this key.`);
-    if (req.is('multipart/form-data')) files(req, res, (err?: unknown) => next(err ? withUploadLimits(err, { fileBytes: CAPS.uploadMaxBytes, files: CAPS.uploadMaxFiles }) : undefined));
+    if (req.is('multipart/form-data')) files(req, res, next);
     else if (req.is(['text/*', 'application/xml', 'application/json', 'application/*+xml', 'application/*+json'])) textBody(req, res, next);
     else throw new HttpError('unsupported-media-type', 'Send the element set as text/plain (TLE or OMM KVN), application/xml (OMM XML), application/json (OMM JSON) or multipart/form-data files.');
   }, async (req, res) => {

@@ -1,0 +1,250 @@
+/**
+ * <nadir-track> at the sizes pages give it and in the reader's language, in Debian's Chromium
+ * against the real server: the map keeps its size beside the pass list, the satellite chips stay
+ * readable next to the Map/Globe switch, the words follow `locale` or the browser, the globe
+ * turns to the picked satellite, and a hosted embed framed by an unlisted site shows our notice.
+ * Screenshots land in tests/artifacts/widget-layout/ (ignored by git).
+ */
+import { execFileSync } from 'node:child_process';
+import fs from 'node:fs';
+import path from 'node:path';
+import type { Browser, BrowserContext, Page } from 'playwright-core';
+import { afterAll, beforeAll, describe, expect, it } from 'vitest';
+import { launchChromium } from '../support/chromium.ts';
+import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
+
+const ARTIFACTS = path.join(repoRoot, 'tests', 'artifacts', 'widget-layout');
+
+let server: StartedServer;
+let browser: Browser;
+
+beforeAll(async () => {
+  if (!fs.existsSync(path.join(repoRoot, 'widget', 'dist', 'nadir-track.js'))) {
+    execFileSync(process.execPath, [path.join(repoRoot, 'node_modules', 'vite', 'bin', 'vite.js'), 'build'], { cwd: path.join(repoRoot, 'widget'), stdio: 'ignore' });
+  }
+  fs.mkdirSync(ARTIFACTS, { recursive: true });
+  server = await startServer();
+  browser = await launchChromium();
+});
+afterAll(async () => {
+  await browser?.close();
+  await server?.stop();
+});
+
+interface Opened {
+  ctx: BrowserContext;
+  page: Page;
+  pageErrors: string[];
+}
+
+/** A page of this server holding one <nadir-track> with these attributes and host style. */
+async function widgetPage(name: string, attrs: string, opts: { width?: number; height?: number; scheme?: 'light' | 'dark'; locale?: string; zone?: string; style?: string } = {}): Promise<Opened> {
+  const ctx = await browser.newContext({
+    viewport: { width: opts.width ?? 1280, height: opts.height ?? 900 },
+    colorScheme: opts.scheme ?? 'light',
+    locale: opts.locale ?? 'en-GB',
+    timezoneId: opts.zone ?? 'Europe/London',
+  });
+  const page = await ctx.newPage();
+  const pageErrors: string[] = [];
+  page.on('pageerror', (e) => pageErrors.push(e.message));
+  const url = `${server.url}/e2e-layout-${name}.html`;
+  await page.route(url, (r) =>
+    r.fulfill({
+      contentType: 'text/html',
+      body: `<!doctype html><meta name="viewport" content="width=device-width"><body style="margin:0;padding:8px"><script type="module" src="/widget/nadir-track.js"></script><nadir-track api-key="${server.credentials.browserKey}" ${attrs} style="${opts.style ?? 'display:block'}"></nadir-track>`,
+    }),
+  );
+  await page.goto(url);
+  await page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('path.past')?.getAttribute('d'), undefined, { timeout: 20_000 });
+  return { ctx, page, pageErrors };
+}
+
+const allIds = () => server.credentials.satellites.map((s) => s.id).join(',');
+
+describe('map size beside the pass list', () => {
+  it('keeps a 900 x 420 element with passes from shrinking its map to a thumbnail', async () => {
+    const w = await widgetPage('passes-900', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="footprint,terminator,passes,graticule,labels"`, {
+      style: 'display:block;width:900px;height:420px',
+    });
+    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.passes .row, .passes .quiet'));
+    const m = await w.page.evaluate(() => {
+      const sr = document.querySelector('nadir-track')!.shadowRoot!;
+      // the drawn Earth, not the svg box it is fitted into
+      const svg = sr.querySelector('path.sea')!.getBoundingClientRect();
+      const frame = sr.querySelector('.nadir')!;
+      const passes = sr.querySelector('.passes')!.getBoundingClientRect();
+      return { w: svg.width, h: svg.height, overflows: frame.scrollHeight > frame.clientHeight + 1, passesBottom: passes.bottom, frameBottom: frame.getBoundingClientRect().bottom };
+    });
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'passes-900x420.png') });
+    expect(m.w).toBeGreaterThanOrEqual(520);
+    expect(m.h).toBeGreaterThanOrEqual(250);
+    expect(m.overflows).toBe(false);
+    expect(m.passesBottom).toBeLessThanOrEqual(m.frameBottom + 1);
+    expect(w.pageErrors).toEqual([]);
+    await w.ctx.close();
+  });
+
+  it('keeps the map the larger part of a 390 px wide, 620 px high element with passes, with nothing cut off', async () => {
+    const w = await widgetPage('passes-390', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="footprint,terminator,passes"`, {
+      width: 390,
+      height: 844,
+      style: 'display:block;height:620px',
+    });
+    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.passes .row, .passes .quiet'));
+    const m = await w.page.evaluate(() => {
+      const sr = document.querySelector('nadir-track')!.shadowRoot!;
+      // the drawn Earth, not the svg box it is fitted into
+      const svg = sr.querySelector('path.sea')!.getBoundingClientRect();
+      const frame = sr.querySelector('.nadir')!;
+      const about = sr.querySelector('.about')!.getBoundingClientRect();
+      return { w: svg.width, h: svg.height, overflows: frame.scrollHeight > frame.clientHeight + 1, aboutBottom: about.bottom, frameBottom: frame.getBoundingClientRect().bottom };
+    });
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'passes-390x620.png') });
+    expect(m.w).toBeGreaterThan(330);
+    expect(m.overflows).toBe(false);
+    expect(m.aboutBottom).toBeLessThanOrEqual(m.frameBottom + 1);
+    await w.ctx.close();
+  });
+});
+
+describe('satellite chips', () => {
+  for (const width of [1280, 390]) {
+    it(`shows four chips whole at ${width} px: none under the Map/Globe switch, none cut short`, async () => {
+      const w = await widgetPage(`chips-${width}`, `satellites="${allIds()}"`, { width, height: 900 });
+      await w.page.waitForFunction(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll('button.chip').length === 4);
+      const m = await w.page.evaluate(() => {
+        const sr = document.querySelector('nadir-track')!.shadowRoot!;
+        const views = sr.querySelector('.views')!.getBoundingClientRect();
+        const chips = Array.from(sr.querySelectorAll<HTMLElement>('button.chip')).map((c) => {
+          const r = c.getBoundingClientRect();
+          const hit = document.elementFromPoint(r.left + r.width / 2, r.top + r.height / 2);
+          return {
+            text: c.textContent ?? '',
+            overlapsViews: r.right > views.left && r.left < views.right && r.bottom > views.top && r.top < views.bottom,
+            cut: c.scrollWidth > c.clientWidth + 1,
+            // the chip itself answers a click at its centre (the shadow host is what the page sees)
+            reachable: hit === document.querySelector('nadir-track') && sr.elementFromPoint(r.left + r.width / 2, r.top + r.height / 2)?.closest('button.chip') === c,
+            inside: r.left >= 0 && r.right <= window.innerWidth,
+          };
+        });
+        return chips;
+      });
+      await w.page.screenshot({ path: path.join(ARTIFACTS, `chips-${width}.png`) });
+      for (const c of m) {
+        expect(c.overlapsViews, c.text).toBe(false);
+        expect(c.cut, c.text).toBe(false);
+        expect(c.reachable, c.text).toBe(true);
+        expect(c.inside, c.text).toBe(true);
+      }
+      await w.ctx.close();
+    });
+  }
+});
+
+describe('the picked satellite', () => {
+  it('separates the place from the coordinates in the panel', async () => {
+    const w = await widgetPage('panel', `satellites="${allIds()}"`);
+    await w.page.waitForFunction(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll('button.chip').length === 4);
+    await w.page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector<HTMLElement>('button.chip')!.click());
+    const over = await w.page.waitForFunction(
+      () => {
+        const p = document.querySelector('nadir-track')!.shadowRoot!.querySelector('.panel .over');
+        return p && /Over /.test(p.textContent ?? '') ? (p as HTMLElement).innerText : null;
+      },
+      undefined,
+      { timeout: 15_000 },
+    );
+    // "Over the North Atlantic · 33.1° N, 20.3° W": never "Atlantic33.1° N"
+    expect(String(await over.jsonValue())).toMatch(/[A-Za-z)]\s*[·,–—]?\s+\d/);
+    expect(String(await over.jsonValue())).not.toMatch(/[a-z]\d/);
+    await w.ctx.close();
+  });
+
+  it('turns the globe to the satellite picked', async () => {
+    const w = await widgetPage('globe', `satellites="${allIds()}" projection="globe"`);
+    await w.page.waitForFunction(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll('button.chip').length === 4);
+    for (const i of [2, 1]) {
+      await w.page.evaluate((n) => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll<HTMLElement>('button.chip')[n]!.click(), i);
+      // the picked marker ends near the middle of the globe (within a quarter of its radius)
+      await w.page.waitForFunction(
+        () => {
+          const sr = document.querySelector('nadir-track')!.shadowRoot!;
+          const svg = sr.querySelector('svg.map')!.getBoundingClientRect();
+          const mark = sr.querySelector('.mark.selected');
+          if (!mark) return false;
+          const r = mark.getBoundingClientRect();
+          const dx = r.left + r.width / 2 - (svg.left + svg.width / 2);
+          const dy = r.top + r.height / 2 - (svg.top + svg.height / 2);
+          return Math.hypot(dx, dy) < Math.min(svg.width, svg.height) / 8;
+        },
+        undefined,
+        { timeout: 10_000 },
+      );
+    }
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'globe-picked.png') });
+    await w.ctx.close();
+  });
+});
+
+describe('words in the reader’s language', () => {
+  const text = (page: Page) => page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.nadir') as HTMLElement).innerText);
+
+  it('speaks German when the locale attribute says de, with the time zone as people say it', async () => {
+    const w = await widgetPage('de', `satellites="${server.credentials.satellites[0]!.id}" observer="52.52,13.40" layers="passes,footprint" locale="de" time-zone="Europe/Berlin"`, { locale: 'en-US' });
+    await w.page.waitForFunction(() => /Globus/.test((document.querySelector('nadir-track')!.shadowRoot!.querySelector('.nadir') as HTMLElement).innerText), undefined, { timeout: 10_000 });
+    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.passes .row, .passes .quiet'));
+    const t = await text(w.page);
+    expect(t).toContain('Karte');
+    expect(t).toContain('Über diese Positionen');
+    expect(t).toMatch(/Nächste Überflüge von .+ über /);
+    expect(t).toContain('Mitteleuropäische');
+    expect(t).not.toContain('Europe/Berlin');
+    expect(t).not.toMatch(/\bover you\b|Next passes/);
+    await w.page.screenshot({ path: path.join(ARTIFACTS, 'locale-de.png') });
+    await w.ctx.close();
+  });
+
+  for (const [lang, word, about] of [
+    ['fr-FR', 'Carte', 'À propos de ces positions'],
+    ['es-ES', 'Mapa', 'Sobre estas posiciones'],
+  ] as const) {
+    it(`follows a ${lang} browser when no locale is set`, async () => {
+      const w = await widgetPage(`browser-${lang}`, `satellites="${server.credentials.satellites[0]!.id}"`, { locale: lang, zone: 'Europe/Paris' });
+      await w.page.waitForFunction((a) => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.nadir') as HTMLElement).innerText.includes(a), about, { timeout: 10_000 });
+      expect(await text(w.page)).toContain(word);
+      await w.ctx.close();
+    });
+  }
+
+  it('names a fixed observer place in the pass list instead of “you”', async () => {
+    const w = await widgetPage('place', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="passes" observer-name="Ostwick Hall"`);
+    const title = await w.page.waitForFunction(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.passes-title')?.textContent ?? null, undefined, { timeout: 15_000 });
+    expect(String(await title.jsonValue())).toContain('over Ostwick Hall');
+    expect(String(await title.jsonValue())).not.toContain('over you');
+    expect(String(await title.jsonValue())).not.toMatch(/Europe\/London/);
+    await w.ctx.close();
+    const w2 = await widgetPage('place-coords', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="passes"`);
+    const t2 = await w2.page.waitForFunction(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.passes-title')?.textContent ?? null, undefined, { timeout: 15_000 });
+    expect(String(await t2.jsonValue())).toMatch(/over 51\.4° N, 2\.4° W/);
+    await w2.ctx.close();
+  });
+});
+
+describe('hosted embed framed by a site its key does not list', () => {
+  it('shows the Nadirline notice inside the frame, not a blocked frame', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 1000, height: 700 } });
+    const page = await ctx.newPage();
+    const outside = 'http://pages.elsewhere.test/story.html';
+    await page.route(outside, (r) =>
+      r.fulfill({ contentType: 'text/html', body: `<!doctype html><h1>A story</h1><iframe src="${server.url}/embed/${server.credentials.embedId}" width="800" height="420" title="Our satellites"></iframe>` }),
+    );
+    await page.goto(outside);
+    const frame = await (await page.waitForSelector('iframe')).contentFrame();
+    expect(frame).not.toBeNull();
+    await frame!.waitForSelector('text=This map is not allowed on this site', { timeout: 10_000 });
+    expect(await frame!.textContent('body')).toContain('http://pages.elsewhere.test');
+    await page.screenshot({ path: path.join(ARTIFACTS, 'embed-refused.png') });
+    await ctx.close();
+  });
+});

@@ -1,0 +1,26 @@
+/**
+ * Concurrent writes on SQLite: 20 uploaders for 15 s (a third of their uploads repeat an epoch
+ * another uploader is storing at the same moment) and 100 simultaneous uploads of one epoch,
+ * while an unrelated reader asks for another satellite's position. No answer may be 5xx, no
+ * epoch may be stored twice, the usage flush must keep working, and the reader must not wait
+ * behind the writers (a generous bound: the figures themselves are in `npm run bench`).
+ */
+import { describe, expect, it } from 'vitest';
+import { runWriteLoad } from '../support/write-load.ts';
+
+describe('20 parallel writers on one SQLite file', () => {
+  it('answer no 5xx, store no duplicate epoch, keep the usage flush working and the reader quick', async () => {
+    const f = await runWriteLoad({ writers: 20, seconds: 15, sameEpochBurst: 100 });
+    const figures = JSON.stringify(f);
+    expect(f.uploads, figures).toBeGreaterThan(200);
+    expect(f.status5xx, figures).toBe(0);
+    expect(f.statuses['network-error'] ?? 0, figures).toBe(0);
+    expect(f.statuses['timeout'] ?? 0, figures).toBe(0);
+    expect(f.duplicates, figures).toBe(0);
+    expect(f.burstRows, figures).toBe(1);
+    expect(f.flushErrors, figures).toBe(0);
+    expect(f.usageCounted, figures).toBe(f.requestsAnswered);
+    expect(f.readerFailures, figures).toBe(0);
+    expect(f.readerP99Ms, figures).toBeLessThan(100);
+  }, 180_000);
+});
