@@ -2,6 +2,7 @@
  * Builds the Express app. Tests import createApp and drive it over real HTTP (supertest);
  * index.ts opens the database through it, listens and shuts down cleanly.
  */
+import type { IncomingMessage, ServerResponse } from 'node:http';
 import compression from 'compression';
 import express from 'express';
 import pino from 'pino';
@@ -10,12 +11,17 @@ import type { Config } from './config.ts';
 import type { AppContext } from './context.ts';
 import { openDatabase } from './db/index.ts';
 import { bodyTimeout, refuseControlChars } from './http/input-guards.ts';
+import { getOverLimitGate, overLimitFront } from './http/over-limit.ts';
 import { errorHandler, notFoundHandler } from './http/problem.ts';
 import { createApiRouter } from './routes/api/index.ts';
 import { createSiteRouter } from './routes/site.ts';
+import { createPaymentsWebhookRouter } from './routes/payments-webhook.ts';
 import { createV1Router } from './routes/v1/index.ts';
 import { getEmbedService } from './services/embeds.ts';
 import { getKeyService } from './services/keys.ts';
+import { registerNoticeJobs } from './services/notices.ts';
+import { getPayments } from './services/payments.ts';
+import { startScheduler } from './services/scheduler.ts';
 import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { getUsageRecorder } from './services/usage.ts';
@@ -29,6 +35,11 @@ export function redactUrl(url: string): string {
 
 export interface NadirlineApp {
   app: express.Express;
+  /**
+   * What the HTTP server should call: the over-limit gate, then the app. Refusing a key that is
+   * over its limit here skips Express's own work per request as well (index.ts listens with it).
+   */
+  handler: (req: IncomingMessage, res: ServerResponse) => void;
   context: AppContext;
   /** Flush usage, stop the fake SMTP server, close the database. Idempotent. */
   close(): Promise<void>;
@@ -51,10 +62,21 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   getQuotaService(context);
   getEmbedService(context);
   getSatelliteService(context);
+  // The payment provider's client (and the local fake outside production).
+  await getPayments(context);
+  // Notices and scheduled work (grace ends, quota thresholds, the daily stale digest); run once
+  // across processes through job_leases. Tests drive runDueJobs with their own clock instead.
+  registerNoticeJobs(context);
+  if (!config.isTest) startScheduler(context);
 
   const app = express();
   app.disable('x-powered-by');
   app.set('trust proxy', 'loopback');
+  // Keys over their rate limit are refused first: no log line, no routing, no limiter work.
+  // The server calls the gate before Express (handler below); in-process callers get it here.
+  const keys = getKeyService(context);
+  const front = overLimitFront(getOverLimitGate(context), (text) => keys.cachedKeyIdFor(text));
+  app.use(front);
   // Request lines are logged at info; below that level the middleware would only cost time.
   if (logger.isLevelEnabled('info')) app.use(
     pinoHttp({
@@ -79,6 +101,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   app.get('/healthz', (_req, res) => {
     res.json({ ok: true });
   });
+  // Raw body, before the console's JSON, session and CSRF stack.
+  app.use(createPaymentsWebhookRouter(context));
   app.use('/v1', await createV1Router(context));
   app.use('/api', await createApiRouter(context));
   if (!config.isProduction) app.use('/dev', await (await import('./routes/dev.ts')).createDevRouter(context));
@@ -102,5 +126,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
     })();
     return closed;
   };
-  return { app, context, close };
+  const handler = (req: IncomingMessage, res: ServerResponse) => {
+    front(req as express.Request, res as express.Response, () => app(req, res));
+  };
+  return { app, handler, context, close };
 }

@@ -43,12 +43,25 @@ const schema = z.object({
   LOG_LEVEL: z.enum(['fatal', 'error', 'warn', 'info', 'debug', 'trace', 'silent']).default('info'),
   /** Usage counters are flushed to the database at this interval. */
   USAGE_FLUSH_MS: z.coerce.number().int().min(100).max(60_000).default(5000),
-  /** Payment provider: base URL of the provider API (the local fake in development). */
-  PAYMENTS_API_BASE: z.string().optional(),
+  /** Payment provider: base URL of the provider API (http://127.0.0.1:PORT for a fake started by hand). */
+  PAYMENTS_API_BASE: z.string().url().optional(),
   PAYMENTS_SECRET_KEY: z.string().optional(),
   PAYMENTS_WEBHOOK_SECRET: z.string().optional(),
   /** How long a request body may take to arrive after its headers, ms (0 = no limit): then 408 and the connection closes. */
   BODY_TIMEOUT_MS: z.coerce.number().int().min(0).max(600_000).default(10_000),
+  /** Memory for finished /v1 track answers, MiB (least recently asked dropped first). */
+  TRACK_CACHE_MB: z.coerce.number().int().min(1).max(4096).default(64),
+  /** Start the built-in fake payment provider (default: on outside production when PAYMENTS_API_BASE is unset). */
+  PAYMENTS_FAKE: bool.optional(),
+  /** Port of the built-in fake payment provider (0 = any free port). */
+  FAKE_PAYMENTS_PORT: z.coerce.number().int().min(0).max(65535).default(0),
+  /** Where the fake provider started on its own (npm run fake-payments -w server) sends its webhooks. */
+  FAKE_PAYMENTS_WEBHOOK_URL: z.string().url().optional(),
+  /** Provider price ids of the paid plans. */
+  PAYMENTS_PRICE_MISSION: z.string().default('price_nl_mission'),
+  PAYMENTS_PRICE_CONSTELLATION: z.string().default('price_nl_constellation'),
+  /** Days a paid plan is kept after a failed payment before the organization falls back to Starter. */
+  PAYMENTS_GRACE_DAYS: z.coerce.number().min(0).max(60).default(7),
 });
 
 export type Config = z.infer<typeof schema> & {
@@ -65,6 +78,8 @@ export type Config = z.infer<typeof schema> & {
   demo: boolean;
   sessionSecret: string;
   dataDir: string;
+  /** True when the built-in fake payment provider starts with the app. */
+  paymentsFake: boolean;
 };
 
 /** An empty variable (`NODE_ENV=`) counts as unset, as if the line were not there. */
@@ -114,6 +129,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
   const c = parsed.data;
   const isProduction = c.NODE_ENV === 'production';
   if (isProduction && !c.SESSION_SECRET) throw new Error('Invalid configuration:\n  SESSION_SECRET: required in production');
+  if (isProduction && c.PAYMENTS_FAKE) throw new Error('Invalid configuration:\n  PAYMENTS_FAKE: the fake payment provider never runs in production');
   const dataDir = path.dirname(c.SQLITE_FILE);
   const publicUrl = (c.PUBLIC_URL ?? `http://localhost:${c.PORT}`).replace(/\/$/, '');
   const selfOrigins = c.PUBLIC_URL || c.PORT !== 0 ? [originOf(publicUrl)] : [];
@@ -126,6 +142,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
     demo: c.DEMO ?? !isProduction,
     sessionSecret: c.SESSION_SECRET ?? dataDirSecret(dataDir),
     dataDir,
+    paymentsFake: c.PAYMENTS_FAKE ?? (!isProduction && !c.PAYMENTS_API_BASE),
   };
 }
 

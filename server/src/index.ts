@@ -3,22 +3,27 @@
  * listening, so the demo browser key can name the real port), and shut down cleanly on
  * SIGTERM / SIGINT (usage counters are flushed first).
  */
-import type { Server } from 'node:http';
+import http, { type Server } from 'node:http';
 import { createApp } from './app.ts';
 import { loadConfig, noteListening } from './config.ts';
 import { seedDemo } from './seed/demo.ts';
 
 const config = loadConfig();
-const { app, context, close } = await createApp(config);
+const { handler, context, close } = await createApp(config);
 const { logger } = context;
 
 const server: Server = await new Promise<Server>((resolve, reject) => {
-  const s = app.listen(config.PORT, config.HOST, (err?: Error) => (err ? reject(err) : resolve(s)));
+  const s = http.createServer(handler);
+  s.once('error', reject);
+  s.listen(config.PORT, config.HOST, () => resolve(s));
 });
 const address = server.address();
 const port = typeof address === 'object' && address ? address.port : config.PORT;
 noteListening(config, port);
 logger.info({ port, host: config.HOST }, `Nadirline listening on ${config.HOST} port ${port}`);
+// The built-in fake payment provider sends its webhook events to this process.
+const loopback = ['0.0.0.0', '::', '127.0.0.1', 'localhost'].includes(config.HOST) ? '127.0.0.1' : config.HOST;
+context.services.payments?.fake?.setWebhookUrl(`http://${loopback.includes(':') ? `[${loopback}]` : loopback}:${port}/webhooks/payments`);
 
 if (config.demo) {
   const demo = await seedDemo(context, { port });

@@ -14,6 +14,7 @@ const modules: BenchModule[] = [
   { name: 'orbit engine', load: () => import('./orbit.bench.ts') },
   { name: 'element-set parsing (hostile texts)', load: () => import('./parse.bench.ts') },
   { name: 'server', load: () => import('./server.bench.ts') },
+  { name: 'server under a flood of over-limit requests', load: () => import('./flood.bench.ts') },
   { name: 'concurrent writes', load: () => import('./writes.bench.ts') },
   { name: 'widget', load: () => import('./widget.bench.ts') },
 ];

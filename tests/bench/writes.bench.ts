@@ -20,6 +20,8 @@ function line(name: string, f: WriteLoadFigures): string {
 }
 
 export async function run(): Promise<void> {
+  // Warm-up (not printed): the first app in a process pays for loading and compiling.
+  await runWriteLoad({ writers: 2, seconds: 2 });
   const alone = await runWriteLoad({ writers: 0, seconds: Math.min(5, SECONDS) });
   console.log(line('reader alone', alone));
   const loaded = await runWriteLoad({ writers: 20, seconds: SECONDS, sameEpochBurst: 100 });

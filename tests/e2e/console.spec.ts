@@ -93,8 +93,13 @@ describe('the console against the real server', () => {
     await page.goto(`${server.url}/sign-up`);
     await page.getByLabel('Your name').fill('Rosa Vennik');
     await page.getByLabel('E-mail').fill(email);
-    await page.getByLabel('Password').fill(password);
     await page.getByLabel('Organization').fill('Vennik Outreach Lab');
+    // A common password is refused, and the form says why beside the field.
+    await page.getByLabel('Password').fill('password1234');
+    await page.getByRole('button', { name: 'Create account' }).click();
+    await page.locator('p.error', { hasText: 'too easy to guess' }).waitFor();
+    await shot(page, 'sign-up-weak-password');
+    await page.getByLabel('Password').fill(password);
     await page.getByRole('button', { name: 'Create account' }).click();
     await page.getByRole('heading', { name: 'Check your inbox' }).waitFor();
 
@@ -119,7 +124,7 @@ describe('the console against the real server', () => {
     await shot(page, 'signed-up-and-in');
   });
 
-  it('lets an invited person sign up and says they are in at once, with no e-mail to wait for', async () => {
+  it('lets an invited person sign up and be in the organization at once: no e-mail to wait for, no second sign-in', async () => {
     const { page, org } = await signInAs('admin');
     const email = `invited.${Date.now()}@ostwick.example.org`;
     const invited = await page.evaluate(
@@ -146,17 +151,16 @@ describe('the console against the real server', () => {
     await guest.getByLabel('Your name').fill('Noor Achterberg');
     await guest.getByLabel('Password').fill('lantern-orbit-4471');
     await guest.getByRole('button', { name: 'Create account' }).click();
-    await guest.getByRole('heading', { name: 'You’re in' }).waitFor();
-    const said = (await guest.locator('[data-test="signed-up"]').textContent()) ?? '';
-    expect(said).toMatch(/You joined .+ as Editor\./);
+    // Signed in by the sign-up: straight into the organization's satellites, its navigation shown.
+    await guest.waitForURL(new RegExp(`/o/${org}/satellites$`));
+    await guest.getByRole('navigation', { name: 'Console' }).getByRole('link', { name: 'Keys' }).waitFor();
+    expect(await guest.getByText(/Signed in as/).textContent()).toContain('Noor Achterberg');
     expect(await guest.getByText(/inbox|confirmation link/i).count()).toBe(0);
     await shot(guest, 'invited-sign-up-done');
     const after = (await (await fetch(`${server.url}/dev/mailbox.json`)).json()) as { messages: unknown[] };
     expect(after.messages.length).toBe(before);
-
-    await guest.getByRole('link', { name: 'Sign in' }).click();
-    await guest.getByLabel('Password').fill('lantern-orbit-4471');
-    await guest.getByRole('button', { name: 'Sign in', exact: true }).click();
+    // A reload keeps the session: it is a real one, not a page state.
+    await guest.reload();
     await guest.waitForURL(new RegExp(`/o/${org}/satellites$`));
   });
 
@@ -202,15 +206,19 @@ describe('the console against the real server', () => {
     await page.getByRole('heading', { name: 'Derived orbit' }).waitFor();
   });
 
-  it('creates a browser key, rotates it, and the old key answers until its grace ends', async () => {
+  it('replaces a browser key with a newly named one; the old key retires when quiet and the list says which replaced which', async () => {
     const { page, org } = await signInAs('admin');
     await page.goto(`${server.url}/o/${org}/keys`);
     await page.getByRole('button', { name: 'Create a key' }).first().click();
+    // Create key says what is missing while it cannot be pressed.
+    const create = page.getByRole('button', { name: 'Create key' });
+    expect(await create.isDisabled()).toBe(true);
+    await page.getByText('Name the key first.').waitFor();
     await page.getByLabel('Name', { exact: true }).fill('E2E site');
     // No origin is filled in for the person: the console's own origin is not where pages live.
     expect(await page.getByLabel('Allowed origins').inputValue()).toBe('');
     await page.getByLabel('Allowed origins').fill(server.url);
-    await page.getByRole('button', { name: 'Create key' }).click();
+    await create.click();
     const dialog = page.getByRole('dialog', { name: 'Your new key' });
     const first = ((await dialog.locator('pre').textContent()) ?? '').trim();
     expect(first).toMatch(/^nlb_/);
@@ -218,37 +226,175 @@ describe('the console against the real server', () => {
     await dialog.waitFor({ state: 'detached' });
     expect(await page.content()).not.toContain(first);
     expect((await pageGet(page, `/v1/satellites?key=${first}`)).status).toBe(200);
+    await page.reload();
 
     const row = page.locator('tr', { hasText: 'E2E site' });
     await row.getByRole('button', { name: /Manage/ }).click();
-    await page.getByRole('menuitem', { name: 'Rotate…' }).click();
-    const rotate = page.getByRole('dialog', { name: /Rotate/ });
-    await rotate.getByText(/The old key stops at about/).waitFor();
-    await rotate.getByRole('button', { name: 'Rotate key' }).click();
-    const rotated = page.getByRole('dialog', { name: 'Key rotated' });
-    const second = ((await rotated.locator('pre').textContent()) ?? '').trim();
+    await page.getByRole('menuitem', { name: 'Replace with a new key…' }).click();
+    const rotate = page.getByRole('dialog', { name: /Replace “E2E site”/ });
+    await rotate.getByText(/Used by no embed; seen from this origin in the last 7 days/).waitFor();
+    await rotate.getByText(new RegExp(`${server.url.replace(/[.:/]/g, '\\$&')}: 1 request`)).waitFor();
+    // The new key needs a name of its own: the old name twice is refused, and the button says so.
+    const name = rotate.getByLabel('Name of the new key');
+    await name.fill('E2E site');
+    expect(await rotate.getByRole('button', { name: 'Replace key' }).isDisabled()).toBe(true);
+    await rotate.getByText('The new key needs a name of its own.').waitFor();
+    await name.fill('E2E site, 2027');
+    await rotate.getByLabel('Quiet spell', { exact: true }).fill('1');
+    await rotate.getByLabel('Unit of the quiet spell').selectOption('hours');
+    await rotate.getByText(/retires 1 hour after its last request/).waitFor();
+    await shot(page, 'key-replace-dialog');
+    await rotate.getByRole('button', { name: 'Replace key' }).click();
+    const replaced = page.getByRole('dialog', { name: 'Key replaced' });
+    const second = ((await replaced.locator('pre').textContent()) ?? '').trim();
     expect(second).toMatch(/^nlb_/);
     expect(second).not.toBe(first);
-    await rotated.getByText(/keeps answering until/).waitFor();
-    await shot(page, 'key-rotated');
-    await rotated.getByRole('button', { name: 'I have stored the key' }).click();
+    await replaced.getByRole('heading', { name: '“E2E site, 2027” replaces “E2E site”' }).waitFor();
+    await replaced.getByText(/retires when quiet: after 1 hour without use/).waitFor();
+    await shot(page, 'key-replaced');
+    await replaced.getByRole('button', { name: 'I have stored the key' }).click();
 
-    // Both keys answer during the grace period; the list shows the old one in grace.
+    // Both keys answer while the old one is still called; the list names both and the old one's callers.
     expect((await pageGet(page, `/v1/satellites?key=${second}`)).status).toBe(200);
     expect((await pageGet(page, `/v1/satellites?key=${first}`)).status).toBe(200);
-    await page.locator('tr', { hasText: 'Grace period' }).first().waitFor();
+    await page.reload();
+    const oldRow = page.locator('tr', { hasText: 'Retiring when quiet' }).filter({ hasText: 'Replaced by “E2E site, 2027”' });
+    await oldRow.waitFor();
+    await oldRow.getByText(/Retires after 1 hour without use/).waitFor();
+    await oldRow.getByText(`Still called from: ${server.url}`).waitFor();
+    expect(await oldRow.getByRole('cell', { name: /just now|min ago/ }).count()).toBeGreaterThan(0);
+    await page.locator('tr', { hasText: 'Replaces “E2E site”' }).filter({ hasText: 'E2E site, 2027' }).waitFor();
+    await shot(page, 'key-list-retiring');
 
-    // A rotation without grace ends the old key's life at once: it is then refused.
-    await page.locator('tr', { hasText: 'E2E site' }).filter({ hasText: 'Active' }).getByRole('button', { name: /Manage/ }).click();
-    await page.getByRole('menuitem', { name: 'Rotate…' }).click();
-    await page.getByRole('button', { name: /24 hours/ }).click();
-    await page.getByRole('option', { name: /Stop the old key at once/ }).click();
-    await page.getByRole('dialog', { name: /Rotate/ }).getByRole('button', { name: 'Rotate key' }).click();
-    const third = ((await page.getByRole('dialog', { name: 'Key rotated' }).locator('pre').textContent()) ?? '').trim();
+    // A quiet spell of zero retires the old key at once: it is then refused.
+    await page.locator('tr', { hasText: 'E2E site, 2027' }).filter({ hasText: 'Active' }).getByRole('button', { name: /Manage/ }).click();
+    await page.getByRole('menuitem', { name: 'Replace with a new key…' }).click();
+    const again = page.getByRole('dialog', { name: /Replace “E2E site, 2027”/ });
+    await again.getByLabel('Name of the new key').fill('E2E site, 2028');
+    await again.getByLabel('Quiet spell', { exact: true }).fill('0');
+    await again.getByText('The old key retires the moment you replace it.').waitFor();
+    await again.getByRole('button', { name: 'Replace key' }).click();
+    const third = ((await page.getByRole('dialog', { name: 'Key replaced' }).locator('pre').textContent()) ?? '').trim();
     await page.getByRole('button', { name: 'I have stored the key' }).click();
     expect((await pageGet(page, `/v1/satellites?key=${third}`)).status).toBe(200);
     const old = await pageGet(page, `/v1/satellites?key=${second}`);
-    expect(old.status).toBe(401);
+    expect(old).toEqual({ status: 401, code: 'key-rotated' });
+  });
+
+  it('keeps an embed drawing, hosted and by script, after the key it used is replaced and retired', async () => {
+    const { page, org } = await signInAs('admin');
+    // A key and an embed of their own, made through the console API as the console makes them.
+    const made = await page.evaluate(
+      async ({ o, origin, sat }) => {
+        const { csrfToken } = (await (await fetch('/api/session')).json()) as { csrfToken: string };
+        const post = async (url: string, body: unknown) =>
+          (await fetch(url, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken }, body: JSON.stringify(body) })).json() as Promise<Record<string, { id: string }>>;
+        const key = await post(`/api/orgs/${o}/keys`, { kind: 'browser', name: 'E2E embed key', origins: [origin] });
+        const embed = await post(`/api/orgs/${o}/embeds`, { name: 'E2E follows', satelliteIds: [sat], apiKeyId: key.key!.id, options: { layers: ['footprint'] } });
+        return { keyId: key.key!.id, embedId: embed.embed!.id };
+      },
+      { o: org, origin: server.url, sat: server.credentials.satellites[0]!.id },
+    );
+    const drawn = (p: Page) => p.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.mark'), undefined, { timeout: 20_000 });
+    const hosted = await newPage();
+    await hosted.goto(`${server.url}/embed/${made.embedId}`);
+    await drawn(hosted);
+    const host = await newPage();
+    const snippet = `<script type="module" src="${server.url}/widget/nadir-track.js"></script>\n<nadir-track embed="${made.embedId}" api-base="${server.url}"></nadir-track>`;
+    await host.route(`${server.url}/e2e-follow-page.html`, (route) => route.fulfill({ contentType: 'text/html', body: `<!doctype html><title>Host</title>${snippet}` }));
+    await host.goto(`${server.url}/e2e-follow-page.html`);
+    await drawn(host);
+
+    // Replace the key with a quiet spell of zero: the old key retires at once.
+    await page.goto(`${server.url}/o/${org}/keys`);
+    await page.locator('tr', { hasText: 'E2E embed key' }).getByRole('button', { name: /Manage/ }).click();
+    await page.getByRole('menuitem', { name: 'Replace with a new key…' }).click();
+    const rotate = page.getByRole('dialog', { name: /Replace “E2E embed key”/ });
+    await rotate.getByText(/Used by 1 embed;/).waitFor();
+    await rotate.getByText(/These embeds switch to the new key at once/).waitFor();
+    await rotate.getByText('E2E follows').waitFor();
+    await rotate.getByLabel('Name of the new key').fill('E2E embed key, new');
+    await rotate.getByLabel('Quiet spell', { exact: true }).fill('0');
+    await rotate.getByRole('button', { name: 'Replace key' }).click();
+    await page.getByRole('dialog', { name: 'Key replaced' }).getByText('1 embed reads with the new key from now on; their pages need no change.').waitFor();
+    await page.getByRole('button', { name: 'I have stored the key' }).click();
+    await page.locator('tr', { hasText: 'E2E embed key, new' }).getByText('Used by 1 embed').waitFor();
+
+    // Both pages, loaded afresh, draw again; the embed list shows the embed on the new key.
+    for (const p of [hosted, host]) {
+      const refused: number[] = [];
+      p.on('response', (r) => {
+        if (r.url().includes('/v1/') && r.status() >= 400) refused.push(r.status());
+      });
+      await p.reload();
+      await drawn(p);
+      expect(refused).toEqual([]);
+    }
+    await shot(hosted, 'embed-after-key-retired');
+    await page.goto(`${server.url}/o/${org}/embeds`);
+    const listed = page.locator('tr, li, article', { hasText: 'E2E follows' }).first();
+    await listed.waitFor();
+    expect(await listed.textContent()).not.toMatch(/expired|retired/i);
+  });
+
+  it('lets the last key row’s Manage menu be used with four keys or more, at 1280 and 390 px', async () => {
+    const { page, org } = await signInAs('admin');
+    await page.evaluate(async (o) => {
+      const { csrfToken } = (await (await fetch('/api/session')).json()) as { csrfToken: string };
+      for (let i = 1; i <= 4; i++) {
+        await fetch(`/api/orgs/${o}/keys`, { method: 'POST', headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken }, body: JSON.stringify({ kind: 'server', name: `E2E menu key ${i}` }) });
+      }
+    }, org);
+    for (const width of [1280, 390]) {
+      await page.setViewportSize({ width, height: width === 390 ? 844 : 900 });
+      await page.goto(`${server.url}/o/${org}/keys`);
+      await page.locator('tr', { hasText: 'E2E menu key 1' }).waitFor();
+      const manage = page.getByRole('button', { name: /Manage/ });
+      expect(await manage.count()).toBeGreaterThanOrEqual(4);
+      const last = manage.last();
+      await last.scrollIntoViewIfNeeded();
+      await last.click();
+      const revoke = page.getByRole('menuitem', { name: 'Revoke…' });
+      await revoke.waitFor();
+      // Nothing lies over the item: the browser would click it where a person would.
+      const box = (await revoke.boundingBox())!;
+      const hit = await page.evaluate(({ x, y }) => document.elementFromPoint(x, y)?.textContent ?? '', { x: box.x + box.width / 2, y: box.y + box.height / 2 });
+      expect(hit).toContain('Revoke');
+      await shot(page, `keys-menu-open-${width}`);
+      await revoke.click();
+      await page.getByRole('dialog', { name: /^Revoke “/ }).waitFor();
+      await page.getByRole('dialog', { name: /^Revoke “/ }).getByText(/^Used by (no embed|\d+ embeds?);/).waitFor();
+      await page.getByRole('button', { name: 'Cancel' }).click();
+    }
+  });
+
+  it('refuses an invalid observer in the embed builder and says why Save cannot be pressed', async () => {
+    const { page, org } = await signInAs('editor');
+    await page.goto(`${server.url}/o/${org}/embeds/new`);
+    const save = page.getByRole('button', { name: 'Save embed' });
+    await page.getByText('Name the embed first.').waitFor();
+    expect(await save.isDisabled()).toBe(true);
+    await page.getByLabel('Name', { exact: true }).fill('E2E observer');
+    await page.getByRole('checkbox', { name: /Next passes over the observer/ }).check();
+    await page.getByText('The passes layer needs an observer, or turn passes off.').waitFor();
+    expect(await save.isDisabled()).toBe(true);
+    await page.getByRole('radio', { name: 'A fixed place' }).check();
+    await page.getByLabel('Latitude (°, north +)').fill('123');
+    await page.getByLabel('Longitude (°, east +)').fill('0');
+    await page.getByText(/Latitude is a number from -90 to 90 \(north positive\); “123” is not\./).first().waitFor();
+    expect(await save.isDisabled()).toBe(true);
+    await page.getByLabel('Latitude (°, north +)').fill('52.1');
+    await page.getByLabel('Longitude (°, east +)').fill('abc');
+    await page.getByText(/“abc” is not/).first().waitFor();
+    expect(await save.isDisabled()).toBe(true);
+    await shot(page, 'builder-invalid-observer');
+    await page.getByLabel('Longitude (°, east +)').fill('4.3');
+    await expect.poll(() => save.isDisabled()).toBe(false);
+    await save.click();
+    await page.waitForURL(/\/embeds\/(?!new)[^/]+$/);
+    const id = page.url().split('/').at(-1)!;
+    const saved = (await (await page.request.get(`${server.url}/api/orgs/${org}/embeds`)).json()) as { embeds: { id: string; options: { observer: string } }[] };
+    expect(saved.embeds.find((e) => e.id === id)?.options.observer).toBe('52.1,4.3');
   });
 
   it('builds an embed whose snippet then works in a separate page', async () => {

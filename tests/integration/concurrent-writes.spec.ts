@@ -5,7 +5,10 @@
  * epoch may be stored twice, the usage flush must keep working, and the reader must not wait
  * behind the writers (a generous bound: the figures themselves are in `npm run bench`).
  */
+import request from 'supertest';
 import { describe, expect, it } from 'vitest';
+import { writeLockOf } from '@nadirline/server/db/index.ts';
+import { leoTle, startKeyedApp } from '../support/app.ts';
 import { runWriteLoad } from '../support/write-load.ts';
 
 describe('20 parallel writers on one SQLite file', () => {
@@ -23,4 +26,33 @@ describe('20 parallel writers on one SQLite file', () => {
     expect(f.readerFailures, figures).toBe(0);
     expect(f.readerP99Ms, figures).toBeLessThan(100);
   }, 180_000);
+});
+
+describe('a write that cannot get its turn in time', () => {
+  it('answers 503 busy with Retry-After, stores nothing, and the next try works', async () => {
+    const t = await startKeyedApp();
+    try {
+      const lock = writeLockOf(t.context.sequelize)!;
+      lock.waitMs = 300;
+      let release!: () => void;
+      const held = new Promise<void>((r) => (release = r));
+      const holder = t.context.sequelize.transaction(async () => {
+        await held;
+      });
+      const text = leoTle({ hoursAgo: 5 });
+      const res = await request(t.app).post(`/v1/satellites/${t.satellites.leo.id}/element-sets`).set('Authorization', `Bearer ${t.serverKey}`).set('Content-Type', 'text/plain').send(text);
+      expect(res.status).toBe(503);
+      expect(res.headers['content-type']).toMatch(/^application\/problem\+json/);
+      expect(res.body.code).toBe('busy');
+      expect(res.headers['retry-after']).toBe('2');
+      expect(res.body.detail).not.toMatch(/\n\s+at /);
+      release();
+      await holder;
+      const again = await request(t.app).post(`/v1/satellites/${t.satellites.leo.id}/element-sets`).set('Authorization', `Bearer ${t.serverKey}`).set('Content-Type', 'text/plain').send(text);
+      expect(again.status).toBe(201);
+      expect(again.body.accepted).toBe(1);
+    } finally {
+      await t.close();
+    }
+  });
 });

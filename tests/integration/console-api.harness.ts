@@ -29,7 +29,8 @@ export const PASSWORD = 'correct horse battery';
 
 export interface TestApp extends NadirlineApp {
   dir: string;
-  browser(): Browser;
+  /** A new browser, from its own client address unless one is given. */
+  browser(clientAddress?: string): Browser;
   mailbox(): Promise<MailboxMessage[]>;
   /** The newest message sent to `to`, its first link and the token at the end of that link. */
   lastMailTo(to: string): Promise<{ message: MailboxMessage; link: string; token: string }>;
@@ -37,12 +38,12 @@ export interface TestApp extends NadirlineApp {
 
 export async function startTestApp(env: Record<string, string> = {}): Promise<TestApp> {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-console-api-'));
-  const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'test.sqlite'), PUBLIC_URL: 'http://console.test', LOG_LEVEL: 'silent', DEMO: 'false', ...env });
+  const config = loadConfig({ NODE_ENV: 'test', SQLITE_FILE: path.join(dir, 'test.sqlite'), PUBLIC_URL: 'http://console.test', LOG_LEVEL: 'silent', DEMO: 'false', TRUST_PROXY: 'loopback', ...env });
   const built = await createApp(config);
   const t: TestApp = {
     ...built,
     dir,
-    browser: () => new Browser(built.app),
+    browser: (clientAddress?: string) => new Browser(built.app, clientAddress),
     async mailbox() {
       const res = await request(built.app).get('/dev/mailbox.json').expect(200);
       return (res.body as { messages: MailboxMessage[] }).messages;
@@ -84,12 +85,21 @@ function pending(p: Promise<Response>): Pending {
   });
 }
 
-/** A person with one browser: keeps the session cookie and the CSRF token. */
+let clients = 0;
+
+/**
+ * A person with one browser: keeps the session cookie and the CSRF token. Each browser comes
+ * from its own client address (X-Forwarded-For, as a reverse proxy on this machine would say),
+ * so the per-client throttles of sign-up, e-mails and invitations count each person apart.
+ */
 export class Browser {
   readonly agent: ReturnType<typeof request.agent>;
+  readonly clientAddress: string;
   csrf = '';
-  constructor(app: NadirlineApp['app']) {
-    this.agent = request.agent(app);
+  constructor(app: NadirlineApp['app'], clientAddress?: string) {
+    clients += 1;
+    this.clientAddress = clientAddress ?? `198.51.${Math.floor(clients / 250) % 250}.${(clients % 250) + 1}`;
+    this.agent = request.agent(app).set('X-Forwarded-For', this.clientAddress);
   }
 
   async session(): Promise<Response> {

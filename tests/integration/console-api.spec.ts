@@ -52,16 +52,21 @@ describe('keys', () => {
     expect(writes.status).toBe(400);
   });
 
-  it('rotates with a grace period, then revokes, and records each step without the key text', async () => {
+  it('rotates (the old key retires when quiet), then revokes, and records each step without the key text', async () => {
     const created = await owner.browser.post(api('/keys'), { kind: 'browser', name: 'Public site', origins: ['https://alder.example', 'https://*.alder.example'] }).expect(201);
     const id = created.body.key.id as string;
-    const rotated = await owner.browser.post(api(`/keys/${id}/rotate`), { graceHours: 2 });
+    const retireBy = new Date(Date.now() + 5 * 86_400_000).toISOString();
+    const rotated = await owner.browser.post(api(`/keys/${id}/rotate`), { name: 'Public site 2027', quietMinutes: 120, retireBy });
     expect(rotated.status).toBe(201);
     expect(rotated.body.secret).toMatch(/^nlb_/);
-    expect(rotated.body.previous).toMatchObject({ id, state: 'grace', replacedById: rotated.body.key.id });
-    const hours = (Date.parse(rotated.body.previous.graceUntil) - Date.now()) / 3_600_000;
+    expect(rotated.body.key).toMatchObject({ name: 'Public site 2027', replacesId: id, state: 'active' });
+    expect(rotated.body.previous).toMatchObject({ id, name: 'Public site', state: 'retiring', replacedById: rotated.body.key.id, retireQuietMinutes: 120, retireBy });
+    const hours = (Date.parse(rotated.body.previous.retiresAt) - Date.now()) / 3_600_000;
     expect(hours).toBeGreaterThan(1.9);
     expect(hours).toBeLessThanOrEqual(2);
+    const sameName = await owner.browser.post(api(`/keys/${rotated.body.key.id}/rotate`), { name: 'Public site 2027' });
+    expect(sameName.status).toBe(400);
+    expect(sameName.body.errors[0].field).toBe('name');
     expect(rotated.body.key.origins).toEqual(['https://alder.example', 'https://*.alder.example']);
 
     const revoked = await owner.browser.post(api(`/keys/${rotated.body.key.id}/revoke`));
@@ -197,6 +202,65 @@ describe('embeds', () => {
     expect((await owner.browser.delete(api(`/embeds/${id}`))).status).toBe(404);
   });
 
+  it('records what an edit changed, before and after, and nothing for an edit that changed nothing', async () => {
+    const sat = await owner.browser.post(api('/satellites'), { name: 'Audit sat', description: 'first words' }).expect(201);
+    const key = await owner.browser.post(api('/keys'), { kind: 'browser', name: 'Audit key', origins: ['https://alder.example'] }).expect(201);
+    const created = await owner.browser.post(api('/embeds'), { name: 'Audited', satelliteIds: [sat.body.satellite.id], apiKeyId: key.body.key.id, options: { projection: 'globe', theme: 'dark', observer: '51.5,-0.1' } }).expect(201);
+    const id = created.body.embed.id as string;
+    await owner.browser.patch(api(`/embeds/${id}`), { name: 'Audited', options: { projection: 'globe', theme: 'light', observer: '51.5,-0.1' } }).expect(200);
+    await owner.browser.patch(api(`/embeds/${id}`), { name: 'Audited', options: { projection: 'globe', theme: 'light', observer: '51.5,-0.1' } }).expect(200);
+    await owner.browser.patch(api(`/satellites/${sat.body.satellite.id}`), { name: 'Audit sat', description: 'second words' }).expect(200);
+    await owner.browser.patch(api(`/satellites/${sat.body.satellite.id}`), { name: 'Audit sat', description: 'second words' }).expect(200);
+    const activity = await owner.browser.get(api('/activity?limit=200')).expect(200);
+    const events = activity.body.events as Array<{ action: string; targetId: string; detail: Record<string, unknown> }>;
+    const embedEdits = events.filter((e) => e.action === 'embed.update' && e.targetId === id);
+    expect(embedEdits).toHaveLength(1);
+    expect(embedEdits[0]!.detail).toEqual({ name: 'Audited', changes: { theme: { from: 'dark', to: 'light' } } });
+    const satEdits = events.filter((e) => e.action === 'satellite.update' && e.targetId === sat.body.satellite.id);
+    expect(satEdits).toHaveLength(1);
+    expect(satEdits[0]!.detail).toEqual({ name: 'Audit sat', changes: { description: { from: 'first words', to: 'second words' } } });
+  });
+
+  it('lists with each key the embeds that use it, and moves them to the new key on replacement', async () => {
+    const sat = await owner.browser.post(api('/satellites'), { name: 'Use sat' }).expect(201);
+    const key = await owner.browser.post(api('/keys'), { kind: 'browser', name: 'Used key', origins: ['https://alder.example'] }).expect(201);
+    const embed = await owner.browser.post(api('/embeds'), { name: 'Uses it', satelliteIds: [sat.body.satellite.id], apiKeyId: key.body.key.id, options: {} }).expect(201);
+    const listed = (await owner.browser.get(api('/keys')).expect(200)).body.keys.find((k: { id: string }) => k.id === key.body.key.id);
+    expect(listed.use.embeds).toEqual([{ id: embed.body.embed.id, name: 'Uses it' }]);
+    expect(listed.use.origins).toEqual([]);
+    const rotated = await owner.browser.post(api(`/keys/${key.body.key.id}/rotate`), { name: 'Used key, new' }).expect(201);
+    expect(rotated.body.embedsMoved).toBe(1);
+    expect(rotated.body.key.use.embeds).toEqual([{ id: embed.body.embed.id, name: 'Uses it' }]);
+    expect(rotated.body.previous.use.embeds).toEqual([]);
+    expect((await owner.browser.get(api('/embeds'))).body.embeds.find((e: { id: string }) => e.id === embed.body.embed.id).apiKeyId).toBe(rotated.body.key.id);
+  });
+
+  it('refuses an embed with an observer that is not a place, or passes without an observer, and stores nothing', async () => {
+    const sat = await owner.browser.post(api('/satellites'), { name: 'Observer sat' }).expect(201);
+    const key = await owner.browser.post(api('/keys'), { kind: 'browser', name: 'Observer key', origins: ['https://alder.example'] }).expect(201);
+    const base = { name: 'Observed', satelliteIds: [sat.body.satellite.id], apiKeyId: key.body.key.id };
+    const before = (await owner.browser.get(api('/embeds'))).body.embeds.length as number;
+    for (const [options, says] of [
+      [{ observer: '123,0', layers: ['passes'] }, /latitude "123"/],
+      [{ observer: '51.5,abc', layers: ['passes'] }, /longitude "abc"/],
+      [{ observer: 'None' }, /not an observer/],
+      [{ observer: '', layers: ['footprint', 'passes'] }, /passes layer needs an observer/],
+      [{ layers: ['passes'] }, /passes layer needs an observer/],
+    ] as const) {
+      const res = await owner.browser.post(api('/embeds'), { ...base, options });
+      expect(res.status, JSON.stringify(options)).toBe(400);
+      expect(res.body.code).toBe('validation-failed');
+      expect(res.body.errors.map((e: { field: string }) => e.field)).toContain('options.observer');
+      expect((res.body.errors as Array<{ message: string }>).map((e) => e.message).join(' ')).toMatch(says);
+    }
+    expect((await owner.browser.get(api('/embeds'))).body.embeds.length).toBe(before);
+    const fine = await owner.browser.post(api('/embeds'), { ...base, options: { observer: '51.48,-0.01,45', layers: ['passes'] } });
+    expect(fine.status).toBe(201);
+    const edit = await owner.browser.patch(api(`/embeds/${fine.body.embed.id}`), { options: { observer: '-91,0', layers: ['passes'] } });
+    expect(edit.status).toBe(400);
+    expect((await owner.browser.get(api('/embeds'))).body.embeds.find((e: { id: string }) => e.id === fine.body.embed.id).options.observer).toBe('51.48,-0.01,45');
+  });
+
   it('refuses an embed over a satellite of another organization', async () => {
     const other = await signUpAndVerify(t, { organizationName: 'Elsewhere Lab' });
     const theirs = await other.browser.post(`/api/orgs/${other.orgId}/satellites`, { name: 'Not yours' }).expect(201);
@@ -250,17 +314,18 @@ describe('usage, activity and plan', () => {
     expect((next.body.events as Array<{ id: number }>).every((e) => e.id < ids.at(-1)!)).toBe(true);
   });
 
-  it('lists the plans and changes the plan at once when no payment provider is configured', async () => {
+  it('lists the plans and answers the payment page for a paid plan, leaving the plan as it is until paid', async () => {
     const billing = await owner.browser.get(api('/billing')).expect(200);
     expect(billing.body.plan).toBe('starter');
     expect(billing.body.plans.map((p: { id: string }) => p.id)).toEqual(['starter', 'mission', 'constellation']);
+    expect(billing.body.paymentsAvailable).toBe(true);
     const checkout = await owner.browser.post(api('/billing/checkout'), { plan: 'mission' });
     expect(checkout.status).toBe(200);
-    expect(checkout.body.url).toBe(`/o/${orgId}/plan?checkout=done`);
+    expect(checkout.body.url).toMatch(/^http:\/\/127\.0\.0\.1:\d+\/pay\/cs_test_/);
     const session = await owner.browser.session();
-    expect(session.body.memberships[0].organization.plan).toBe('mission');
-    expect((await owner.browser.get(api('/usage'))).body.quota.plan).toBe('mission');
-    const again = await owner.browser.post(api('/billing/checkout'), { plan: 'mission' });
+    expect(session.body.memberships[0].organization.plan).toBe('starter');
+    expect((await owner.browser.get(api('/usage'))).body.quota.plan).toBe('starter');
+    const again = await owner.browser.post(api('/billing/checkout'), { plan: 'starter' });
     expect(again.status).toBe(409);
   });
 });

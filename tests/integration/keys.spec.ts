@@ -1,12 +1,14 @@
 /**
- * Key rules on /v1: origins and CORS, scopes, rotation with grace, revocation, expiry,
+ * Key rules on /v1: origins and CORS, scopes, rotation (the old key retires when quiet), revocation, expiry,
  * per-key rate limits and the monthly quota.
  */
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { ApiKey, UsageDaily } from '@nadirline/server/models/index.ts';
+import { ApiKey, Embed, UsageDaily } from '@nadirline/server/models/index.ts';
+import { getEmbedService } from '@nadirline/server/services/embeds.ts';
 import { getKeyService } from '@nadirline/server/services/keys.ts';
 import { getQuotaService, planOf } from '@nadirline/server/services/quota.ts';
+import { getUsageRecorder } from '@nadirline/server/services/usage.ts';
 import { leoTle, PAGE_ORIGIN, startKeyedApp, WILDCARD_ORIGIN, type KeyedTestApp } from '../support/app.ts';
 
 let t: KeyedTestApp;
@@ -18,6 +20,7 @@ afterAll(async () => {
 });
 
 const sat = () => `/v1/satellites/${t.satellites.leo.id}`;
+const getUsageFlush = () => getUsageRecorder(t.context).flush();
 
 function expectProblem(res: request.Response, status: number, code: string): void {
   expect(res.status, JSON.stringify(res.body)).toBe(status);
@@ -141,31 +144,84 @@ describe('server keys and scopes', () => {
 });
 
 describe('rotation, revocation and expiry', () => {
-  it('keeps the old key working through its grace period while the new one works at once', async () => {
+  it('keeps the old key answering while it is called, and the new one works at once', async () => {
     const made = await t.makeKey({ kind: 'server', name: 'Rotating' });
     const keys = getKeyService(t.context);
-    const rotated = await keys.rotateKey(made.id, 24);
+    const rotated = await keys.rotateKey(made.id, { name: 'Rotating, second', quietMinutes: 60 });
     expect(rotated.secret).not.toBe(made.secret);
-    expect(keys.serializeKey(rotated.previous).state).toBe('grace');
+    expect(rotated.key.name).toBe('Rotating, second');
+    expect(keys.serializeKey(rotated.previous).state).toBe('retiring');
     await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`).expect(200);
     await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${rotated.secret}`).expect(200);
 
-    // The grace period ends (moved into the past as time would move it).
-    const stoppedAt = new Date(Date.now() - 60_000);
-    await ApiKey.update({ graceUntil: stoppedAt }, { where: { id: made.id } });
+    // Quiet for more than the spell (moved into the past as time would move it): retired.
+    const replacedAt = new Date(Date.now() - 3 * 3_600_000);
+    await keys.flushLastUsed();
+    await ApiKey.update({ replacedAt, lastUsedAt: new Date(Date.now() - 2 * 3_600_000) }, { where: { id: made.id } });
     keys.invalidate(rotated.previous);
     const res = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`);
     expectProblem(res, 401, 'key-rotated');
-    expect(res.body.detail).toContain(stoppedAt.toISOString());
+    expect(res.body.detail).toContain(new Date(Date.now() - 3_600_000).toISOString().slice(0, 13));
+    expect(res.body.detail).toMatch(/1 hour without use/);
     await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${rotated.secret}`).expect(200);
   });
 
-  it('stops the old key at once with a grace of zero hours', async () => {
+  it('retires the old key at its retire-by date even while it is still called', async () => {
+    const made = await t.makeKey({ kind: 'server', name: 'Busy' });
+    const keys = getKeyService(t.context);
+    await keys.rotateKey(made.id, { name: 'Busy, new', quietMinutes: 7 * 1440 });
+    await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`).expect(200);
+    const retireBy = new Date(Date.now() - 1_000);
+    await ApiKey.update({ graceUntil: retireBy }, { where: { id: made.id } });
+    keys.invalidate({ id: made.id, hash: (await ApiKey.findByPk(made.id))!.hash });
+    const res = await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`);
+    expectProblem(res, 401, 'key-rotated');
+    expect(res.body.detail).toContain(retireBy.toISOString());
+    expect(res.body.detail).toMatch(/retire-by date/);
+  });
+
+  it('retires the old key at once with a quiet spell of zero', async () => {
     const made = await t.makeKey({ kind: 'server', name: 'Leaked' });
     await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`).expect(200);
-    const rotated = await getKeyService(t.context).rotateKey(made.id, 0);
+    const rotated = await getKeyService(t.context).rotateKey(made.id, { name: 'Leaked, replaced', quietMinutes: 0 });
     expectProblem(await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${made.secret}`), 401, 'key-rotated');
     await request(t.app).get(`${sat()}/position`).set('Authorization', `Bearer ${rotated.secret}`).expect(200);
+  });
+
+  it('refuses a new key named like the old one, and a retire-by date in the past or too far ahead', async () => {
+    const keys = getKeyService(t.context);
+    const made = await t.makeKey({ kind: 'server', name: 'Twin' });
+    await expect(keys.rotateKey(made.id, { name: 'Twin' })).rejects.toMatchObject({ code: 'validation-failed' });
+    await expect(keys.rotateKey(made.id, { name: 'Twin 2', retireBy: new Date(Date.now() - 60_000) })).rejects.toMatchObject({ code: 'validation-failed' });
+    await expect(keys.rotateKey(made.id, { name: 'Twin 2', retireBy: new Date(Date.now() + 200 * 86_400_000) })).rejects.toMatchObject({ code: 'validation-failed' });
+    await expect(keys.rotateKey(made.id, { name: 'Twin 2', quietMinutes: -5 })).rejects.toMatchObject({ code: 'validation-failed' });
+    expect((await ApiKey.findByPk(made.id))?.replacedById).toBeNull();
+  });
+
+  it('moves embeds to the new key at once, and an embed still reads after the old key retired', async () => {
+    const made = await t.makeKey({ kind: 'browser', name: 'Embed key', origins: [PAGE_ORIGIN] });
+    const embed = await getEmbedService(t.context).createEmbed(t.orgId, { name: 'Follows', satelliteIds: [t.satellites.leo.id], apiKeyId: made.id });
+    await request(t.app).get(`${sat()}/position`).query({ embed: embed.id }).set('Origin', PAGE_ORIGIN).expect(200);
+    const rotated = await getKeyService(t.context).rotateKey(made.id, { name: 'Embed key, new', quietMinutes: 0 });
+    expect((await Embed.findByPk(embed.id))?.apiKeyId).toBe(rotated.key.id);
+    // The old key is retired; the embed (cached with the old key id a moment ago) reads with the new one.
+    expectProblem(await request(t.app).get(`${sat()}/position`).query({ key: made.secret }).set('Origin', PAGE_ORIGIN), 401, 'key-rotated');
+    await request(t.app).get(`${sat()}/position`).query({ embed: embed.id }).set('Origin', PAGE_ORIGIN).expect(200);
+    await request(t.app).get(`/v1/embeds/${embed.id}`).set('Origin', PAGE_ORIGIN).expect(200);
+  });
+
+  it('resolves an embed still pointing at a replaced key to that key\u2019s current successor', async () => {
+    const made = await t.makeKey({ kind: 'browser', name: 'Chain', origins: [PAGE_ORIGIN] });
+    const keys = getKeyService(t.context);
+    const second = await keys.rotateKey(made.id, { name: 'Chain 2', quietMinutes: 0 });
+    const third = await keys.rotateKey(second.key.id, { name: 'Chain 3', quietMinutes: 0 });
+    // An embed row left on the first key (as one written by another process before the rotation).
+    const embed = await Embed.create({ id: 'chainembed01', organizationId: t.orgId, name: 'Left behind', satelliteIds: [t.satellites.leo.id], options: {}, apiKeyId: made.id });
+    const res = await request(t.app).get(`${sat()}/position`).query({ embed: embed.id }).set('Origin', PAGE_ORIGIN).expect(200);
+    expect(res.body).toHaveProperty('lat');
+    await getUsageFlush();
+    const rows = await UsageDaily.findAll({ where: { apiKeyId: third.key.id } });
+    expect(rows.reduce((n, r) => n + r.count, 0)).toBe(1);
   });
 
   it('revokes at once, even with the key record cached', async () => {
@@ -189,7 +245,7 @@ describe('rotation, revocation and expiry', () => {
     const keys = getKeyService(t.context);
     const made = await t.makeKey({ kind: 'server', name: 'Gone' });
     await keys.revokeKey(made.id);
-    await expect(keys.rotateKey(made.id)).rejects.toMatchObject({ code: 'conflict' });
+    await expect(keys.rotateKey(made.id, { name: 'Gone 2' })).rejects.toMatchObject({ code: 'conflict' });
     await expect(keys.createKey({ organizationId: t.orgId, kind: 'browser', name: 'No origins' })).rejects.toMatchObject({ code: 'validation-failed' });
     await expect(keys.createKey({ organizationId: t.orgId, kind: 'browser', name: 'Writer', origins: [PAGE_ORIGIN], scopes: ['element-sets:write'] })).rejects.toMatchObject({ code: 'validation-failed' });
     await expect(keys.createKey({ organizationId: t.orgId, kind: 'browser', name: 'Bad origin', origins: ['example.org/path'] })).rejects.toMatchObject({ code: 'validation-failed' });

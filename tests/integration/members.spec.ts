@@ -27,10 +27,10 @@ async function join(role: 'admin' | 'editor' | 'viewer', name = `Member ${role}`
   const email = uniqueEmail(role);
   const { token } = await invite(email, role);
   const b = t.browser();
-  await b.post('/api/auth/signup', { email, name, password: PASSWORD, organizationName: '', invitationToken: token }).expect(201);
-  const signin = await b.signIn(email);
-  expect(signin.status).toBe(200);
-  return { email, name, userId: signin.body.user.id, browser: b, orgId };
+  const signup = await b.post('/api/auth/signup', { email, name, password: PASSWORD, organizationName: '', invitationToken: token }).expect(201);
+  // The sign-up from an invitation signed them in.
+  b.csrf = signup.body.csrfToken as string;
+  return { email, name, userId: signup.body.user.id, browser: b, orgId };
 }
 
 describe('invitations', () => {
@@ -50,9 +50,15 @@ describe('invitations', () => {
     const signup = await b.post('/api/auth/signup', { email, name: 'New Comer', password: PASSWORD, organizationName: '', invitationToken: token });
     expect(signup.status).toBe(201);
     expect(signup.body.user.emailVerified).toBe(true);
-    const signin = await b.signIn(email);
-    expect(signin.status).toBe(200);
-    expect(signin.body.memberships).toEqual([{ organization: { id: orgId, name: 'Cedar Ridge Observatory Club', plan: 'starter' }, role: 'editor' }]);
+    // Signed in by the sign-up itself: no second sign-in.
+    expect(signup.body.signedIn).toBe(true);
+    expect(signup.body.memberships).toEqual([{ organization: { id: orgId, name: 'Cedar Ridge Observatory Club', plan: 'starter' }, role: 'editor' }]);
+    const session = await b.get('/api/session').expect(200);
+    expect(session.body.user.email).toBe(email);
+    expect(session.body.csrfToken).toBe(signup.body.csrfToken);
+    b.csrf = signup.body.csrfToken;
+    await b.get(`/api/orgs/${orgId}/satellites`).expect(200);
+    await b.patch('/api/me', { name: 'New Comer, renamed' }).expect(200);
     // The invitation is used up.
     const again = await t.browser().get(`/api/invitations/${token}`);
     expect(again.status).toBe(400);

@@ -92,8 +92,42 @@ async function freshSatellite(): Promise<string> {
   return (await ownerPost(`/api/orgs/${f.orgId}/satellites`, { name: 'Fresh satellite' })).body.satellite.id as string;
 }
 
+/** A held element set (does not continue the orbit) in a fresh organization that asks for confirmation: its confirm URL. */
+async function freshHeldSet(): Promise<string> {
+  const orgId = await freshOrg();
+  await f.people.owner.browser.patch(`/api/orgs/${orgId}/settings`, { confirmSuspiciousSets: true }).expect(200);
+  const satId = (await ownerPost(`/api/orgs/${orgId}/satellites`, { name: 'Held satellite' })).body.satellite.id as string;
+  const epoch = Date.now() - 7_200_000;
+  await ownerPost(`/api/orgs/${orgId}/satellites/${satId}/element-sets`, { kepler: { ...kepler(), epoch: new Date(epoch).toISOString() } });
+  const held = await ownerPost(`/api/orgs/${orgId}/satellites/${satId}/element-sets`, { kepler: { ...kepler(), epoch: new Date(epoch + 3_600_000).toISOString(), meanAnomalyDeg: 200 } });
+  const entry = held.body.report[0];
+  if (!entry.awaitingConfirmation) throw new Error(`expected a held set, got ${JSON.stringify(entry)}`);
+  return `/api/orgs/${orgId}/element-sets/${entry.elementSetId as string}/confirm`;
+}
+
 async function freshEmbed(): Promise<string> {
   return (await ownerPost(`/api/orgs/${f.orgId}/embeds`, { name: 'Fresh embed', satelliteIds: [f.satelliteId], apiKeyId: f.browserKeyId, options: {} })).body.embed.id as string;
+}
+
+/** A fresh organization (four roles) with a paid Mission subscription at the fake provider. */
+async function paidOrg(opts: { cancelAtPeriodEnd?: boolean } = {}): Promise<string> {
+  const id = await freshOrg();
+  const fake = f.t.context.services.payments?.fake;
+  if (!fake) throw new Error('the fake payment provider did not start');
+  const made = fake.createPaidSubscription({ priceId: 'price_nl_mission', email: f.people.owner.email, name: 'Matrix', metadata: { organizationId: id } });
+  made.subscription['cancel_at_period_end'] = Boolean(opts.cancelAtPeriodEnd);
+  await f.t.context.sequelize.models['Organization']!.update({ plan: 'mission' }, { where: { id } });
+  await f.t.context.sequelize.models['Subscription']!.create({
+    id: `s_${id}`,
+    organizationId: id,
+    plan: 'mission',
+    status: 'active',
+    providerCustomerId: made.customer.id,
+    providerSubscriptionId: made.subscription.id,
+    currentPeriodEnd: new Date(Date.now() + 30 * 86_400_000),
+    cancelAtPeriodEnd: Boolean(opts.cancelAtPeriodEnd),
+  });
+  return id;
 }
 
 async function mailedToken(email: string): Promise<string> {
@@ -146,6 +180,8 @@ export const TABLE: Row[] = [
     },
   },
   { route: 'PATCH /me', allowed: 'signed-in', ok: 200, call: async (fx, role) => ({ method: 'patch', url: '/api/me', body: { name: fx.people[role].name } }) },
+  { route: 'GET /me/notices', allowed: 'signed-in', ok: 200, call: async () => ({ method: 'get', url: '/api/me/notices' }) },
+  { route: 'PATCH /me/notices', allowed: 'signed-in', ok: 200, call: async () => ({ method: 'patch', url: '/api/me/notices', body: { 'stale-digest': true } }) },
   {
     route: 'GET /invitations/:token',
     allowed: 'anyone',
@@ -173,6 +209,7 @@ export const TABLE: Row[] = [
   // ---- organization
   { route: 'GET /orgs/:org', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('') }) },
   { route: 'PATCH /orgs/:org', allowed: OWNER, ok: 200, call: async () => ({ method: 'patch', url: org(''), body: { name: 'Matrix Science Centre' } }) },
+  { route: 'PATCH /orgs/:org/settings', allowed: OWNER, ok: 200, call: async () => ({ method: 'patch', url: org('/settings'), body: { confirmSuspiciousSets: false } }) },
   { route: 'DELETE /orgs/:org', allowed: OWNER, ok: 204, call: async () => ({ method: 'delete', url: `/api/orgs/${await freshOrg()}` }) },
   {
     route: 'POST /orgs/:org/transfer',
@@ -198,7 +235,7 @@ export const TABLE: Row[] = [
   { route: 'GET /orgs/:org/keys', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/keys') }) },
   { route: 'POST /orgs/:org/keys', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org('/keys'), body: { kind: 'server', name: 'Pipeline', scopes: ['read', 'element-sets:write'] } }) },
   { route: 'PATCH /orgs/:org/keys/:id', allowed: MANAGERS, ok: 200, call: async (fx) => ({ method: 'patch', url: org(`/keys/${fx.serverKeyId}`), body: { name: 'Renamed pipeline' } }) },
-  { route: 'POST /orgs/:org/keys/:id/rotate', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/rotate`), body: { graceHours: 1 } }) },
+  { route: 'POST /orgs/:org/keys/:id/rotate', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/rotate`), body: { name: 'Rotated by role test', quietMinutes: 60 } }) },
   { route: 'POST /orgs/:org/keys/:id/revoke', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/revoke`) }) },
 
   // ---- satellites and element sets
@@ -214,6 +251,7 @@ export const TABLE: Row[] = [
     ok: 201,
     call: async (fx) => ({ method: 'post', url: org(`/satellites/${fx.satelliteId}/element-sets`), body: { kepler: { ...kepler(), epoch: new Date(Date.now() - Math.random() * 86_400_000).toISOString() } } }),
   },
+  { route: 'POST /orgs/:org/element-sets/:esId/confirm', allowed: EDITORS, ok: 200, call: async () => ({ method: 'post', url: await freshHeldSet() }) },
   { route: 'GET /orgs/:org/element-sets/:esId/export', allowed: EVERYONE, ok: 200, call: async (fx) => ({ method: 'get', url: org(`/element-sets/${fx.elementSetId}/export?format=omm-kvn`) }) },
 
   // ---- embeds
@@ -232,8 +270,12 @@ export const TABLE: Row[] = [
   { route: 'GET /orgs/:org/usage.csv', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/usage.csv') }) },
   { route: 'GET /orgs/:org/activity', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/activity') }) },
   { route: 'POST /orgs/:org/preview-token', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'post', url: org('/preview-token') }) },
+  { route: 'GET /orgs/:org/notices', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/notices') }) },
   { route: 'GET /orgs/:org/billing', allowed: OWNER, ok: 200, call: async () => ({ method: 'get', url: org('/billing') }) },
   { route: 'POST /orgs/:org/billing/checkout', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await freshOrg()}/billing/checkout`, body: { plan: 'mission' } }) },
+  { route: 'POST /orgs/:org/billing/portal', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/portal` }) },
+  { route: 'POST /orgs/:org/billing/cancel', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/cancel` }) },
+  { route: 'POST /orgs/:org/billing/resume', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg({ cancelAtPeriodEnd: true })}/billing/resume` }) },
 ];
 
 async function send(c: Call, b: Browser): Promise<Response> {

@@ -60,7 +60,8 @@ describe('npm start defaults', () => {
 
 describe('in development', () => {
   const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-dev-'));
-  const make = () => createApp(loadConfig({ NODE_ENV: 'development', SQLITE_FILE: path.join(dir, 'dev.sqlite'), LOG_LEVEL: 'silent', DEMO: 'false' }));
+  // A reverse proxy on this machine reports the client (X-Forwarded-For from loopback is trusted).
+  const make = () => createApp(loadConfig({ NODE_ENV: 'development', SQLITE_FILE: path.join(dir, 'dev.sqlite'), LOG_LEVEL: 'silent', DEMO: 'false', TRUST_PROXY: 'loopback' }));
   afterAll(() => fs.rmSync(dir, { recursive: true, force: true }));
 
   it('shows the development mailbox only to clients on this machine', async () => {

@@ -74,6 +74,37 @@ describe('usage in the app', () => {
     expect(csv).toContain(`${day},Pipeline (…`);
   });
 
+  it('counts answers per UTC hour and status, errors included, and the calling origin per key and day', async () => {
+    // A key of its own keeps this test's counts apart from the other tests'.
+    const made = await t.makeKey({ kind: 'browser', name: 'Hourly', origins: [PAGE_ORIGIN] });
+    const usage = getUsageRecorder(t.context);
+    const leo = t.satellites.leo.id;
+    const day = new Date().toISOString().slice(0, 10);
+    const before = await usage.report(t.orgId, { from: day, to: day });
+    for (let i = 0; i < 2; i++) await request(t.app).get(`/v1/satellites/${leo}/position`).query({ key: made.secret }).set('Origin', PAGE_ORIGIN).expect(200);
+    await request(t.app).get('/v1/satellites/sat_nothere/position').query({ key: made.secret }).set('Origin', PAGE_ORIGIN).expect(404);
+    await request(t.app).get(`/v1/satellites/${leo}/passes`).query({ key: made.secret, lat: '123', lon: '0' }).set('Origin', PAGE_ORIGIN).expect(400);
+    const report = await usage.report(t.orgId, { from: day, to: day });
+    const status = (r: typeof report, s: number) => r.byStatus.find((x) => x.status === s)?.count ?? 0;
+    expect(status(report, 200) - status(before, 200)).toBe(2);
+    expect(status(report, 404) - status(before, 404)).toBe(1);
+    expect(status(report, 400) - status(before, 400)).toBe(1);
+    expect(report.hours).toHaveLength(24);
+    const hour = new Date().toISOString().slice(0, 13);
+    const inHour = (r: typeof report) => r.hours.find((h) => h.hour === hour)?.count ?? 0;
+    expect(inHour(report) - inHour(before)).toBe(4);
+    // Errors count against the quota: the daily count (the quota's source) has them too.
+    const daily = report.rows.filter((r) => r.apiKeyId === made.id).reduce((n, r) => n + r.count, 0);
+    expect(daily).toBe(4);
+    const origins = await usage.origins(t.orgId, [made.id], day);
+    expect(origins.get(made.id)).toEqual([{ origin: PAGE_ORIGIN, count: 4, lastDay: day }]);
+    // Written by a flush, the same answers come back from the tables.
+    await usage.flush();
+    const stored = await usage.report(t.orgId, { from: day, to: day });
+    expect(status(stored, 404)).toBe(status(report, 404));
+    expect((await usage.origins(t.orgId, [made.id], day)).get(made.id)?.[0]?.count).toBe(4);
+  });
+
   it('writes the keys\u2019 last use in a batch', async () => {
     const keys = getKeyService(t.context);
     await keys.flushLastUsed();

@@ -19,6 +19,8 @@ export interface WriteLoadOptions {
   sameEpochBurst?: number;
   /** Every n-th upload repeats an epoch another writer may be storing at that moment. */
   repeatEvery?: number;
+  /** More configuration for the app (e.g. DATABASE_URL to run the same load on PostgreSQL). */
+  env?: Record<string, string>;
 }
 
 export interface WriteLoadFigures {
@@ -53,7 +55,7 @@ function percentile(sorted: number[], p: number): number {
 }
 
 export async function runWriteLoad(opts: WriteLoadOptions): Promise<WriteLoadFigures> {
-  const t = await startKeyedApp({ USAGE_FLUSH_MS: '200' }, { plan: 'constellation' });
+  const t = await startKeyedApp({ USAGE_FLUSH_MS: '200', ...opts.env }, { plan: 'constellation' });
   let flushErrors = 0;
   const logError = t.context.logger.error.bind(t.context.logger);
   t.context.logger.error = ((...args: Parameters<typeof logError>) => {

@@ -24,16 +24,21 @@ import type {
   KeyUpdateInput,
   Member,
   Membership,
+  NoticeKind,
+  NoticePreference,
   Organization,
+  OrgNotice,
   PreviewToken,
   ProblemBody,
   Role,
   Satellite,
   SatelliteListItem,
   SessionInfo,
+  Subscription,
   UploadReport,
   UsageReport,
   User,
+  KeyRotateInput,
 } from './types.ts';
 
 export class ApiError extends Error {
@@ -234,8 +239,11 @@ export class ApiClient {
     this.csrfToken = s.csrfToken ?? '';
     return { user: s.user ?? null, memberships: s.memberships ?? [], csrfToken: s.csrfToken ?? '' };
   }
-  signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }) {
-    return this.post<{ user: User }>('/auth/signup', input);
+  /** Signing up from an invitation signs in at once: the answer then carries the session (`signedIn`, memberships, CSRF token). */
+  async signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }) {
+    const s = await this.post<{ user: User; signedIn?: boolean; memberships?: Membership[]; csrfToken?: string }>('/auth/signup', input);
+    if (s.csrfToken) this.csrfToken = s.csrfToken;
+    return s;
   }
   verifyEmail(token: string) {
     return this.post<{ user: User }>('/auth/verify-email', { token });
@@ -328,6 +336,12 @@ export class ApiClient {
     }
     return this.post<UploadReport>(path, input);
   }
+  confirmElementSet(org: string, elementSetId: string) {
+    return this.post<{ elementSet: ElementSetSummary }>(`/orgs/${seg(org)}/element-sets/${seg(elementSetId)}/confirm`);
+  }
+  updateOrgSettings(org: string, settings: { confirmSuspiciousSets: boolean }) {
+    return this.patch<{ organization: Organization }>(`/orgs/${seg(org)}/settings`, settings);
+  }
   exportUrl(org: string, elementSetId: string, format: ExportFormat): string {
     return withQuery(`${this.base}/orgs/${seg(org)}/element-sets/${seg(elementSetId)}/export`, { format });
   }
@@ -345,8 +359,8 @@ export class ApiClient {
   updateKey(org: string, id: string, input: KeyUpdateInput) {
     return this.patch<{ key: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}`, input);
   }
-  rotateKey(org: string, id: string, graceHours: number) {
-    return this.post<{ key: ApiKey; secret: string; previous: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}/rotate`, { graceHours });
+  rotateKey(org: string, id: string, input: KeyRotateInput) {
+    return this.post<{ key: ApiKey; secret: string; previous: ApiKey; embedsMoved: number }>(`/orgs/${seg(org)}/keys/${seg(id)}/rotate`, input);
   }
   revokeKey(org: string, id: string) {
     return this.post<{ key: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}/revoke`);
@@ -385,6 +399,25 @@ export class ApiClient {
   }
   checkout(org: string, plan: string) {
     return this.post<{ url: string }>(`/orgs/${seg(org)}/billing/checkout`, { plan });
+  }
+  /** The payment provider's billing page (card, invoices, cancel). */
+  billingPortal(org: string) {
+    return this.post<{ url: string }>(`/orgs/${seg(org)}/billing/portal`);
+  }
+  cancelSubscription(org: string) {
+    return this.post<{ subscription: Subscription }>(`/orgs/${seg(org)}/billing/cancel`);
+  }
+  resumeSubscription(org: string) {
+    return this.post<{ subscription: Subscription }>(`/orgs/${seg(org)}/billing/resume`);
+  }
+  notices(org: string) {
+    return this.get<{ notices: OrgNotice[] }>(`/orgs/${seg(org)}/notices`);
+  }
+  noticePreferences() {
+    return this.get<{ preferences: NoticePreference[] }>('/me/notices');
+  }
+  setNoticePreferences(changes: Partial<Record<NoticeKind, boolean>>) {
+    return this.patch<{ preferences: NoticePreference[] }>('/me/notices', changes);
   }
 }
 

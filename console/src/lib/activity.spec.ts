@@ -36,6 +36,31 @@ describe('activity details', () => {
     expect(JSON.stringify(d)).not.toContain('key_x');
   });
 
+  it('describes a replacement: the new key, the quiet spell and the retire-by date', () => {
+    const d = activityDetails(
+      { action: 'key.rotate', detail: { name: 'Demo pages', previousLastFour: 'R-4U', newKeyId: 'key_x', newName: 'Demo pages 2027', newLastFour: 'Zq9T', quietMinutes: 1440, retireBy: '2026-12-16T12:00:00.000Z', embedsMoved: 2 } },
+      names,
+      'en-GB',
+    );
+    expect(d).toEqual([
+      { label: 'Name', value: 'Demo pages' },
+      { label: 'Old key’s last four', value: 'R-4U' },
+      { label: 'New key', value: 'Demo pages 2027' },
+      { label: 'New key’s last four', value: 'Zq9T' },
+      { label: 'Old key retires after', value: '1 day without use' },
+      { label: 'Old key retires by', value: formatLocalDateTime('2026-12-16T12:00:00.000Z', 'en-GB') },
+      { label: 'Embeds moved to the new key', value: '2' },
+    ]);
+  });
+
+  it('shows only the embed options that changed, each before → after', () => {
+    expect(activityDetails({ action: 'embed.update', detail: { name: 'Lobby map', changes: { theme: { from: 'light', to: 'dark' }, projection: { from: null, to: 'globe' } } } })).toEqual([
+      { label: 'Name', value: 'Lobby map' },
+      { label: 'Theme', value: 'light → dark' },
+      { label: 'Map', value: 'default → globe' },
+    ]);
+  });
+
   it('shows a change as before → after, with role and plan names', () => {
     expect(activityDetails({ action: 'member.role', detail: { email: 'cato@kestrel.example', from: 'editor', to: 'viewer' } })).toEqual([
       { label: 'Role', value: 'Editor → Viewer' },

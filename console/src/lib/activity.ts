@@ -22,7 +22,7 @@ export interface ActivityDetail {
 const VERBS: Record<string, string> = {
   'key.create': 'created a key',
   'key.update': 'changed a key',
-  'key.rotate': 'rotated a key',
+  'key.rotate': 'replaced a key',
   'key.revoke': 'revoked a key',
   'member.invite': 'invited a member',
   'member.invite-revoke': 'withdrew an invitation',
@@ -58,6 +58,20 @@ const LABELS: Record<string, string> = {
   expiresAt: 'Expires',
   graceHours: 'Grace period',
   graceUntil: 'Old key answers until',
+  newName: 'New key',
+  quietMinutes: 'Old key retires after',
+  retireBy: 'Old key retires by',
+  embedsMoved: 'Embeds moved to the new key',
+  projection: 'Map',
+  orbitsBehind: 'Orbits behind',
+  orbitsAhead: 'Orbits ahead',
+  observer: 'Observer',
+  layers: 'Layers',
+  theme: 'Theme',
+  timeZone: 'Time zone',
+  locale: 'Language',
+  width: 'Width',
+  height: 'Height',
   email: 'E-mail',
   role: 'Role',
   previousRole: 'Their role before',
@@ -128,6 +142,18 @@ function valueOf(key: string, v: unknown, names: ActivityNames, locale?: string)
     case 'expiresAt':
     case 'graceUntil':
       return typeof v === 'string' && v ? formatLocalDateTime(v, locale) : 'never';
+    case 'retireBy':
+      return typeof v === 'string' && v ? formatLocalDateTime(v, locale) : null;
+    case 'quietMinutes': {
+      if (typeof v !== 'number') return null;
+      if (v === 0) return 'retired at once';
+      const [n, unit] = v % 1440 === 0 ? [v / 1440, 'day'] : v % 60 === 0 ? [v / 60, 'hour'] : [v, 'minute'];
+      return `${n.toLocaleString(locale)} ${unit}${n === 1 ? '' : 's'} without use`;
+    }
+    case 'projection':
+      return v === 'globe' ? 'globe' : v === 'equal-earth' ? 'flat map' : v === null ? 'default' : String(v);
+    case 'observer':
+      return v === null || v === '' ? 'none' : String(v);
     case 'graceHours':
       return typeof v === 'number' ? (v === 0 ? 'none, stopped at once' : `${v} ${v === 1 ? 'hour' : 'hours'}`) : String(v);
     case 'descriptionChanged':

@@ -15,7 +15,7 @@ function sat(id: string, name: string, catalogNumber: string | null, currentCata
     catalogNumber,
     description: null,
     current: currentCatalog
-      ? { id: `es-${id}`, source: 'tle', epoch: '2031-01-01T00:00:00Z', ageDays: 1, staleness: 'fresh', uploadedBy: null, createdAt: '2031-01-01T00:00:00Z', catalogNumber: currentCatalog, name }
+      ? { id: `es-${id}`, source: 'tle', epoch: '2031-01-01T00:00:00Z', ageDays: 1, staleness: 'fresh', uploadedBy: null, createdAt: '2031-01-01T00:00:00Z', catalogNumber: currentCatalog, name, continuity: null, awaitingConfirmation: false }
       : null,
     derived: null,
   };

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { formatGroundTrackShift, formatPrice } from './format.ts';
+import { formatGroundTrackShift, formatHour, formatPrice, formatShare } from './format.ts';
 
 describe('plan prices', () => {
   it('shows whole euros without decimals and other amounts with cents', () => {
@@ -29,5 +29,19 @@ describe('the ground-track shift per orbit', () => {
   it('shows a dash when there is no figure', () => {
     expect(formatGroundTrackShift(Number.NaN)).toBe('—');
     expect(formatGroundTrackShift(null)).toBe('—');
+  });
+});
+
+describe('shares and hours', () => {
+  it('writes a small but real share as <1 %, never as 0 %', () => {
+    expect(formatShare(3, 1000)).toBe('<1 %');
+    expect(formatShare(0, 1000)).toBe('0 %');
+    expect(formatShare(370, 1000)).toBe('37 %');
+    expect(formatShare(999, 1000)).toBe('>99 %');
+    expect(formatShare(1000, 1000)).toBe('100 %');
+    expect(formatShare(1, 0)).toBe('—');
+  });
+  it('writes a UTC hour like the console writes days', () => {
+    expect(formatHour('2026-12-02T14')).toBe('02 Dec, 14:00');
   });
 });

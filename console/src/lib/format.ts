@@ -96,3 +96,20 @@ export function formatGroundTrackShift(westDeg: number | null | undefined, orbit
   }
   return `${formatNumber(Math.abs(westDeg), 2)}° ${westDeg > 0 ? 'west' : 'east'}`;
 }
+
+/** A share of a total as people read it: "37 %", "<1 %" for a small but real share, "0 %" only for none, "—" without a total. */
+export function formatShare(n: number, total: number): string {
+  if (!(total > 0) || !Number.isFinite(n)) return '—';
+  if (n <= 0) return '0 %';
+  const pct = (n / total) * 100;
+  if (pct < 1) return '<1 %';
+  if (pct > 99 && n < total) return '>99 %';
+  return `${Math.round(pct)} %`;
+}
+
+/** "02 Dec, 14:00" for a UTC hour "2026-12-02T14". */
+export function formatHour(hour: string): string {
+  const d = new Date(`${hour}:00:00Z`);
+  if (Number.isNaN(d.getTime())) return hour;
+  return `${dayFmt.format(d).replace(/ \d{4}$/, '')}, ${hour.slice(11, 13)}:00`;
+}

@@ -20,7 +20,7 @@ function sat(id: string, name: string, catalogNumber: string, staleness: 'fresh'
     name,
     catalogNumber,
     description: null,
-    current: { id: `es-${id}`, source: 'tle', epoch: '2031-01-01T00:00:00Z', ageDays: 5, staleness, uploadedBy: null, createdAt: '2031-01-01T00:00:00Z', catalogNumber, name },
+    current: { id: `es-${id}`, source: 'tle', epoch: '2031-01-01T00:00:00Z', ageDays: 5, staleness, uploadedBy: null, createdAt: '2031-01-01T00:00:00Z', catalogNumber, name, continuity: null, awaitingConfirmation: false },
     derived: null,
   };
 }

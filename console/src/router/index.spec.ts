@@ -2,6 +2,7 @@ import { createPinia, setActivePinia } from 'pinia';
 import { afterEach, describe, expect, it, vi } from 'vitest';
 import { createMemoryHistory } from 'vue-router';
 import { useNoticesStore } from '../stores/notices.ts';
+import { useOrgStore } from '../stores/org.ts';
 import { mockFetch } from '../testing/fetch-mock.ts';
 import { session } from '../testing/fixtures.ts';
 import { createAppRouter, safeNext } from './index.ts';
@@ -35,5 +36,16 @@ describe('pages a role may not use', () => {
       expect(router.currentRoute.value.fullPath).toBe(lands);
       expect(useNoticesStore().notices.some((n) => /can look at embeds but not build them/.test(n.text))).toBe(role === 'viewer');
     }
+  });
+});
+
+describe('pages outside an organization', () => {
+  it('keeps the organization navigation on the profile page, opened directly', async () => {
+    setActivePinia(createPinia());
+    mockFetch([{ path: '/api/session', body: session('editor') }]);
+    const router = createAppRouter(createMemoryHistory());
+    await router.push('/profile');
+    expect(router.currentRoute.value.name).toBe('profile');
+    expect(useOrgStore().currentId).toBe('org1');
   });
 });

@@ -48,6 +48,10 @@ export async function guard(to: RouteLocationNormalized): Promise<RouteLocationR
       if (to.meta.deniedText) useNoticesStore().push(to.meta.deniedText, 'info');
       return { name: to.meta.deniedTo ?? 'satellites', params: { org: orgParam } };
     }
+  } else if (session.signedIn && !org.currentId) {
+    // Pages outside an organization (profile, new organization) keep its navigation: the last one used.
+    const id = org.preferredId();
+    if (id) org.select(id);
   }
   return true;
 }

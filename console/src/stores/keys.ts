@@ -5,13 +5,14 @@
 import { defineStore } from 'pinia';
 import { ref } from 'vue';
 import { api } from '../api/client.ts';
-import type { ApiKey, KeyCreateInput, KeyUpdateInput } from '../api/types.ts';
+import type { ApiKey, KeyCreateInput, KeyRotateInput, KeyUpdateInput } from '../api/types.ts';
 
 export interface RevealedSecret {
   key: ApiKey;
   secret: string;
-  /** After a rotation: the old key and when it stops answering. */
+  /** After a rotation: the replaced key (it retires when quiet) and how many embeds moved to the new one. */
   previous?: ApiKey;
+  embedsMoved?: number;
 }
 
 export const useKeysStore = defineStore('keys', () => {
@@ -53,11 +54,11 @@ export const useKeysStore = defineStore('keys', () => {
     return key;
   }
 
-  async function rotate(org: string, id: string, graceHours: number): Promise<RevealedSecret> {
-    const { key, secret, previous } = await api.rotateKey(org, id, graceHours);
+  async function rotate(org: string, id: string, input: KeyRotateInput): Promise<RevealedSecret> {
+    const { key, secret, previous, embedsMoved } = await api.rotateKey(org, id, input);
     upsert(previous);
     upsert(key);
-    revealed.value = { key, secret, previous };
+    revealed.value = { key, secret, previous, embedsMoved };
     return revealed.value;
   }
 

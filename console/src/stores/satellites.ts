@@ -69,6 +69,12 @@ export const useSatellitesStore = defineStore('satellites', () => {
     lastReport.value = report;
   }
 
+  /** An editor lets a held set be used; the detail reloads (it may have become current). */
+  async function confirmSet(org: string, satelliteId: string, elementSetId: string) {
+    await api.confirmElementSet(org, elementSetId);
+    await loadDetail(org, satelliteId);
+  }
+
   async function update(org: string, id: string, input: { name?: string; description?: string }) {
     const { satellite } = await api.updateSatellite(org, id, input);
     if (detail.value?.satellite.id === id) detail.value = { ...detail.value, satellite };
@@ -81,5 +87,5 @@ export const useSatellitesStore = defineStore('satellites', () => {
     if (detail.value?.satellite.id === id) detail.value = null;
   }
 
-  return { orgId, list, loaded, detail, lastReport, load, loadDetail, register, addElementSets, showReport, update, remove };
+  return { orgId, list, loaded, detail, lastReport, load, loadDetail, register, addElementSets, showReport, confirmSet, update, remove };
 });

@@ -32,8 +32,9 @@ export const useSessionStore = defineStore('session', () => {
   }
 
   async function signUp(input: { email: string; name: string; password: string; organizationName?: string; invitationToken?: string }): Promise<User> {
-    const { user: created } = await api.signUp({ ...input, email: input.email.trim() });
-    return created;
+    const s = await api.signUp({ ...input, email: input.email.trim() });
+    if (s.signedIn) apply({ user: s.user, memberships: s.memberships ?? [], csrfToken: s.csrfToken ?? '' });
+    return s.user;
   }
 
   async function verifyEmail(token: string): Promise<User> {

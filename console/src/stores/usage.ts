@@ -19,7 +19,16 @@ export const useUsageStore = defineStore('usage', () => {
     return out;
   });
 
+  /** Ranges of up to this many days are drawn per UTC hour. */
+  const HOURLY_MAX_DAYS = 3;
+  const days = computed(() => series.value.length);
+  const hourly = computed(() => days.value <= HOURLY_MAX_DAYS && (report.value?.hours.length ?? 0) > 0);
+  /** Every UTC hour of a short range (the server sends each hour, zero included). */
+  const hourSeries = computed(() => (report.value?.hours ?? []).filter((h) => h.hour.slice(0, 10) >= from.value && h.hour.slice(0, 10) <= to.value).map((h) => ({ day: h.hour, count: h.count })));
+
   const total = computed(() => series.value.reduce((s, d) => s + d.count, 0));
+  /** Answers that were errors (4xx, 5xx): they count against the quota like any other. */
+  const errors = computed(() => (report.value?.byStatus ?? []).filter((s) => s.status >= 400).reduce((n, s) => n + s.count, 0));
 
   async function load(org: string) {
     if (orgId.value !== org) report.value = null;
@@ -32,5 +41,5 @@ export const useUsageStore = defineStore('usage', () => {
     to.value = f <= t ? t : f;
   }
 
-  return { orgId, from, to, report, series, total, load, setRange };
+  return { orgId, from, to, report, series, hourly, hourSeries, total, errors, load, setRange };
 });

@@ -20,10 +20,15 @@ export function key(over: Partial<ApiKey> = {}): ApiKey {
     expiresAt: null,
     revokedAt: null,
     replacedById: null,
-    graceUntil: null,
+    replacesId: null,
+    replacedAt: null,
+    retireQuietMinutes: null,
+    retireBy: null,
+    retiresAt: null,
     lastUsedAt: null,
     createdAt: '2031-01-01T00:00:00Z',
     state: 'active',
+    use: { embeds: [], origins: [], originsSince: '2030-12-26' },
     ...over,
   };
 }

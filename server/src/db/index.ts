@@ -16,6 +16,12 @@ import { initModels } from '../models/index.ts';
 import * as m0001 from './migrations/0001-initial.ts';
 import * as m0002 from './migrations/0002-element-set-epoch-unique.ts';
 import * as m0003 from './migrations/0003-session-ids-hashed.ts';
+import * as m0006 from './migrations/0006-element-set-continuity.ts';
+import * as m0007 from './migrations/0007-confirm-suspicious-sets.ts';
+import * as m0009 from './migrations/0009-key-retire-when-quiet.ts';
+import * as m0010 from './migrations/0010-usage-hourly-and-origins.ts';
+import * as m0011 from './migrations/0011-payments.ts';
+import * as m0012 from './migrations/0012-notices.ts';
 import { DatabaseBusyError, isDatabaseBusy, WriteLock } from './write-lock.ts';
 
 /** Migrations in order. Add a new file and append it here; never edit a shipped one. */
@@ -23,6 +29,12 @@ const MIGRATIONS = [
   { name: '0001-initial', ...m0001 },
   { name: '0002-element-set-epoch-unique', ...m0002 },
   { name: '0003-session-ids-hashed', ...m0003 },
+  { name: '0006-element-set-continuity', ...m0006 },
+  { name: '0007-confirm-suspicious-sets', ...m0007 },
+  { name: '0009-key-retire-when-quiet', ...m0009 },
+  { name: '0010-usage-hourly-and-origins', ...m0010 },
+  { name: '0011-payments', ...m0011 },
+  { name: '0012-notices', ...m0012 },
 ];
 
 /** How long an SQLite connection waits for a lock held by another connection or process, ms. */
@@ -38,7 +50,9 @@ export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE
     fs.mkdirSync(config.dataDir, { recursive: true });
     sequelize = new Sequelize({ dialect: 'sqlite', storage: config.SQLITE_FILE, logging: false, transactionType: Transaction.TYPES.IMMEDIATE });
     busyTimeoutOnEveryConnection(sequelize);
-    queueTransactions(sequelize, new WriteLock());
+    const lock = new WriteLock();
+    writeLocks.set(sequelize, lock);
+    queueTransactions(sequelize, lock);
     // WAL lets readers run while a writer writes.
     await sequelize.query('PRAGMA journal_mode = WAL;');
     await sequelize.query('PRAGMA foreign_keys = ON;');
@@ -46,6 +60,13 @@ export async function openDatabase(config: Pick<Config, 'DATABASE_URL' | 'SQLITE
   initModels(sequelize);
   await migrate(sequelize);
   return sequelize;
+}
+
+const writeLocks = new WeakMap<Sequelize, WriteLock>();
+
+/** The queue of an SQLite database's transactions (undefined on PostgreSQL). */
+export function writeLockOf(sequelize: Sequelize): WriteLock | undefined {
+  return writeLocks.get(sequelize);
 }
 
 interface SqliteConnection {
@@ -116,4 +137,9 @@ export async function migrate(sequelize: Sequelize): Promise<void> {
     logger: undefined,
   });
   await umzug.up();
+}
+
+/** A transaction that writes (IMMEDIATE on SQLite, as every transaction here; PostgreSQL ignores the type). */
+export function writeTransaction<T>(sequelize: Sequelize, fn: (t: Transaction) => Promise<T>): Promise<T> {
+  return sequelize.transaction({ type: Transaction.TYPES.IMMEDIATE }, fn);
 }

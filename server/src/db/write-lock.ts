@@ -27,7 +27,8 @@ export class WriteLock {
   private held = false;
   private readonly waiting: Array<{ grant: () => void }> = [];
 
-  constructor(private readonly waitMs = WRITE_LOCK_WAIT_MS) {}
+  /** How long acquire() waits, ms (WRITE_LOCK_WAIT_MS; tests shorten it). */
+  constructor(public waitMs = WRITE_LOCK_WAIT_MS) {}
 
   /** Resolves with a release function once the lock is ours; rejects with DatabaseBusyError after waitMs. */
   acquire(): Promise<() => void> {

@@ -3,11 +3,11 @@ import { ACCESS, roleAllows, type Action } from './roles.ts';
 
 // brief.md "Roles": the matrix the server enforces, row by row.
 const BRIEF: Array<{ row: string; actions: Action[]; roles: string[] }> = [
-  { row: 'see satellites, element sets, embeds, usage', actions: ['satellites.read', 'embeds.read', 'usage.read', 'org.read', 'members.read', 'keys.read', 'activity.read', 'preview.issue'], roles: ['owner', 'admin', 'editor', 'viewer'] },
-  { row: 'register satellites, upload element sets, edit embeds', actions: ['satellites.write', 'element-sets.write', 'embeds.write'], roles: ['owner', 'admin', 'editor'] },
+  { row: 'see satellites, element sets, embeds, usage', actions: ['satellites.read', 'embeds.read', 'usage.read', 'org.read', 'members.read', 'keys.read', 'activity.read', 'preview.issue', 'notices.read'], roles: ['owner', 'admin', 'editor', 'viewer'] },
+  { row: 'register satellites, upload element sets, edit embeds', actions: ['satellites.write', 'element-sets.write', 'element-sets.confirm', 'embeds.write'], roles: ['owner', 'admin', 'editor'] },
   { row: 'create / rotate / revoke keys', actions: ['keys.write'], roles: ['owner', 'admin'] },
   { row: 'invite, remove members, change roles', actions: ['members.manage'], roles: ['owner', 'admin'] },
-  { row: 'plan and billing, delete or transfer the organization', actions: ['billing.read', 'billing.manage', 'org.delete', 'org.transfer', 'org.rename'], roles: ['owner'] },
+  { row: 'plan and billing, delete or transfer the organization', actions: ['billing.read', 'billing.manage', 'org.delete', 'org.transfer', 'org.rename', 'org.settings'], roles: ['owner'] },
 ];
 
 describe('the role table', () => {

@@ -37,6 +37,8 @@ export const ACCESS = {
   'invitation.read': 'anyone',
   'invitation.accept': 'signed-in',
   'org.create': 'signed-in',
+  // Each member's own e-mail switches per kind of notice (services/notices.ts).
+  'account.notices': 'signed-in',
   // Organization: by the caller's role in :org.
   'org.read': ALL,
   'members.read': ALL,
@@ -45,14 +47,20 @@ export const ACCESS = {
   'keys.read': ALL,
   'usage.read': ALL,
   'activity.read': ALL,
+  // Notices in the console; each role sees the kinds it receives (services/notices.ts NOTICE_KINDS).
+  'notices.read': ALL,
   // A short-lived read-only /v1 token for the console's live previews (services/preview-token.ts).
   'preview.issue': ALL,
   'satellites.write': EDITORS,
   'element-sets.write': EDITORS,
+  // Let a held element set (organization setting confirmSuspiciousSets) be used.
+  'element-sets.confirm': EDITORS,
   'embeds.write': EDITORS,
   'keys.write': MANAGERS,
   'members.manage': MANAGERS,
   'org.rename': OWNER,
+  // Organization settings besides the name (confirmSuspiciousSets), like the name: the owner's.
+  'org.settings': OWNER,
   'org.delete': OWNER,
   'org.transfer': OWNER,
   'billing.read': OWNER,

@@ -27,6 +27,7 @@ import type { Request } from 'express';
 import { z } from 'zod';
 import { expects, fieldHints } from '@nadirline/shared/contract';
 import { HttpError, type ProblemFieldError } from './problem.ts';
+import { MAX_PASSWORD_BYTES, MIN_PASSWORD_CHARS } from '../services/passwords.ts';
 
 export type Where = 'body' | 'query' | 'params';
 export type MessageStyle = 'field' | 'sentence';
@@ -231,10 +232,13 @@ export const fields = {
     .toLowerCase()
     .max(320)
     .pipe(z.email({ message: 'Enter an e-mail address like name@example.org.' })),
+  /** Length rules only; services/passwords.ts also refuses guessable passwords (with the person's own words). */
   password: z
     .string()
-    .min(10, { message: 'Use at least 10 characters.' })
-    .max(200, { message: 'Use at most 200 characters.' }),
+    .min(MIN_PASSWORD_CHARS, { message: `Use at least ${MIN_PASSWORD_CHARS} characters.` })
+    .refine((p) => Buffer.byteLength(p, 'utf8') <= MAX_PASSWORD_BYTES, {
+      message: `Use at most ${MAX_PASSWORD_BYTES} bytes (letters outside A-Z take 2 to 4 bytes each); longer passwords would be cut.`,
+    }),
   name: z.string().trim().min(1, { message: 'Enter a name.' }).max(200),
   token: z.string().trim().min(10).max(200),
 };

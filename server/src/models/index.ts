@@ -11,6 +11,11 @@ import {
   type InferCreationAttributes,
   type Sequelize,
 } from 'sequelize';
+import { initBillingModels } from './billing.ts';
+import { initNoticeModels } from './notices.ts';
+
+export { Invoice, PaymentEvent } from './billing.ts';
+export { JobLease, Notice, NoticePreference } from './notices.ts';
 
 export const ROLES = ['owner', 'admin', 'editor', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
@@ -35,6 +40,8 @@ export class Organization extends Model<InferAttributes<Organization>, InferCrea
   declare id: string;
   declare name: string;
   declare plan: CreationOptional<Plan>;
+  /** Hold sets whose continuity check is not "continues" until an editor confirms them. */
+  declare confirmSuspiciousSets: CreationOptional<boolean>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -97,6 +104,14 @@ export class ElementSetRecord extends Model<InferAttributes<ElementSetRecord>, I
   declare epoch: Date;
   declare uploadedByUserId: string | null;
   declare uploadedByKeyId: string | null;
+  /** The continuity check made on arrival (ContinuityView of services/satellites.ts), null for a first set. */
+  declare continuity: CreationOptional<object | null>;
+  /** continues | manoeuvre | does-not-continue | not-checked, or null for a first set. */
+  declare continuityClass: CreationOptional<string | null>;
+  /** Held until an editor confirms it (organization setting confirmSuspiciousSets); not used for any answer meanwhile. */
+  declare awaitingConfirmation: CreationOptional<boolean>;
+  declare confirmedAt: CreationOptional<Date | null>;
+  declare confirmedByUserId: CreationOptional<string | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -118,8 +133,12 @@ export class ApiKey extends Model<InferAttributes<ApiKey>, InferCreationAttribut
   declare revokedAt: Date | null;
   /** Set on the old key when it is rotated. */
   declare replacedById: string | null;
-  /** Rotated keys keep working until this time. */
+  /** A replaced key retires at this time at the latest (the owner's "retire by" date). */
   declare graceUntil: Date | null;
+  /** When the key was replaced (null: never). */
+  declare replacedAt: CreationOptional<Date | null>;
+  /** A replaced key retires once unused this many minutes (null: only the retire-by date applies). */
+  declare retireQuietMinutes: CreationOptional<number | null>;
   declare lastUsedAt: Date | null;
   declare createdByUserId: string | null;
   declare createdAt: CreationOptional<Date>;
@@ -133,6 +152,28 @@ export class UsageDaily extends Model<InferAttributes<UsageDaily>, InferCreation
   /** Route template, e.g. "GET /v1/satellites/{id}/track". */
   declare endpoint: string;
   /** UTC day, YYYY-MM-DD. */
+  declare day: string;
+  declare count: number;
+}
+
+export class UsageHourly extends Model<InferAttributes<UsageHourly>, InferCreationAttributes<UsageHourly>> {
+  declare id: CreationOptional<number>;
+  declare organizationId: string;
+  declare apiKeyId: string;
+  declare endpoint: string;
+  /** UTC hour, YYYY-MM-DDTHH. */
+  declare hour: string;
+  /** HTTP status of the answer. */
+  declare status: number;
+  declare count: number;
+}
+
+export class UsageOriginDaily extends Model<InferAttributes<UsageOriginDaily>, InferCreationAttributes<UsageOriginDaily>> {
+  declare id: CreationOptional<number>;
+  declare organizationId: string;
+  declare apiKeyId: string;
+  /** Calling origin, '' when the request named none (a backend). */
+  declare origin: string;
   declare day: string;
   declare count: number;
 }
@@ -158,6 +199,14 @@ export class Subscription extends Model<InferAttributes<Subscription>, InferCrea
   declare providerCustomerId: string | null;
   declare providerSubscriptionId: string | null;
   declare currentPeriodEnd: Date | null;
+  /** The provider ends the subscription at currentPeriodEnd (migration 0011). */
+  declare cancelAtPeriodEnd: CreationOptional<boolean>;
+  /** After a failed payment: the paid plan is kept until then. */
+  declare graceUntil: CreationOptional<Date | null>;
+  /** When the organization fell back to Starter because the grace ran out. */
+  declare lapsedAt: CreationOptional<Date | null>;
+  /** Creation time of the newest provider event applied (older events do not undo it). */
+  declare providerEventAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -195,6 +244,7 @@ export function initModels(sequelize: Sequelize): void {
       id,
       name: { type: DataTypes.STRING(200), allowNull: false },
       plan: { type: DataTypes.STRING(20), allowNull: false, defaultValue: 'starter' },
+      confirmSuspiciousSets: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
       ...timestamps,
     },
     { sequelize, tableName: 'organizations' },
@@ -257,6 +307,11 @@ export function initModels(sequelize: Sequelize): void {
       epoch: { type: DataTypes.DATE, allowNull: false },
       uploadedByUserId: { type: DataTypes.STRING(40), allowNull: true },
       uploadedByKeyId: { type: DataTypes.STRING(40), allowNull: true },
+      continuity: { type: DataTypes.JSON, allowNull: true },
+      continuityClass: { type: DataTypes.STRING(24), allowNull: true },
+      awaitingConfirmation: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      confirmedAt: { type: DataTypes.DATE, allowNull: true },
+      confirmedByUserId: { type: DataTypes.STRING(40), allowNull: true },
       ...timestamps,
     },
     { sequelize, tableName: 'element_sets' },
@@ -276,6 +331,8 @@ export function initModels(sequelize: Sequelize): void {
       revokedAt: { type: DataTypes.DATE, allowNull: true },
       replacedById: { type: DataTypes.STRING(40), allowNull: true },
       graceUntil: { type: DataTypes.DATE, allowNull: true },
+      replacedAt: { type: DataTypes.DATE, allowNull: true },
+      retireQuietMinutes: { type: DataTypes.INTEGER, allowNull: true },
       lastUsedAt: { type: DataTypes.DATE, allowNull: true },
       createdByUserId: { type: DataTypes.STRING(40), allowNull: true },
       ...timestamps,
@@ -292,6 +349,29 @@ export function initModels(sequelize: Sequelize): void {
       count: { type: DataTypes.INTEGER, allowNull: false },
     },
     { sequelize, tableName: 'usage_daily', timestamps: false },
+  );
+  UsageHourly.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      organizationId: { type: DataTypes.STRING(40), allowNull: false },
+      apiKeyId: { type: DataTypes.STRING(40), allowNull: false },
+      endpoint: { type: DataTypes.STRING(120), allowNull: false },
+      hour: { type: DataTypes.STRING(13), allowNull: false },
+      status: { type: DataTypes.INTEGER, allowNull: false },
+      count: { type: DataTypes.INTEGER, allowNull: false },
+    },
+    { sequelize, tableName: 'usage_hourly', timestamps: false },
+  );
+  UsageOriginDaily.init(
+    {
+      id: { type: DataTypes.INTEGER, primaryKey: true, autoIncrement: true },
+      organizationId: { type: DataTypes.STRING(40), allowNull: false },
+      apiKeyId: { type: DataTypes.STRING(40), allowNull: false },
+      origin: { type: DataTypes.STRING(300), allowNull: false },
+      day: { type: DataTypes.STRING(10), allowNull: false },
+      count: { type: DataTypes.INTEGER, allowNull: false },
+    },
+    { sequelize, tableName: 'usage_origins_daily', timestamps: false },
   );
   Embed.init(
     {
@@ -314,6 +394,10 @@ export function initModels(sequelize: Sequelize): void {
       providerCustomerId: { type: DataTypes.STRING(100), allowNull: true },
       providerSubscriptionId: { type: DataTypes.STRING(100), allowNull: true },
       currentPeriodEnd: { type: DataTypes.DATE, allowNull: true },
+      cancelAtPeriodEnd: { type: DataTypes.BOOLEAN, allowNull: false, defaultValue: false },
+      graceUntil: { type: DataTypes.DATE, allowNull: true },
+      lapsedAt: { type: DataTypes.DATE, allowNull: true },
+      providerEventAt: { type: DataTypes.DATE, allowNull: true },
       ...timestamps,
     },
     { sequelize, tableName: 'subscriptions' },
@@ -332,6 +416,9 @@ export function initModels(sequelize: Sequelize): void {
     },
     { sequelize, tableName: 'audit_events', updatedAt: false },
   );
+
+  initBillingModels(sequelize);
+  initNoticeModels(sequelize);
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Organization, { foreignKey: 'organizationId', as: 'organization' });

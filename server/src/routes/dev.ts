@@ -11,6 +11,7 @@ import { Router } from 'express';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { securityHeaders } from '../http/security.ts';
+import { settleAfterResponse } from '../services/after-response.ts';
 import { getMailService, type KeptMessage } from '../services/mail.ts';
 
 
@@ -63,6 +64,11 @@ export async function createDevRouter(ctx: AppContext): Promise<Router> {
     if (!isLoopback(req.ip) || !isLoopback(req.socket.remoteAddress)) {
       throw new HttpError('not-found', 'The development mailbox is shown only on the machine the server runs on.');
     }
+    next();
+  });
+  // Mail sent after an answer (reset, verification) is in the mailbox before it is shown.
+  router.use(async (_req, _res, next) => {
+    await settleAfterResponse(ctx);
     next();
   });
   const mail = await getMailService(ctx);

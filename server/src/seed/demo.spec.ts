@@ -35,8 +35,17 @@ describe('the demo seed’s activity log', () => {
     ]);
     expect(events.filter((e) => e.action === 'satellite.create').map((e) => (e.detail as { name: string }).name)).toEqual(['Wren Pathfinder', 'Orrery-1', 'Halcyon Relay', 'Tessera GEO']);
     const upload = events.find((e) => e.action === 'element-set.upload');
-    expect(upload?.detail).toMatchObject({ satellite: 'Wren Pathfinder', accepted: 1, rejected: 0 });
+    // A short history: 9, 6 and 3 days back and the fresh set.
+    expect(upload?.detail).toMatchObject({ satellite: 'Wren Pathfinder', accepted: 4, rejected: 0 });
     expect(events.filter((e) => e.action === 'key.create').map((e) => (e.detail as { kind: string }).kind)).toEqual(['browser', 'server']);
+  });
+
+  it('gives every demo satellite a history whose sets continue the orbit', async () => {
+    for (const sat of await Satellite.findAll({ where: { organizationId: DEMO_ORG_ID } })) {
+      const sets = await ElementSetRecord.findAll({ where: { satelliteId: sat.id }, order: [['epoch', 'ASC']] });
+      expect(sets.length, sat.name).toBe(4);
+      expect(sets.map((r) => r.continuityClass), sat.name).toEqual([null, 'continues', 'continues', 'continues']);
+    }
   });
 
   it('keeps no key text in the events', async () => {
@@ -66,5 +75,25 @@ describe('the demo satellites', () => {
     const separation = (((es.raanDeg - sunRaDeg) % 360) + 360) % 360;
     // Local time of the ascending node 18:00 means 90 deg; a degree of slack covers mean vs apparent Sun.
     expect(Math.abs(separation - 90)).toBeLessThan(1);
+  });
+});
+
+describe('the demo seed\u2019s payments', () => {
+  it('has Ostwick paying for Mission with one paid invoice at the fake provider, and a second organization on Starter', async () => {
+    const { Invoice, Organization, Subscription } = await import('../models/index.ts');
+    const { DEMO_STARTER_ORG_ID } = await import('./demo-billing.ts');
+    await seedDemo(t.context, { port: 8080 });
+    const sub = await Subscription.findOne({ where: { organizationId: DEMO_ORG_ID } });
+    expect(sub).toMatchObject({ plan: 'mission', status: 'active' });
+    expect((await Organization.findByPk(DEMO_ORG_ID))?.plan).toBe('mission');
+    const invoices = await Invoice.findAll({ where: { organizationId: DEMO_ORG_ID } });
+    expect(invoices.map((i) => [i.status, i.amountPaid, i.currency])).toEqual([['paid', 3900, 'eur']]);
+    expect((await Organization.findByPk(DEMO_STARTER_ORG_ID))?.plan).toBe('starter');
+    // The fake forgets on restart; a later seed puts the subscription back under the stored ids.
+    const fake = t.context.services.payments!.fake!;
+    fake.store.subscriptions.clear();
+    await seedDemo(t.context, { port: 8080 });
+    expect(fake.store.subscriptions.get(sub!.providerSubscriptionId!)?.['status']).toBe('active');
+    expect(await Subscription.count({ where: { organizationId: DEMO_ORG_ID } })).toBe(1);
   });
 });

@@ -24,6 +24,7 @@ import type { AppContext } from '../context.ts';
 import { ApiKey, Embed, Membership, Organization, Satellite, User, type Role } from '../models/index.ts';
 import { hashPassword } from '../services/accounts.ts';
 import { recordAudit, type AuditInput } from '../services/audit.ts';
+import { seedDemoBilling } from './demo-billing.ts';
 import { getEmbedService } from '../services/embeds.ts';
 import { getKeyService, normalizeOrigin } from '../services/keys.ts';
 import { getSatelliteService } from '../services/satellites.ts';
@@ -203,9 +204,19 @@ export async function seedDemo(
     const epochMs = Math.floor(now.getTime() / 60_000) * 60_000 - 2 * 3_600_000;
     const cur = cached?.current;
     if (!cur || now.getTime() - cur.elementSet.epochMs > 86_400_000) {
-      const es = synthesizeElementSet(s, epochMs);
-      const { toTle } = await import('@nadirline/shared');
-      const report = await sats.addElementSets(sat, { text: toTle(es).text, format: 'tle' }, { userId: editor?.id ?? null });
+      const { carryForward, toSatrec, toTle } = await import('@nadirline/shared');
+      // Each new set continues the orbit of the one before it (its continuity check reads
+      // "continues the orbit"); a new demo starts with a short history: 9, 6 and 3 days back.
+      const sets: ElementSet[] = [];
+      if (cur) sets.push(carryForward(cur.elementSet, cur.satrec, epochMs));
+      else {
+        sets.push(synthesizeElementSet(s, epochMs - 9 * 86_400_000));
+        for (const daysBack of [6, 3, 0]) {
+          const prev = sets[sets.length - 1] as ElementSet;
+          sets.push(carryForward(prev, toSatrec(prev), epochMs - daysBack * 86_400_000));
+        }
+      }
+      const report = await sats.addElementSets(sat, { text: sets.map((es) => toTle(es).text).join('\n'), format: 'tle' }, { userId: editor?.id ?? null });
       const bad = report.report.find((r) => !r.ok);
       if (bad) throw new Error(`demo element set for ${s.name} was refused: ${bad.code}: ${bad.message}`);
       event(editor, {
@@ -290,6 +301,9 @@ export async function seedDemo(
 
   // -- activity log (first run only) ------------------------------------------------------------
   for (const e of events) await recordAudit(ctx, e);
+
+  // -- payments: Ostwick pays for Mission (one invoice); a second organization on Starter ------
+  await seedDemoBilling(ctx, owner);
 
   const credentials: DemoCredentials = {
     signInUrl,

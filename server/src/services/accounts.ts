@@ -3,7 +3,8 @@
  * Passwords are bcrypt hashes (bcryptjs); e-mail tokens are random 256-bit strings of which only
  * the SHA-256 is stored, usable once and until they expire.
  *
- *   signUp(ctx, { email, name, password, organizationName?, invitationToken? }) -> { user, organization? }
+ *   signUp(ctx, { email, name, password, organizationName?, invitationToken? }) -> { user (JSON), created, organization, verified }
+ *       (a taken address answers the same, creates nothing and mails its owner)
  *   verifyEmail(ctx, token) -> User                       (400 invalid-token)
  *   resendVerification(ctx, email) -> void                (silent when nothing to send)
  *   checkCredentials(ctx, email, password) -> User        (401 invalid-credentials, 403 email-not-verified)
@@ -16,13 +17,15 @@
 import crypto from 'node:crypto';
 import bcrypt from 'bcryptjs';
 import { nanoid } from 'nanoid';
-import { Op, type Transaction } from 'sequelize';
+import { Op, UniqueConstraintError, type Transaction } from 'sequelize';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
 import { destroyUserSessions } from '../http/session.ts';
 import { EmailToken, Membership, Organization, User } from '../models/index.ts';
-import { getMailService, resetPasswordMail, verificationMail } from './mail.ts';
+import { afterResponse } from './after-response.ts';
+import { accountExistsMail, getMailService, resetPasswordMail, verificationMail } from './mail.ts';
 import { acceptInvitationForUser, createOrganization, invitationOrThrow } from './orgs.ts';
+import { passwordProblem, personalWords } from './passwords.ts';
 import type { Membership as MembershipOfContract, User as UserOfContract } from '@nadirline/shared/contract';
 
 export const VERIFY_TOKEN_TTL_MS = 48 * 3600 * 1000;
@@ -76,6 +79,12 @@ export function newToken(): { token: string; tokenHash: string } {
   return { token, tokenHash: hashToken(token) };
 }
 
+/** 400 validation-failed on /password when the password is guessable (services/passwords.ts). */
+export function assertPasswordAcceptable(password: string, ...personal: Array<string | undefined>): void {
+  const problem = passwordProblem(password, personalWords(...personal));
+  if (problem) throw new HttpError('validation-failed', problem, { errors: [{ where: '/password', field: 'password', message: problem }] });
+}
+
 export function normalizeEmail(email: string): string {
   return email.trim().toLowerCase();
 }
@@ -123,14 +132,14 @@ export interface SignUpInput {
   invitationToken?: string | undefined;
 }
 
-export async function signUp(ctx: AppContext, input: SignUpInput): Promise<{ user: User; organization: Organization | null; verified: boolean }> {
+/**
+ * Answers the same for a new address and for one that has an account already (no probing who
+ * has an account): the same work (a password hash, one e-mail sent after the answer) and the
+ * same answer shape. For a taken address nothing is created; its owner gets a note instead.
+ */
+export async function signUp(ctx: AppContext, input: SignUpInput): Promise<{ user: UserJson; created: User | null; organization: Organization | null; verified: boolean }> {
   const email = normalizeEmail(input.email);
-  if (await User.findOne({ where: { email } })) {
-    throw new HttpError('conflict', 'An account with this e-mail address already exists. Sign in, or reset its password.', {
-      errors: [{ where: '/email', field: 'email', message: 'Already registered.' }],
-    });
-  }
-  const passwordHash = await hashPassword(ctx, input.password);
+  assertPasswordAcceptable(input.password, email, input.name);
   // An invitation that no longer works is said so, rather than silently making a plain account.
   const invitation = input.invitationToken ? await invitationOrThrow(input.invitationToken) : null;
   if (invitation && normalizeEmail(invitation.email) !== email) {
@@ -138,18 +147,37 @@ export async function signUp(ctx: AppContext, input: SignUpInput): Promise<{ use
   }
   // Signing up from an invitation link proves the address: the invitation went to it.
   const verified = invitation !== null;
-  const result = await ctx.sequelize.transaction(async (transaction) => {
-    const user = await User.create(
-      { id: nanoid(), email, name: input.name, passwordHash, emailVerifiedAt: verified ? new Date() : null },
-      { transaction },
-    );
-    const organization = input.organizationName?.trim() ? await createOrganization(ctx, user, input.organizationName, transaction) : null;
-    if (invitation) await acceptInvitationForUser(ctx, invitation, user, transaction);
-    const token = verified ? null : await issueEmailToken(user.id, 'verify-email', VERIFY_TOKEN_TTL_MS, transaction);
-    return { user, organization, token };
-  });
-  if (result.token) await sendSafely(ctx, verificationMail(email, input.name, link(ctx, `/verify-email?token=${result.token}`)));
-  return { user: result.user, organization: result.organization, verified };
+  const passwordHash = await hashPassword(ctx, input.password);
+  const existing = await User.findOne({ where: { email } });
+  const asIfNew = (): UserJson => ({ id: nanoid(), email, name: input.name, emailVerified: verified, createdAt: new Date().toISOString() });
+  const tellOwner = (owner: User) =>
+    afterResponse(ctx, 'account-exists e-mail', () => sendSafely(ctx, accountExistsMail(owner.email, owner.name, link(ctx, '/sign-in'), link(ctx, '/forgot-password'))));
+  if (existing) {
+    tellOwner(existing);
+    return { user: asIfNew(), created: null, organization: null, verified };
+  }
+  let result: { user: User; organization: Organization | null; token: string | null };
+  try {
+    result = await ctx.sequelize.transaction(async (transaction) => {
+      const user = await User.create(
+        { id: nanoid(), email, name: input.name, passwordHash, emailVerifiedAt: verified ? new Date() : null },
+        { transaction },
+      );
+      const organization = input.organizationName?.trim() ? await createOrganization(ctx, user, input.organizationName, transaction) : null;
+      if (invitation) await acceptInvitationForUser(ctx, invitation, user, transaction);
+      const token = verified ? null : await issueEmailToken(user.id, 'verify-email', VERIFY_TOKEN_TTL_MS, transaction);
+      return { user, organization, token };
+    });
+  } catch (err) {
+    // Two sign-ups for one new address at once: the second finds it taken, as above.
+    if (!(err instanceof UniqueConstraintError)) throw err;
+    const owner = await User.findOne({ where: { email } });
+    if (owner) tellOwner(owner);
+    return { user: asIfNew(), created: null, organization: null, verified };
+  }
+  const token = result.token;
+  if (token) afterResponse(ctx, 'verification e-mail', () => sendSafely(ctx, verificationMail(email, input.name, link(ctx, `/verify-email?token=${token}`))));
+  return { user: serializeUser(result.user), created: result.user, organization: result.organization, verified };
 }
 
 export async function verifyEmail(ctx: AppContext, token: string): Promise<User> {
@@ -165,6 +193,7 @@ export async function verifyEmail(ctx: AppContext, token: string): Promise<User>
   });
 }
 
+/** Runs after the answer (afterResponse): the answer is the same whether or not the address has an account. */
 export async function resendVerification(ctx: AppContext, email: string): Promise<void> {
   const user = await User.findOne({ where: { email: normalizeEmail(email) } });
   if (!user || user.emailVerifiedAt) return;
@@ -188,6 +217,7 @@ export async function checkCredentials(ctx: AppContext, email: string, password:
   return user;
 }
 
+/** Runs after the answer (afterResponse): the answer and its timing are the same for known and unknown addresses. */
 export async function requestPasswordReset(ctx: AppContext, email: string): Promise<void> {
   const user = await User.findOne({ where: { email: normalizeEmail(email) } });
   if (!user) return;
@@ -196,6 +226,10 @@ export async function requestPasswordReset(ctx: AppContext, email: string): Prom
 }
 
 export async function resetPassword(ctx: AppContext, token: string, password: string): Promise<User> {
+  // The person's own e-mail address and name do not make a password.
+  const holder = await EmailToken.findOne({ where: { tokenHash: hashToken(token), purpose: 'reset-password' }, attributes: ['userId'] });
+  const owner = holder ? await User.findByPk(holder.userId, { attributes: ['email', 'name'] }) : null;
+  assertPasswordAcceptable(password, owner?.email, owner?.name);
   const passwordHash = await hashPassword(ctx, password);
   const user = await ctx.sequelize.transaction(async (transaction) => {
     const row = await consumeEmailToken(token, 'reset-password', transaction);
@@ -228,6 +262,7 @@ export async function updateProfile(
         errors: [{ where: '/currentPassword', field: 'currentPassword', message: 'Not your current password.' }],
       });
     }
+    assertPasswordAcceptable(input.password, user.email, input.name ?? user.name);
     user.passwordHash = await hashPassword(ctx, input.password);
   }
   if (input.name !== undefined) user.name = input.name;

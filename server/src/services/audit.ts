@@ -25,6 +25,20 @@ export interface AuditInput {
   detail?: Record<string, unknown>;
 }
 
+export type AuditChanges = Record<string, { from: unknown; to: unknown }>;
+
+/**
+ * The fields whose value differs between `before` and `after`, each as `{ from, to }` (compared
+ * as JSON, so lists and dates compare by value). Fields equal on both sides are left out, so an
+ * event says only what changed.
+ */
+export function changesOf<T extends Record<string, unknown>>(before: T, after: T, fields: ReadonlyArray<keyof T & string> = Object.keys({ ...before, ...after })): AuditChanges {
+  const out: AuditChanges = {};
+  const norm = (v: unknown) => JSON.stringify(v === undefined ? null : v);
+  for (const f of fields) if (norm(before[f]) !== norm(after[f])) out[f] = { from: before[f] ?? null, to: after[f] ?? null };
+  return out;
+}
+
 export async function recordAudit(
   _ctx: Pick<AppContext, 'sequelize'> | AppContext,
   input: AuditInput,

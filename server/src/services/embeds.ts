@@ -11,11 +11,13 @@
  *   deleteEmbed(orgId, id) -> Promise<void>
  *   serializeEmbed(embed) -> { id, name, satelliteIds, options, apiKeyId, updatedAt }
  *   publicEmbed(embed) -> { id, name, satellites, options }      (the GET /v1/embeds/{id} answer)
- *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; invalid-key / key problems;
+ *   resolveForRead(id) -> Promise<{ embed: EmbedRecord, key: KeyRecord }>   (cached; the key is the current successor
+ *                         of the embed's key when that was replaced; invalid-key / key problems;
  *                         an unknown id: invalid-key with reason EMBED_NOT_FOUND)
  *   resolveForReadCached(id) -> the same or undefined, without waiting (request fast path)
  *   embedOptionsSchema, embedInputSchema (zod)
  */
+import { LRUCache } from 'lru-cache';
 import { customAlphabet } from 'nanoid';
 import { z } from 'zod';
 import type { AppContext } from '../context.ts';
@@ -31,6 +33,25 @@ export const MAX_EMBED_SATELLITES = 50;
 /** `reason` of the invalid-key problem for an embed id that names no embed (GET /v1/embeds/{id} answers 404 instead). */
 export const EMBED_NOT_FOUND = 'embed-not-found';
 
+const NUMBER = /^[+-]?(\d+(\.\d*)?|\.\d+)$/;
+
+/**
+ * Problems with an observer text as the widget takes it ("lat,lon[,altM]" in degrees and metres,
+ * "auto", or empty for none); an empty list when it is fine.
+ */
+export function observerProblems(text: string): string[] {
+  const t = text.trim();
+  if (t === '' || t === 'auto') return [];
+  const parts = t.split(',').map((p) => p.trim());
+  if (parts.length < 2 || parts.length > 3) return [`"${t}" is not an observer: give latitude,longitude[,altitude in metres], e.g. 51.48,-0.01,45, or auto`];
+  const [lat = '', lon = '', alt] = parts;
+  const out: string[] = [];
+  if (!NUMBER.test(lat) || Math.abs(Number(lat)) > 90) out.push(`latitude "${lat}" is not a number from -90 to 90`);
+  if (!NUMBER.test(lon) || Math.abs(Number(lon)) > 180) out.push(`longitude "${lon}" is not a number from -180 to 180 (east positive)`);
+  if (alt !== undefined && (!NUMBER.test(alt) || Number(alt) < -500 || Number(alt) > 10_000)) out.push(`altitude "${alt}" is not a number of metres from -500 to 10000`);
+  return out;
+}
+
 export const embedOptionsSchema = z
   .looseObject({
     projection: z.enum(['equal-earth', 'globe']).optional(),
@@ -44,7 +65,13 @@ export const embedOptionsSchema = z
     width: z.string().max(40).optional(),
     height: z.string().max(40).optional(),
   })
-  .refine((o) => JSON.stringify(o).length <= 8_000, { message: 'options are too large (8 000 characters of JSON at most)' });
+  .refine((o) => JSON.stringify(o).length <= 8_000, { message: 'options are too large (8 000 characters of JSON at most)' })
+  .superRefine((o, ctx) => {
+    for (const message of observerProblems(o.observer ?? '')) ctx.addIssue({ code: 'custom', path: ['observer'], message });
+    if (o.layers?.includes('passes') && !(o.observer ?? '').trim()) {
+      ctx.addIssue({ code: 'custom', path: ['observer'], message: 'the passes layer needs an observer: a fixed place (latitude,longitude) or auto; or turn passes off' });
+    }
+  });
 
 export const embedInputSchema = z.object({
   name: z.string().trim().min(1).max(200),
@@ -71,7 +98,7 @@ export interface EmbedRecord {
 
 function invalid(error: z.ZodError): HttpError {
   return new HttpError('validation-failed', `The embed is not valid: ${error.issues.map((i) => `${i.path.join('.') || '(body)'}: ${i.message}`).join('; ')}`, {
-    errors: error.issues.map((i) => ({ where: i.path.join('.') || '(body)', field: String(i.path[0] ?? ''), message: i.message })),
+    errors: error.issues.map((i) => ({ where: i.path.join('.') || '(body)', field: i.path.slice(0, 2).join('.'), message: i.message })),
   });
 }
 
@@ -103,7 +130,9 @@ export function publicEmbed(e: Embed | EmbedRecord): V1Embed {
 }
 
 export class EmbedService {
-  private readonly cache = new Map<string, { record: EmbedRecord | null; at: number }>();
+  /** Embeds by id (least recently used go first); unknown ids in their own small cache, so guessed ids cannot evict real ones. */
+  private readonly cache = new LRUCache<string, { record: EmbedRecord; at: number }>({ max: 10_000 });
+  private readonly unknown = new LRUCache<string, true>({ max: 1_000, ttl: 5_000 });
 
   constructor(
     _ctx: AppContext,
@@ -133,7 +162,7 @@ export class EmbedService {
       options: v.options,
       apiKeyId: v.apiKeyId,
     });
-    this.cache.delete(e.id);
+    this.invalidate(e.id);
     return e;
   }
 
@@ -164,9 +193,13 @@ export class EmbedService {
     if (!/^[0-9a-z_-]{1,40}$/i.test(id)) return null;
     const hit = this.cache.get(id);
     if (hit && Date.now() - hit.at < EMBED_CACHE_TTL_MS) return hit.record;
+    if (this.unknown.has(id)) return null;
     const row = await Embed.findByPk(id);
-    const record = row ? toRecord(row) : null;
-    if (this.cache.size > 10_000) this.cache.clear();
+    if (!row) {
+      this.unknown.set(id, true);
+      return null;
+    }
+    const record = toRecord(row);
     this.cache.set(id, { record, at: Date.now() });
     return record;
   }
@@ -176,7 +209,8 @@ export class EmbedService {
     const embed = await this.findEmbed(id);
     if (!embed) throw new HttpError('invalid-key', `No embed ${id} exists; it may have been deleted.`, { reason: EMBED_NOT_FOUND });
     if (!embed.apiKeyId) throw new HttpError('invalid-key', `Embed ${id} has no key attached; choose a browser key for it in the console.`);
-    const key = await this.keys.findById(embed.apiKeyId);
+    // A replaced key hands its embeds to its successor at once (the rotation also moves the row).
+    const key = await this.keys.currentSuccessor(embed.apiKeyId);
     if (!key) throw new HttpError('invalid-key', `The key of embed ${id} no longer exists; choose another browser key in the console.`);
     assertKeyWorks(key, now);
     return { embed, key };
@@ -186,7 +220,7 @@ export class EmbedService {
   resolveForReadCached(id: string, now: Date = new Date()): { embed: EmbedRecord; key: KeyRecord } | undefined {
     const hit = this.cache.get(id);
     if (!hit?.record?.apiKeyId || Date.now() - hit.at >= EMBED_CACHE_TTL_MS) return undefined;
-    const key = this.keys.cachedById(hit.record.apiKeyId);
+    const key = this.keys.cachedSuccessor(hit.record.apiKeyId);
     if (!key) return undefined;
     assertKeyWorks(key, now);
     return { embed: hit.record, key };
@@ -194,6 +228,12 @@ export class EmbedService {
 
   invalidate(id: string): void {
     this.cache.delete(id);
+    this.unknown.delete(id);
+  }
+
+  /** Drop every cached embed (after a rotation moved embeds to a new key). */
+  invalidateAll(): void {
+    this.cache.clear();
   }
 
   private async checkRefs(orgId: string, satelliteIds: string[] | undefined, apiKeyId: string | undefined): Promise<void> {

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { assertKeyWorks, hashKeyText, keyState, kindOfKeyText, normalizeOrigin, originAllowed, serializeKey, type KeyRecord } from './keys.ts';
+import { assertKeyWorks, hashKeyText, keyState, retiresAt, kindOfKeyText, normalizeOrigin, originAllowed, serializeKey, type KeyRecord } from './keys.ts';
 import { HttpError } from '../http/problem.ts';
 
 const base: KeyRecord = {
@@ -16,6 +16,8 @@ const base: KeyRecord = {
   revokedAt: null,
   replacedById: null,
   graceUntil: null,
+  replacedAt: null,
+  retireQuietMinutes: null,
   lastUsedAt: null,
   createdByUserId: null,
   createdAt: new Date('2025-01-01T00:00:00Z'),
@@ -84,16 +86,43 @@ describe('key states', () => {
     expect(codeOf(() => assertKeyWorks({ ...base, expiresAt: new Date('2025-06-01T11:00:00Z') }, now))).toBe('key-expired');
   });
 
-  it('keeps a rotated key in grace until graceUntil, then answers key-rotated', () => {
+  it('keeps a replaced key without a quiet rule answering until its retire-by date, then answers key-rotated', () => {
     const rotated = { ...base, replacedById: 'key_2', graceUntil: new Date('2025-06-01T13:00:00Z') };
-    expect(keyState(rotated, now)).toBe('grace');
+    expect(keyState(rotated, now)).toBe('retiring');
     expect(codeOf(() => assertKeyWorks(rotated, now))).toBeNull();
     const later = new Date('2025-06-01T13:00:01Z');
-    expect(keyState(rotated, later)).toBe('expired');
+    expect(keyState(rotated, later)).toBe('retired');
     expect(codeOf(() => assertKeyWorks(rotated, later))).toBe('key-rotated');
   });
 
-  it('names when a rotated key stopped working', () => {
+  it('retires a replaced key once it has been quiet for the chosen spell', () => {
+    // Replaced at 10:00 with a 60-minute quiet spell and a retire-by date a week away.
+    const rotated = { ...base, replacedById: 'key_2', replacedAt: new Date('2025-06-01T10:00:00Z'), retireQuietMinutes: 60, graceUntil: new Date('2025-06-08T10:00:00Z') };
+    // Not used since the rotation: quiet from 10:00, so retired at 11:00 (before now, 12:00).
+    expect(retiresAt(rotated, null)?.toISOString()).toBe('2025-06-01T11:00:00.000Z');
+    expect(keyState(rotated, now, null)).toBe('retired');
+    // Still called at 11:30: it keeps answering until 12:30.
+    const used = new Date('2025-06-01T11:30:00Z');
+    expect(keyState(rotated, now, used)).toBe('retiring');
+    expect(codeOf(() => assertKeyWorks(rotated, now, used))).toBeNull();
+    expect(codeOf(() => assertKeyWorks(rotated, new Date('2025-06-01T12:30:01Z'), used))).toBe('key-rotated');
+    // A use before the rotation does not extend it past rotation + quiet spell.
+    expect(retiresAt(rotated, new Date('2025-06-01T09:00:00Z'))?.toISOString()).toBe('2025-06-01T11:00:00.000Z');
+  });
+
+  it('retires a replaced key at its retire-by date even while it is still called', () => {
+    const rotated = { ...base, replacedById: 'key_2', replacedAt: new Date('2025-06-01T10:00:00Z'), retireQuietMinutes: 24 * 60, graceUntil: new Date('2025-06-01T11:59:00Z') };
+    const usedJustNow = new Date('2025-06-01T11:58:00Z');
+    expect(keyState(rotated, now, usedJustNow)).toBe('retired');
+    expect(codeOf(() => assertKeyWorks(rotated, now, usedJustNow))).toBe('key-rotated');
+  });
+
+  it('retires at once with a quiet spell of zero', () => {
+    const rotated = { ...base, replacedById: 'key_2', replacedAt: now, retireQuietMinutes: 0, graceUntil: new Date('2025-06-08T10:00:00Z') };
+    expect(keyState(rotated, now, null)).toBe('retired');
+  });
+
+  it('names when a replaced key retired', () => {
     const rotated = { ...base, replacedById: 'key_2', graceUntil: new Date('2025-06-01T10:00:00Z') };
     try {
       assertKeyWorks(rotated, now);

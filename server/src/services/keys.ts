@@ -6,10 +6,14 @@
  * Exported API (ctx.services.keys is a KeyService):
  *   createKey({ organizationId, kind, name, origins?, scopes?, rateLimitPerMin?, expiresAt?, createdByUserId? })
  *       -> Promise<{ key: ApiKey, secret: string }>          (400 validation-failed on bad input)
- *   rotateKey(id, graceHours = 24) -> Promise<{ key, secret, previous }>   (0 = old key stops at once)
+ *   rotateKey(id, { name?, quietMinutes?, retireBy? }) -> Promise<{ key, secret, previous }>
+ *       the new key works at once and the old one retires when quiet: it answers until no request
+ *       has used it for quietMinutes (default 24 h; 0 = at once), and at the latest at retireBy
+ *       (default in 14 days). Embeds that used the old key are moved to the new one.
  *   revokeKey(id) -> Promise<ApiKey>                           (immediate)
  *   updateKey(id, { name?, origins?, scopes?, rateLimitPerMin?, expiresAt? }) -> Promise<ApiKey>
- *   keyState(key, now?) -> 'active' | 'grace' | 'expired' | 'revoked'
+ *   keyState(key, now?, lastUse?) -> 'active' | 'retiring' | 'retired' | 'expired' | 'revoked'
+ *   retiresAt(key, lastUse?) -> Date | null                    (when a replaced key retires if no one calls it again)
  *   serializeKey(key, now?) -> KeyJson (the console's key object; lastUsedAt includes unflushed use)
  *   authenticate(text, now?) -> Promise<KeyRecord>             (throws HttpError invalid-key / key-*)
  *   findById(id) -> Promise<KeyRecord | null>                  (cached)
@@ -26,7 +30,7 @@ import { nanoid } from 'nanoid';
 import { z } from 'zod';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
-import { ApiKey, KEY_KINDS, KEY_SCOPES, Organization, type KeyKind, type KeyScope } from '../models/index.ts';
+import { ApiKey, Embed, KEY_KINDS, KEY_SCOPES, Organization, type KeyKind, type KeyScope } from '../models/index.ts';
 import { planOf } from './quota.ts';
 import type { ApiKey as ApiKeyJson, KeyState as KeyStateOfContract } from '@nadirline/shared/contract';
 
@@ -35,8 +39,12 @@ export const KEY_PREFIX: Record<KeyKind, string> = { browser: 'nlb_', server: 'n
 export const KEY_RANDOM_LENGTH = 32;
 export const KEY_CACHE_TTL_MS = 30_000;
 export const MAX_ORIGINS = 50;
-export const DEFAULT_GRACE_HOURS = 24;
-export const MAX_GRACE_HOURS = 24 * 30;
+/** A replaced key retires after this long without a request unless the owner picks another spell. */
+export const DEFAULT_QUIET_MINUTES = 24 * 60;
+export const MAX_QUIET_MINUTES = 30 * 24 * 60;
+/** The latest retire-by date, unless the owner picks another, is this many days after the rotation. */
+export const DEFAULT_RETIRE_BY_DAYS = 14;
+export const MAX_RETIRE_BY_DAYS = 90;
 
 export type KeyState = KeyStateOfContract;
 
@@ -54,14 +62,17 @@ export interface KeyRecord {
   expiresAt: Date | null;
   revokedAt: Date | null;
   replacedById: string | null;
+  /** Retire-by date of a replaced key (column graceUntil). */
   graceUntil: Date | null;
+  replacedAt: Date | null;
+  retireQuietMinutes: number | null;
   lastUsedAt: Date | null;
   createdByUserId: string | null;
   createdAt: Date;
 }
 
-/** The console's key object (GET /api/orgs/:org/keys): the contract's ApiKey. */
-export type KeyJson = ApiKeyJson;
+/** The console's key object (GET /api/orgs/:org/keys) without `use`, which the key routes add: the contract's ApiKey. */
+export type KeyJson = Omit<ApiKeyJson, 'use'>;
 
 export function hashKeyText(text: string): string {
   return crypto.createHash('sha256').update(text, 'utf8').digest('hex');
@@ -194,48 +205,94 @@ export function toRecord(k: ApiKey): KeyRecord {
     revokedAt: k.revokedAt ? new Date(k.revokedAt) : null,
     replacedById: k.replacedById,
     graceUntil: k.graceUntil ? new Date(k.graceUntil) : null,
+    replacedAt: k.replacedAt ? new Date(k.replacedAt) : null,
+    retireQuietMinutes: k.retireQuietMinutes ?? null,
     lastUsedAt: k.lastUsedAt ? new Date(k.lastUsedAt) : null,
     createdByUserId: k.createdByUserId,
     createdAt: new Date(k.createdAt),
   };
 }
 
-type KeyLike = Pick<KeyRecord, 'revokedAt' | 'expiresAt' | 'replacedById' | 'graceUntil'>;
+type KeyLike = Pick<KeyRecord, 'revokedAt' | 'expiresAt' | 'replacedById' | 'graceUntil' | 'createdAt' | 'lastUsedAt'> &
+  Partial<Pick<KeyRecord, 'replacedAt' | 'retireQuietMinutes'>>;
 
-/** State of a key at `now`. A rotated key past its grace period counts as expired. */
-export function keyState(key: KeyLike, now: Date = new Date()): KeyState {
+const ms = (d: Date | string | null | undefined): number | null => (d ? new Date(d).getTime() : null);
+
+/**
+ * When a replaced key retires if nothing calls it again: `retireQuietMinutes` after its last use
+ * (or after the replacement, when it was not used since), and at the latest at its retire-by
+ * date. A request refused after that does not count as use, so the answer cannot move back.
+ * Null for a key that was not replaced.
+ */
+export function retiresAt(key: KeyLike, lastUse: Date | null = key.lastUsedAt ? new Date(key.lastUsedAt) : null): Date | null {
+  if (!key.replacedById) return null;
+  const replaced = ms(key.replacedAt) ?? ms(key.createdAt) ?? 0;
+  const quiet = key.retireQuietMinutes;
+  const quietEnd = quiet === null || quiet === undefined ? Number.POSITIVE_INFINITY : Math.max(replaced, ms(lastUse) ?? 0) + quiet * 60_000;
+  const by = ms(key.graceUntil) ?? Number.POSITIVE_INFINITY;
+  const end = Math.min(quietEnd, by);
+  return new Date(Number.isFinite(end) ? end : replaced);
+}
+
+/** State of a key at `now`; `lastUse` (default the stored lastUsedAt) decides when a replaced key is quiet. */
+export function keyState(key: KeyLike, now: Date = new Date(), lastUse?: Date | null): KeyState {
   const t = now.getTime();
   if (key.revokedAt) return 'revoked';
-  if (key.replacedById) {
-    if (key.graceUntil && new Date(key.graceUntil).getTime() > t) {
-      return key.expiresAt && new Date(key.expiresAt).getTime() <= t ? 'expired' : 'grace';
-    }
-    return 'expired';
-  }
   if (key.expiresAt && new Date(key.expiresAt).getTime() <= t) return 'expired';
+  if (key.replacedById) {
+    const end = retiresAt(key, lastUse === undefined ? undefined : lastUse);
+    return end && end.getTime() > t ? 'retiring' : 'retired';
+  }
   return 'active';
 }
 
+function quietText(minutes: number): string {
+  if (minutes === 0) return 'at once';
+  if (minutes % 1440 === 0) return `after ${minutes / 1440} ${minutes === 1440 ? 'day' : 'days'} without use`;
+  if (minutes % 60 === 0) return `after ${minutes / 60} ${minutes === 60 ? 'hour' : 'hours'} without use`;
+  return `after ${minutes} minutes without use`;
+}
+
 /** Throws the problem a key in a non-working state answers with; returns when it works. */
-export function assertKeyWorks(key: KeyRecord, now: Date = new Date()): void {
+export function assertKeyWorks(key: KeyRecord, now: Date = new Date(), lastUse?: Date | null): void {
   const t = now.getTime();
   if (key.revokedAt) {
     throw new HttpError('key-revoked', `This key (…${key.lastFour}) was revoked on ${key.revokedAt.toISOString()}.`);
-  }
-  if (key.replacedById && (!key.graceUntil || key.graceUntil.getTime() <= t)) {
-    const when = key.graceUntil ?? key.revokedAt ?? key.createdAt;
-    throw new HttpError(
-      'key-rotated',
-      `This key (…${key.lastFour}) was replaced by a new key; its grace period ended and it stopped working on ${when.toISOString()}. Use the new key.`,
-      { stoppedAt: when.toISOString() },
-    );
   }
   if (key.expiresAt && key.expiresAt.getTime() <= t) {
     throw new HttpError('key-expired', `This key (…${key.lastFour}) expired on ${key.expiresAt.toISOString()}.`, {
       expiredAt: key.expiresAt.toISOString(),
     });
   }
+  if (key.replacedById) {
+    const end = retiresAt(key, lastUse === undefined ? undefined : lastUse);
+    if (end && end.getTime() <= t) {
+      const by = key.graceUntil && key.graceUntil.getTime() === end.getTime();
+      const how = by || key.retireQuietMinutes === null ? 'on its retire-by date' : quietText(key.retireQuietMinutes);
+      throw new HttpError(
+        'key-rotated',
+        `This key (…${key.lastFour}) was replaced by a new key and retired ${how}, on ${end.toISOString()}. Use the key that replaced it; the console's key list shows which one.`,
+        { stoppedAt: end.toISOString() },
+      );
+    }
+  }
 }
+
+export const rotateInputSchema = z.object({
+  name: z.string().trim().min(1).max(200).optional(),
+  quietMinutes: z
+    .number({ message: 'Give the quiet spell in whole minutes.' })
+    .int({ message: 'Give the quiet spell in whole minutes.' })
+    .min(0, { message: 'The quiet spell cannot be negative (0 retires the old key at once).' })
+    .max(MAX_QUIET_MINUTES, { message: `The quiet spell is at most ${MAX_QUIET_MINUTES / 1440} days.` })
+    .optional(),
+  retireBy: z.coerce
+    .date({ message: 'Give a date and time, e.g. 2026-12-31T23:59:00Z.' })
+    .refine((d) => d.getTime() > Date.now(), { message: 'Choose a retire-by time in the future.' })
+    .refine((d) => d.getTime() <= Date.now() + MAX_RETIRE_BY_DAYS * 86_400_000 + 60_000, { message: `Choose a retire-by time at most ${MAX_RETIRE_BY_DAYS} days ahead.` })
+    .optional(),
+});
+export type RotateKeyInput = z.input<typeof rotateInputSchema>;
 
 const iso = (d: Date | null): string | null => (d ? new Date(d).toISOString() : null);
 
@@ -309,6 +366,8 @@ export class KeyService {
       revokedAt: null,
       replacedById: null,
       graceUntil: null,
+      replacedAt: null,
+      retireQuietMinutes: null,
       lastUsedAt: null,
       createdByUserId: input.createdByUserId ?? null,
     });
@@ -316,28 +375,36 @@ export class KeyService {
     return { key, secret };
   }
 
-  /** New secret with the same settings; the old key works until graceUntil (0 h = at once). */
-  async rotateKey(id: string, graceHours: number = DEFAULT_GRACE_HOURS, createdByUserId: string | null = null): Promise<{ key: ApiKey; secret: string; previous: ApiKey }> {
-    if (!Number.isFinite(graceHours) || graceHours < 0 || graceHours > MAX_GRACE_HOURS) {
-      throw new HttpError('validation-failed', `graceHours must be between 0 and ${MAX_GRACE_HOURS}.`, {
-        errors: [{ where: 'graceHours', field: 'graceHours', message: `between 0 and ${MAX_GRACE_HOURS}` }],
-      });
-    }
+  /**
+   * New secret with the same settings and a name of its own; the old key retires when quiet.
+   * Embeds that read with the old key read with the new one from now on.
+   */
+  async rotateKey(id: string, input: RotateKeyInput = {}, createdByUserId: string | null = null): Promise<{ key: ApiKey; secret: string; previous: ApiKey; embedsMoved: number }> {
+    const parsed = rotateInputSchema.safeParse(input);
+    if (!parsed.success) throw validationError(parsed.error, 'rotation');
     const old = await ApiKey.findByPk(id);
     if (!old) throw new HttpError('not-found', `Key ${id} does not exist.`);
-    const state = keyState(old);
+    const state = keyState(old, new Date(), this.lastUse(old));
     if (state === 'revoked') throw new HttpError('conflict', 'A revoked key cannot be rotated; create a new key instead.');
-    if (old.replacedById) throw new HttpError('conflict', `This key was already rotated; rotate its replacement (${old.replacedById}) instead.`);
+    if (old.replacedById) throw new HttpError('conflict', `This key was already replaced; rotate its replacement (${old.replacedById}) instead.`);
     if (state === 'expired') throw new HttpError('conflict', 'An expired key cannot be rotated; create a new key instead.');
-    const secret = `${KEY_PREFIX[old.kind]}${nanoid(KEY_RANDOM_LENGTH)}`;
+    const name = parsed.data.name ?? `${old.name} (new)`;
+    if (name === old.name) {
+      throw new HttpError('validation-failed', 'Give the new key a name of its own, so the two keys can be told apart while the old one retires.', {
+        errors: [{ where: 'name', field: 'name', message: 'must differ from the name of the key it replaces' }],
+      });
+    }
     const now = Date.now();
-    const key = await this.ctx.sequelize.transaction(async (transaction) => {
+    const quietMinutes = parsed.data.quietMinutes ?? DEFAULT_QUIET_MINUTES;
+    const retireBy = parsed.data.retireBy ?? new Date(now + DEFAULT_RETIRE_BY_DAYS * 86_400_000);
+    const secret = `${KEY_PREFIX[old.kind]}${nanoid(KEY_RANDOM_LENGTH)}`;
+    const { key, embedsMoved } = await this.ctx.sequelize.transaction(async (transaction) => {
       const created = await ApiKey.create(
         {
           id: `key_${nanoid(16)}`,
           organizationId: old.organizationId,
           kind: old.kind,
-          name: old.name,
+          name,
           hash: hashKeyText(secret),
           lastFour: secret.slice(-4),
           origins: [...old.origins],
@@ -347,17 +414,51 @@ export class KeyService {
           revokedAt: null,
           replacedById: null,
           graceUntil: null,
+          replacedAt: null,
+          retireQuietMinutes: null,
           lastUsedAt: null,
           createdByUserId: createdByUserId ?? old.createdByUserId,
         },
         { transaction },
       );
-      await old.update({ replacedById: created.id, graceUntil: new Date(now + graceHours * 3_600_000) }, { transaction });
-      return created;
+      await old.update({ replacedById: created.id, replacedAt: new Date(now), retireQuietMinutes: quietMinutes, graceUntil: retireBy }, { transaction });
+      const [moved] = await Embed.update({ apiKeyId: created.id }, { where: { apiKeyId: old.id, organizationId: old.organizationId }, transaction });
+      return { key: created, embedsMoved: moved };
     });
     this.invalidate(old);
     this.invalidate(key);
-    return { key, secret, previous: old };
+    return { key, secret, previous: old, embedsMoved };
+  }
+
+  /** Last use of a key, counting use not yet written. */
+  lastUse(key: { id: string; lastUsedAt: Date | null }): Date | null {
+    const pending = this.pendingUse.get(key.id);
+    const stored = key.lastUsedAt ? new Date(key.lastUsedAt).getTime() : null;
+    const t = Math.max(pending ?? 0, stored ?? 0);
+    return t > 0 ? new Date(t) : null;
+  }
+
+  /**
+   * The key an embed reads with: its own key, or the current successor when that key was replaced
+   * (embeds follow a rotation at once, even before their row is moved or their cache is fresh).
+   */
+  async currentSuccessor(id: string): Promise<KeyRecord | null> {
+    let record = await this.findById(id);
+    for (let hops = 0; record?.replacedById && hops < 20; hops++) {
+      const next = await this.findById(record.replacedById);
+      if (!next) break;
+      record = next;
+    }
+    return record;
+  }
+
+  /** currentSuccessor from the cache only; undefined when something is not cached. */
+  cachedSuccessor(id: string): KeyRecord | undefined {
+    let record = this.cachedById(id);
+    for (let hops = 0; record?.replacedById && hops < 20; hops++) {
+      record = this.cachedById(record.replacedById);
+    }
+    return record;
   }
 
   async revokeKey(id: string): Promise<ApiKey> {
@@ -416,7 +517,7 @@ export class KeyService {
 
   private checked(text: string, record: KeyRecord | null, now: Date): KeyRecord {
     if (!record) throw new HttpError('invalid-key', `No key ending in …${text.slice(-4)} exists. Check that it was copied whole.`);
-    assertKeyWorks(record, now);
+    assertKeyWorks(record, now, record.replacedById ? this.lastUse(record) : undefined);
     return record;
   }
 
@@ -449,8 +550,7 @@ export class KeyService {
   }
 
   serializeKey(key: ApiKey | KeyRecord, now: Date = new Date()): KeyJson {
-    const pending = this.pendingUse.get(key.id);
-    return serializeKey(key, now, pending === undefined ? undefined : new Date(pending));
+    return serializeKey(key, now, this.lastUse(key));
   }
 
   async flushLastUsed(): Promise<void> {
@@ -482,14 +582,25 @@ export class KeyService {
     return record;
   }
 
+  /**
+   * The id of a working key already cached for this exact text, without hashing or a database
+   * read; undefined otherwise (the front of the app uses it to refuse over-limit keys early).
+   */
+  cachedKeyIdFor(text: string): string | undefined {
+    const hash = this.hashes.get(text);
+    if (hash === undefined) return undefined;
+    const hit = this.byHash.get(hash);
+    return hit?.record && Date.now() - hit.at < KEY_CACHE_TTL_MS ? hit.record.id : undefined;
+  }
+
   /** How many keys each cache holds (for tests and diagnostics). */
   cacheSizes(): { known: number; unknown: number; hashes: number } {
     return { known: this.byHash.size, unknown: this.unknown.size, hashes: this.hashes.size };
   }
 }
 
-export function serializeKey(key: ApiKey | KeyRecord, now: Date = new Date(), pendingLastUsed?: Date): KeyJson {
-  const lastUsed = pendingLastUsed ?? (key.lastUsedAt ? new Date(key.lastUsedAt) : null);
+export function serializeKey(key: ApiKey | KeyRecord, now: Date = new Date(), lastUse?: Date | null): KeyJson {
+  const lastUsed = lastUse ?? (key.lastUsedAt ? new Date(key.lastUsedAt) : null);
   return {
     id: key.id,
     kind: key.kind,
@@ -501,10 +612,14 @@ export function serializeKey(key: ApiKey | KeyRecord, now: Date = new Date(), pe
     expiresAt: iso(key.expiresAt),
     revokedAt: iso(key.revokedAt),
     replacedById: key.replacedById,
-    graceUntil: iso(key.graceUntil),
+    replacesId: null,
+    replacedAt: iso(key.replacedAt ?? null),
+    retireQuietMinutes: key.replacedById ? (key.retireQuietMinutes ?? null) : null,
+    retireBy: key.replacedById ? iso(key.graceUntil) : null,
+    retiresAt: iso(retiresAt(key, lastUsed)),
     lastUsedAt: iso(lastUsed),
     createdAt: new Date(key.createdAt).toISOString(),
-    state: keyState(key, now),
+    state: keyState(key, now, lastUsed),
   };
 }
 

@@ -112,6 +112,20 @@ export function resetPasswordMail(to: string, name: string, link: string): Outgo
   };
 }
 
+/** To the owner of an address someone tried to sign up with again (the sign-up answer does not say it exists). */
+export function accountExistsMail(to: string, name: string, signInLink: string, resetLink: string): OutgoingMail {
+  return {
+    to,
+    subject: 'Someone tried to make a new Nadirline account with your address',
+    ...layout(
+      [`Hello ${name},`, 'Someone (perhaps you) tried to sign up for Nadirline with this e-mail address, which already has an account. No new account was made and nothing changed in yours.', `If you have forgotten your password, choose a new one here: ${resetLink}`],
+      signInLink,
+      'Sign in',
+      'If it was not you, you can ignore this message.',
+    ),
+  };
+}
+
 export function invitationMail(to: string, inviterName: string, organizationName: string, role: string, link: string): OutgoingMail {
   return {
     to,

@@ -15,6 +15,7 @@
  * process every change goes through SatelliteService, which invalidates at once.
  */
 import { toSatrec, type ElementSet } from '@nadirline/shared';
+import { LRUCache } from 'lru-cache';
 import type { SatRec } from 'satellite.js';
 import { ElementSetRecord, Satellite } from '../models/index.ts';
 
@@ -40,6 +41,8 @@ export interface ElementSetRow {
   createdAt: Date;
   uploadedByUserId: string | null;
   uploadedByKeyId: string | null;
+  continuity: object | string | null;
+  awaitingConfirmation: boolean;
 }
 
 export interface CurrentSet {
@@ -51,6 +54,17 @@ export interface CurrentSet {
 export interface CachedSatellite {
   satellite: SatelliteRecord;
   current: CurrentSet | null;
+}
+
+/**
+ * One usable stored set of a satellite's history (sets waiting for an editor's confirmation are
+ * left out): its epoch, and its parse and satrec made on first use.
+ */
+export interface HistoryEntry {
+  id: string;
+  epochMs: number;
+  /** The parsed set and satrec (read and made once, on first use). */
+  set(): Promise<CurrentSet>;
 }
 
 export function satelliteRecord(s: Satellite): SatelliteRecord {
@@ -75,6 +89,8 @@ export function elementSetRow(r: ElementSetRecord): ElementSetRow {
     createdAt: new Date(r.createdAt),
     uploadedByUserId: r.uploadedByUserId,
     uploadedByKeyId: r.uploadedByKeyId,
+    continuity: r.continuity ?? null,
+    awaitingConfirmation: Boolean(r.awaitingConfirmation),
   };
 }
 
@@ -91,19 +107,23 @@ export function currentSetOf(r: ElementSetRecord): CurrentSet {
 }
 
 export class OrbitCache {
-  private readonly entries = new Map<string, { value: CachedSatellite | null; at: number }>();
+  /** Satellites by id (least recently used go first); unknown ids in their own small cache, so guessed ids cannot evict real ones. */
+  private readonly entries = new LRUCache<string, { value: CachedSatellite; at: number }>({ max: MAX_ENTRIES });
+  private readonly missing = new LRUCache<string, true>({ max: 1_000, ttl: 5_000 });
   private readonly loading = new Map<string, Promise<CachedSatellite | null>>();
+  private readonly histories = new Map<string, { value: Promise<HistoryEntry[]>; at: number }>();
 
   /** The cached entry without waiting: undefined when it must be loaded (call get). */
   peek(satelliteId: string): CachedSatellite | null | undefined {
     const hit = this.entries.get(satelliteId);
-    if (hit && Date.now() - hit.at < (hit.value ? ORBIT_CACHE_TTL_MS : 5_000)) return hit.value;
+    if (hit && Date.now() - hit.at < ORBIT_CACHE_TTL_MS) return hit.value;
+    if (this.missing.has(satelliteId)) return null;
     return undefined;
   }
 
   async get(satelliteId: string): Promise<CachedSatellite | null> {
-    const hit = this.entries.get(satelliteId);
-    if (hit && Date.now() - hit.at < (hit.value ? ORBIT_CACHE_TTL_MS : 5_000)) return hit.value;
+    const known = this.peek(satelliteId);
+    if (known !== undefined) return known;
     let p = this.loading.get(satelliteId);
     if (!p) {
       p = this.load(satelliteId).finally(() => this.loading.delete(satelliteId));
@@ -114,10 +134,47 @@ export class OrbitCache {
 
   invalidate(satelliteId: string): void {
     this.entries.delete(satelliteId);
+    this.histories.delete(satelliteId);
+    this.missing.delete(satelliteId);
   }
 
   clear(): void {
     this.entries.clear();
+    this.histories.clear();
+    this.missing.clear();
+  }
+
+  /**
+   * The satellite's usable sets, earliest epoch first (for times before the current set's
+   * epoch). Rows are read once per ORBIT_CACHE_TTL_MS; each set is parsed on first use.
+   */
+  history(satelliteId: string): Promise<HistoryEntry[]> {
+    const hit = this.histories.get(satelliteId);
+    if (hit && Date.now() - hit.at < ORBIT_CACHE_TTL_MS) return hit.value;
+    const value = ElementSetRecord.findAll({
+      where: { satelliteId, awaitingConfirmation: false },
+      attributes: ['id', 'epoch'],
+      order: [['epoch', 'ASC'], ['createdAt', 'ASC']],
+    }).then((rows) =>
+      rows.map((row) => {
+        let made: Promise<CurrentSet> | undefined;
+        return {
+          id: row.id,
+          epochMs: new Date(row.epoch).getTime(),
+          set() {
+            made ??= ElementSetRecord.findByPk(row.id).then((r) => {
+              if (!r) throw new Error(`element set ${row.id} vanished`);
+              return currentSetOf(r);
+            });
+            return made;
+          },
+        };
+      }),
+    );
+    value.catch(() => this.histories.delete(satelliteId));
+    if (this.histories.size >= MAX_ENTRIES) this.histories.clear();
+    this.histories.set(satelliteId, { value, at: Date.now() });
+    return value;
   }
 
   private async load(satelliteId: string): Promise<CachedSatellite | null> {
@@ -132,8 +189,8 @@ export class OrbitCache {
       }
       value = { satellite: satelliteRecord(sat), current };
     }
-    if (this.entries.size >= MAX_ENTRIES) this.entries.clear();
-    this.entries.set(satelliteId, { value, at: Date.now() });
+    if (value) this.entries.set(satelliteId, { value, at: Date.now() });
+    else this.missing.set(satelliteId, true);
     return value;
   }
 }

@@ -37,7 +37,7 @@ export type MemberJson = MemberOfContract;
 export type InvitationJson = InvitationOfContract;
 
 export function serializeOrganization(org: Organization): OrganizationJson {
-  return { id: org.id, name: org.name, plan: org.plan, createdAt: new Date(org.createdAt).toISOString() };
+  return { id: org.id, name: org.name, plan: org.plan, confirmSuspiciousSets: Boolean(org.confirmSuspiciousSets), createdAt: new Date(org.createdAt).toISOString() };
 }
 
 function hashToken(token: string): string {

@@ -27,7 +27,9 @@
 import { nanoid } from 'nanoid';
 import { UniqueConstraintError } from 'sequelize';
 import {
+  checkContinuity,
   deriveElements,
+  piecewiseWindows,
   fromKeplerian,
   propagateAt,
   readElementSets,
@@ -41,11 +43,12 @@ import {
   type ElementSet,
   type ElementSetSource,
   type ParsedEntry,
+  type WindowPart,
 } from '@nadirline/shared';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
-import { ApiKey, ElementSetRecord, Satellite, User } from '../models/index.ts';
-import { OrbitCache, parsedOf, type CachedSatellite } from './orbit-cache.ts';
+import { ApiKey, ElementSetRecord, Organization, Satellite, User } from '../models/index.ts';
+import { OrbitCache, parsedOf, type CachedSatellite, type CurrentSet } from './orbit-cache.ts';
 import type { V1ElementSetSummary, V1Satellite } from '@nadirline/shared/contract';
 
 export const MAX_ELEMENT_TEXT_CHARS = 2_000_000;
@@ -73,7 +76,62 @@ export interface ReportEntry {
   message?: string;
   column?: number;
   file?: string;
+  /** The continuity check of a newly stored set (null: the satellite had no earlier set). */
+  continuity?: ContinuityView | null;
+  /** The set is held until an editor confirms it (organization setting). */
+  awaitingConfirmation?: boolean;
 }
+
+/** The continuity check as stored with a set and shown by /v1 and /api (figures rounded). */
+export type ContinuityView =
+  | {
+      classification: 'continues' | 'manoeuvre' | 'does-not-continue';
+      summary: string;
+      reason: string;
+      previousElementSetId: string;
+      previousEpoch: string;
+      spanDays: number;
+      positionDifferenceKm: number;
+      radialKm: number;
+      alongTrackKm: number;
+      crossTrackKm: number;
+      alongTrackTimingS: number;
+      semiMajorAxisChangeKm: number;
+      eccentricityChange: number;
+      inclinationChangeDeg: number;
+      raanChangeDeg: number;
+      catalogNumberChanged: boolean;
+    }
+  | { classification: 'not-checked'; summary: string; reason: string; previousElementSetId: string; previousEpoch: string; spanDays: number };
+
+const r3 = (v: number) => Math.round(v * 1000) / 1000;
+const r4 = (v: number) => Math.round(v * 10_000) / 10_000;
+
+/** Compare the set before `next` (by epoch) with it: the previous set's prediction at next's epoch. */
+export function continuityOf(previous: { id: string; elementSet: ElementSet }, next: ElementSet): ContinuityView {
+  const base = { previousElementSetId: previous.id, previousEpoch: previous.elementSet.epochIso, spanDays: r4((next.epochMs - previous.elementSet.epochMs) / DAY_MS) };
+  const r = checkContinuity({ elementSet: previous.elementSet, satrec: toSatrec(previous.elementSet) }, { elementSet: next, satrec: toSatrec(next) });
+  if (!r.ok) return { classification: 'not-checked', summary: 'not checked', reason: `The previous set could not be carried to this epoch: ${r.message}.`, ...base };
+  return {
+    classification: r.classification,
+    summary: r.summary,
+    reason: r.reason,
+    ...base,
+    positionDifferenceKm: r3(r.positionDifferenceKm),
+    radialKm: r3(r.radialKm),
+    alongTrackKm: r3(r.alongTrackKm),
+    crossTrackKm: r3(r.crossTrackKm),
+    alongTrackTimingS: Math.round(r.alongTrackTimingS * 100) / 100,
+    semiMajorAxisChangeKm: r3(r.semiMajorAxisChangeKm),
+    eccentricityChange: Math.round(r.eccentricityChange * 1e7) / 1e7,
+    inclinationChangeDeg: r4(r.inclinationChangeDeg),
+    raanChangeDeg: r4(r.raanChangeDeg),
+    catalogNumberChanged: r.catalogNumberChanged,
+  };
+}
+
+/** Suspicious: the check found a manoeuvre or a set that does not continue the orbit. */
+export const isSuspicious = (c: ContinuityView | null | undefined) => c?.classification === 'manoeuvre' || c?.classification === 'does-not-continue';
 
 export interface UploadResult {
   report: ReportEntry[];
@@ -86,7 +144,7 @@ export interface UploadResult {
   created: ElementSetRecord[];
 }
 
-/** A set's summary as /v1 documents it (the console reads it as the contract's ElementSetSummary). */
+/** A set's summary as /v1 documents it (the console reads it as the contract's ElementSetSummary), continuity included. */
 export type ElementSetSummary = V1ElementSetSummary;
 
 /** The satellite as /v1 documents it and the console shows it (the contract's V1Satellite; the console reads it as SatelliteListItem). */
@@ -237,7 +295,11 @@ export class SatelliteService {
   }
 
   summary(
-    record: Pick<ElementSetRecord, 'id' | 'source' | 'epoch' | 'createdAt' | 'uploadedByUserId' | 'uploadedByKeyId'> & { parsed?: object },
+    record: Pick<ElementSetRecord, 'id' | 'source' | 'epoch' | 'createdAt' | 'uploadedByUserId' | 'uploadedByKeyId'> & {
+      parsed?: object;
+      continuity?: object | string | null;
+      awaitingConfirmation?: boolean | null;
+    },
     es: ElementSet,
     now: Date = new Date(),
     uploaders?: Map<string, string>,
@@ -255,7 +317,43 @@ export class SatelliteService {
       createdAt: new Date(record.createdAt).toISOString(),
       catalogNumber: es.catalogNumber,
       name: es.name,
+      continuity: continuityJson(record.continuity),
+      awaitingConfirmation: Boolean(record.awaitingConfirmation),
     };
+  }
+
+  /**
+   * The sets in force over [startMs, endMs], one part per set (piecewiseWindows of the engine).
+   * Times at or after the current set's epoch need no database read.
+   */
+  async setsInForce(c: CachedSatellite, startMs: number, endMs: number): Promise<WindowPart<CurrentSet>[]> {
+    const cur = c.current;
+    if (!cur) return [];
+    if (startMs >= cur.elementSet.epochMs) return [{ set: cur, startMs, endMs }];
+    const history = await this.cache.history(c.satellite.id);
+    const parts = piecewiseWindows(history, startMs, endMs);
+    return Promise.all(parts.map(async (p) => ({ set: p.set.id === cur.record.id ? cur : await p.set.set(), startMs: p.startMs, endMs: p.endMs })));
+  }
+
+  /** The set in force at tMs (latest epoch at or before it, else the earliest), or null without sets. */
+  async setAt(c: CachedSatellite, tMs: number): Promise<CurrentSet | null> {
+    const parts = await this.setsInForce(c, tMs, tMs);
+    return parts[0]?.set ?? null;
+  }
+
+  /** Make a held set usable (an editor confirmed it); it becomes current when its epoch is the latest. */
+  async confirmElementSet(orgId: string, esId: string, userId: string): Promise<ElementSetRecord> {
+    const record = await this.getElementSet(orgId, esId);
+    if (!record.awaitingConfirmation) {
+      throw new HttpError('conflict', 'This element set is not waiting for confirmation; it is in use already.');
+    }
+    await this.ctx.sequelize.transaction(async (transaction) => {
+      await record.update({ awaitingConfirmation: false, confirmedAt: new Date(), confirmedByUserId: userId }, { transaction });
+      const latest = await ElementSetRecord.findOne({ where: { satelliteId: record.satelliteId, awaitingConfirmation: false }, order: [['epoch', 'DESC']], attributes: ['id'], transaction });
+      await Satellite.update({ currentElementSetId: latest?.id ?? null }, { where: { id: record.satelliteId }, transaction });
+    });
+    this.cache.invalidate(record.satelliteId);
+    return record;
   }
 
   derived(es: ElementSet, now: Date = new Date()): DerivedElements {
@@ -338,13 +436,28 @@ export class SatelliteService {
   private async storeEntriesOnce(satellite: Satellite, batch: BatchItem[], actor: Actor): Promise<UploadResult> {
     const report: ReportEntry[] = [];
     const created: ElementSetRecord[] = [];
+    const org = await Organization.findByPk(satellite.organizationId, { attributes: ['id', 'confirmSuspiciousSets'] });
+    const holdSuspicious = Boolean(org?.confirmSuspiciousSets);
     let catalog = satellite.catalogNumber;
     await this.ctx.sequelize.transaction(async (transaction) => {
       const locked = await Satellite.findByPk(satellite.id, { transaction, lock: transaction.LOCK.UPDATE, attributes: ['id', 'catalogNumber'] });
       if (!locked) throw new HttpError('not-found', 'The satellite was deleted meanwhile.');
       catalog = locked.catalogNumber;
-      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch'], transaction });
+      const existing = await ElementSetRecord.findAll({ where: { satelliteId: satellite.id }, attributes: ['id', 'epoch', 'awaitingConfirmation'], transaction });
       const byEpoch = new Map(existing.map((r) => [new Date(r.epoch).getTime(), r.id]));
+      // Usable sets by epoch, for the continuity check of each new one against the set before it.
+      const usable = existing.filter((r) => !r.awaitingConfirmation).map((r) => ({ id: r.id, epochMs: new Date(r.epoch).getTime(), elementSet: undefined as ElementSet | undefined }));
+      const previousOf = async (epochMs: number) => {
+        let best: (typeof usable)[number] | undefined;
+        for (const u of usable) if (u.epochMs < epochMs && (!best || u.epochMs > best.epochMs)) best = u;
+        if (!best) return undefined;
+        if (!best.elementSet) {
+          const row = await ElementSetRecord.findByPk(best.id, { attributes: ['id', 'parsed'], transaction });
+          if (!row) return undefined;
+          best.elementSet = parsedOf(row);
+        }
+        return { id: best.id, elementSet: best.elementSet };
+      };
       for (const { entry, file, raw } of batch) {
         const base = reportOf(entry, file);
         if (!entry.result.ok) {
@@ -373,9 +486,15 @@ export class SatelliteService {
           report.push({ ...base, ok: true, elementSetId: dup, duplicate: true });
           continue;
         }
+        const previous = await previousOf(epochMs);
+        const continuity = previous ? continuityOf(previous, es) : null;
+        const hold = holdSuspicious && isSuspicious(continuity);
         const record = await ElementSetRecord.create(
           {
             id: `es_${nanoid(14)}`,
+            continuity: continuity as object | null,
+            continuityClass: continuity?.classification ?? null,
+            awaitingConfirmation: hold,
             satelliteId: satellite.id,
             source: es.source,
             rawText: raw,
@@ -387,12 +506,13 @@ export class SatelliteService {
           { transaction },
         );
         byEpoch.set(epochMs, record.id);
+        if (!hold) usable.push({ id: record.id, epochMs, elementSet: es });
         created.push(record);
         if (!catalog && es.catalogNumber && es.source !== 'kepler') catalog = es.catalogNumber;
-        report.push({ ...base, ok: true, elementSetId: record.id });
+        report.push({ ...base, ok: true, elementSetId: record.id, continuity, ...(hold ? { awaitingConfirmation: true } : {}) });
       }
       if (created.length > 0) {
-        const latest = await ElementSetRecord.findOne({ where: { satelliteId: satellite.id }, order: [['epoch', 'DESC']], attributes: ['id'], transaction });
+        const latest = await ElementSetRecord.findOne({ where: { satelliteId: satellite.id, awaitingConfirmation: false }, order: [['epoch', 'DESC']], attributes: ['id'], transaction });
         await satellite.update({ currentElementSetId: latest?.id ?? null, catalogNumber: catalog }, { transaction });
       }
     });
@@ -401,6 +521,12 @@ export class SatelliteService {
     const duplicates = report.filter((r) => r.ok && r.duplicate).length;
     return { report, accepted, duplicates, rejected: report.length - accepted, created };
   }
+}
+
+/** Stored continuity JSON (SQLite may hand JSON columns back as text). */
+function continuityJson(v: object | string | null | undefined): ContinuityView | null {
+  if (v === null || v === undefined) return null;
+  return (typeof v === 'string' ? JSON.parse(v) : v) as ContinuityView;
 }
 
 export interface BatchItem {

@@ -1,10 +1,14 @@
 /**
  * Usage counting: every keyed /v1 request is counted per organization, key, route template and
- * UTC day, in memory; the counts are added to UsageDaily every USAGE_FLUSH_MS and on close.
+ * UTC day when it arrives (what the monthly quota counts: errors included), and once answered
+ * per UTC hour and HTTP status and per calling origin and day; all in memory, added to
+ * UsageDaily, UsageHourly and UsageOriginDaily every USAGE_FLUSH_MS and on close.
  * Nothing on the request path writes to the database.
  *
  * Exported API (ctx.services.usage is a UsageRecorder):
  *   record(orgId, keyId, endpoint, at?)          endpoint = route template, e.g. "GET /v1/satellites/{id}/track"
+ *   recordOutcome(orgId, keyId, endpoint, at, status, origin)   the answer's status and the calling origin (null: none)
+ *   origins(orgId, keyIds, sinceDay) -> Promise<Map<keyId, KeyOrigin[]>>   origins seen per key since a UTC day
  *   flush() -> Promise<void>                     (runs by itself; call it in tests to settle counts)
  *   processCount(orgId, 'YYYY-MM') / flushedCount(orgId, 'YYYY-MM') -> number   (for the quota)
  *   report(orgId, { from, to }, keyNames?) -> Promise<UsageReport>   (the console's usage answer minus quota)
@@ -15,12 +19,14 @@
  */
 import { Op } from 'sequelize';
 import type { AppContext } from '../context.ts';
-import { ApiKey, UsageDaily } from '../models/index.ts';
-import type { UsageReport as UsageAnswer } from '@nadirline/shared/contract';
+import { ApiKey, UsageDaily, UsageHourly, UsageOriginDaily } from '../models/index.ts';
+import type { KeyOrigin, UsageReport as UsageAnswer } from '@nadirline/shared/contract';
 
 const SEP = '\u0000';
 
 export type UsageRow = UsageAnswer['rows'][number];
+
+export type { KeyOrigin };
 
 /** The counts of GET /api/orgs/:org/usage (the route adds the window and the quota). */
 export type UsageReport = Omit<UsageAnswer, 'from' | 'to' | 'quota'>;
@@ -42,7 +48,19 @@ export function daysBetween(from: string, to: string): string[] {
   return out;
 }
 
+/** UTC hour YYYY-MM-DDTHH of a time. */
+export function utcHour(at: Date | number): string {
+  return new Date(typeof at === 'number' ? at : at.getTime()).toISOString().slice(0, 13);
+}
+
+/** The longest origin text kept; longer ones are cut (they are not origins a browser sends). */
+const MAX_ORIGIN_LENGTH = 300;
+
 export class UsageRecorder {
+  /** org SEP key SEP endpoint SEP hour SEP status -> answers not yet written. */
+  private pendingHourly = new Map<string, number>();
+  /** org SEP key SEP origin SEP day -> requests not yet written. */
+  private pendingOrigins = new Map<string, number>();
   /** org SEP key SEP endpoint SEP day -> count not yet written. */
   private pending = new Map<string, number>();
   /** org SEP YYYY-MM -> everything counted by this process. */
@@ -70,6 +88,14 @@ export class UsageRecorder {
     this.counted.set(m, (this.counted.get(m) ?? 0) + 1);
   }
 
+  /** The answer to a counted request: its status per hour, and the origin that called. */
+  recordOutcome(orgId: string, keyId: string, endpoint: string, at: Date | number, status: number, origin: string | null): void {
+    const h = `${orgId}${SEP}${keyId}${SEP}${endpoint}${SEP}${utcHour(at)}${SEP}${status}`;
+    this.pendingHourly.set(h, (this.pendingHourly.get(h) ?? 0) + 1);
+    const o = `${orgId}${SEP}${keyId}${SEP}${(origin ?? '').toLowerCase().slice(0, MAX_ORIGIN_LENGTH)}${SEP}${utcDay(at)}`;
+    this.pendingOrigins.set(o, (this.pendingOrigins.get(o) ?? 0) + 1);
+  }
+
   processCount(orgId: string, month: string): number {
     return this.counted.get(`${orgId}${SEP}${month}`) ?? 0;
   }
@@ -91,7 +117,7 @@ export class UsageRecorder {
   /** Write pending counts. Concurrent calls share one flush and then run once more. */
   async flush(): Promise<void> {
     while (this.flushing) await this.flushing;
-    if (this.pending.size === 0) return;
+    if (this.pending.size === 0 && this.pendingHourly.size === 0 && this.pendingOrigins.size === 0) return;
     this.flushing = this.flushOnce().finally(() => {
       this.flushing = undefined;
     });
@@ -100,9 +126,25 @@ export class UsageRecorder {
 
   private async flushOnce(): Promise<void> {
     const batch = this.pending;
+    const hourly = this.pendingHourly;
+    const origins = this.pendingOrigins;
     this.pending = new Map();
+    this.pendingHourly = new Map();
+    this.pendingOrigins = new Map();
     try {
       await this.ctx.sequelize.transaction(async (transaction) => {
+        for (const [k, n] of hourly) {
+          const [organizationId, apiKeyId, endpoint, hour, status] = k.split(SEP) as [string, string, string, string, string];
+          const where = { organizationId, apiKeyId, endpoint, hour, status: Number(status) };
+          const [row, created] = await UsageHourly.findOrCreate({ where, defaults: { ...where, count: n }, transaction });
+          if (!created) await row.increment('count', { by: n, transaction });
+        }
+        for (const [k, n] of origins) {
+          const [organizationId, apiKeyId, origin, day] = k.split(SEP) as [string, string, string, string];
+          const where = { organizationId, apiKeyId, origin, day };
+          const [row, created] = await UsageOriginDaily.findOrCreate({ where, defaults: { ...where, count: n }, transaction });
+          if (!created) await row.increment('count', { by: n, transaction });
+        }
         for (const [k, n] of batch) {
           const [organizationId, apiKeyId, endpoint, day] = k.split(SEP) as [string, string, string, string];
           const [row, created] = await UsageDaily.findOrCreate({
@@ -120,6 +162,8 @@ export class UsageRecorder {
       }
     } catch (err) {
       for (const [k, n] of batch) this.pending.set(k, (this.pending.get(k) ?? 0) + n);
+      for (const [k, n] of hourly) this.pendingHourly.set(k, (this.pendingHourly.get(k) ?? 0) + n);
+      for (const [k, n] of origins) this.pendingOrigins.set(k, (this.pendingOrigins.get(k) ?? 0) + n);
       this.ctx.logger.error({ err }, 'could not write usage counters; they will be retried');
     }
   }
@@ -142,9 +186,70 @@ export class UsageRecorder {
     return [...merged.values()].sort((a, b) => a.day.localeCompare(b.day) || a.apiKeyId.localeCompare(b.apiKeyId) || a.endpoint.localeCompare(b.endpoint));
   }
 
+  /** Answers per hour and status between two UTC days (inclusive), unwritten ones included. */
+  async hourlyRows(orgId: string, range: { from: string; to: string }): Promise<Array<{ hour: string; status: number; count: number }>> {
+    const stored = await UsageHourly.findAll({
+      where: { organizationId: orgId, hour: { [Op.between]: [`${range.from}T00`, `${range.to}T23`] } },
+      attributes: ['hour', 'status', 'count'],
+      raw: true,
+    });
+    const out = stored.map((r) => ({ hour: r.hour, status: Number(r.status), count: Number(r.count) }));
+    for (const [k, count] of this.pendingHourly) {
+      const [o, , , hour, status] = k.split(SEP) as [string, string, string, string, string];
+      if (o === orgId && hour >= `${range.from}T00` && hour <= `${range.to}T23`) out.push({ hour, status: Number(status), count });
+    }
+    return out;
+  }
+
+  /** Requests per key and calling origin between two UTC days (inclusive), unwritten ones included. */
+  async originRows(orgId: string, range: { from: string; to: string }, keyIds?: string[]): Promise<Array<{ apiKeyId: string; origin: string; day: string; count: number }>> {
+    const stored = await UsageOriginDaily.findAll({
+      where: { organizationId: orgId, day: { [Op.between]: [range.from, range.to] }, ...(keyIds ? { apiKeyId: keyIds } : {}) },
+      attributes: ['apiKeyId', 'origin', 'day', 'count'],
+      raw: true,
+    });
+    const out = stored.map((r) => ({ apiKeyId: r.apiKeyId, origin: r.origin, day: r.day, count: Number(r.count) }));
+    const wanted = keyIds ? new Set(keyIds) : null;
+    for (const [k, count] of this.pendingOrigins) {
+      const [o, apiKeyId, origin, day] = k.split(SEP) as [string, string, string, string];
+      if (o === orgId && day >= range.from && day <= range.to && (!wanted || wanted.has(apiKeyId))) out.push({ apiKeyId, origin, day, count });
+    }
+    return out;
+  }
+
+  /** The origins that called each key since `sinceDay` (UTC, inclusive), busiest first. */
+  async origins(orgId: string, keyIds: string[], sinceDay: string): Promise<Map<string, KeyOrigin[]>> {
+    const result = new Map<string, KeyOrigin[]>();
+    if (keyIds.length === 0) return result;
+    const rows = await this.originRows(orgId, { from: sinceDay, to: '9999-12-31' }, keyIds);
+    const merged = new Map<string, Map<string, KeyOrigin>>();
+    for (const r of rows) {
+      let perKey = merged.get(r.apiKeyId);
+      if (!perKey) merged.set(r.apiKeyId, (perKey = new Map()));
+      const prev = perKey.get(r.origin);
+      if (prev) {
+        prev.count += r.count;
+        if (r.day > prev.lastDay) prev.lastDay = r.day;
+      } else perKey.set(r.origin, { origin: r.origin, count: r.count, lastDay: r.day });
+    }
+    for (const [keyId, perKey] of merged) result.set(keyId, [...perKey.values()].sort((a, b) => b.count - a.count || a.origin.localeCompare(b.origin)));
+    return result;
+  }
+
   /** The console's usage answer (without `quota`, which QuotaService.status gives). */
   async report(orgId: string, range: { from: string; to: string }): Promise<UsageReport> {
-    const rows = await this.rows(orgId, range);
+    const [rows, hourly, originRows] = await Promise.all([this.rows(orgId, range), this.hourlyRows(orgId, range), this.originRows(orgId, range)]);
+    const perHour = new Map<string, number>();
+    for (const day of daysBetween(range.from, range.to).slice(0, 31)) {
+      for (let h = 0; h < 24; h++) perHour.set(`${day}T${String(h).padStart(2, '0')}`, 0);
+    }
+    const perStatus = new Map<number, number>();
+    for (const r of hourly) {
+      if (perHour.has(r.hour)) perHour.set(r.hour, (perHour.get(r.hour) ?? 0) + r.count);
+      perStatus.set(r.status, (perStatus.get(r.status) ?? 0) + r.count);
+    }
+    const perOrigin = new Map<string, number>();
+    for (const r of originRows) perOrigin.set(r.origin, (perOrigin.get(r.origin) ?? 0) + r.count);
     const perDay = new Map<string, number>(daysBetween(range.from, range.to).map((d) => [d, 0]));
     const perKey = new Map<string, number>();
     const perRoute = new Map<string, number>();
@@ -160,6 +265,9 @@ export class UsageRecorder {
     }
     return {
       days: [...perDay].map(([day, count]) => ({ day, count })),
+      hours: [...perHour].map(([hour, count]) => ({ hour, count })),
+      byStatus: [...perStatus].map(([status, count]) => ({ status, count })).sort((a, b) => a.status - b.status),
+      byOrigin: [...perOrigin].map(([origin, count]) => ({ origin, count })).sort((a, b) => b.count - a.count || a.origin.localeCompare(b.origin)),
       byKey: [...perKey].map(([apiKeyId, count]) => ({ apiKeyId, name: names.get(apiKeyId) ?? 'deleted key', count })).sort((a, b) => b.count - a.count),
       byRoute: [...perRoute].map(([endpoint, count]) => ({ endpoint, count })).sort((a, b) => b.count - a.count),
       rows,

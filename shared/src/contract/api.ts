@@ -7,7 +7,9 @@
  */
 import type { KeplerianInput } from '../elements/kepler.ts';
 import type { ElementSetSource } from '../types.ts';
-import type { V1ElementSetSummary, V1ReportEntry, V1Satellite } from './v1.ts';
+import type { Continuity, V1ElementSetSummary, V1ReportEntry, V1Satellite } from './v1.ts';
+
+export type { Continuity };
 import type { DerivedElements, Staleness } from '../orbit/elements-derived.ts';
 
 export type { ElementSetSource, Staleness };
@@ -31,6 +33,8 @@ export interface OrganizationRef {
 
 export interface Organization extends OrganizationRef {
   createdAt: string;
+  /** Hold element sets that do not continue the orbit until an editor confirms them. */
+  confirmSuspiciousSets: boolean;
 }
 
 export interface Membership {
@@ -74,6 +78,10 @@ export interface ElementSetSummary extends Omit<V1ElementSetSummary, 'source' | 
   source: ElementSetSource | (string & {});
   /** Who stored the set: a member's name or "key <name>"; readers also take a { name, email } object. */
   uploadedBy: string | { name: string; email?: string } | null;
+  /** Figures for the history chart (GET .../element-sets only). */
+  meanMotionRevPerDay?: number;
+  apogeeAltKm?: number;
+  perigeeAltKm?: number;
 }
 
 /** The `/v1/satellites/{id}/elements` object (the engine's derived elements, `staleness` included). */
@@ -108,7 +116,11 @@ export type KeplerInput = KeplerianInput;
 export type ExportFormat = 'tle' | 'omm-kvn' | 'omm-xml' | 'omm-json';
 
 export type KeyKind = 'browser' | 'server';
-export type KeyState = 'active' | 'grace' | 'expired' | 'revoked';
+/**
+ * active: in use; retiring: replaced, still answering until it is quiet (or its retire-by date);
+ * retired: replaced and no longer answering; expired: past expiresAt; revoked: stopped by hand.
+ */
+export type KeyState = 'active' | 'retiring' | 'retired' | 'expired' | 'revoked';
 export type KeyScope = 'read' | 'element-sets:write' | (string & {});
 
 export interface ApiKey {
@@ -122,10 +134,45 @@ export interface ApiKey {
   expiresAt: string | null;
   revokedAt: string | null;
   replacedById: string | null;
-  graceUntil: string | null;
+  /** The key this one replaced (set by the key list and the rotate answer). */
+  replacesId: string | null;
+  replacedAt: string | null;
+  /** A replaced key retires once unused this many minutes (null: only retireBy applies). */
+  retireQuietMinutes: number | null;
+  /** A replaced key retires at this time at the latest. */
+  retireBy: string | null;
+  /** When a replaced key retires if nothing calls it again (past: when it retired). */
+  retiresAt: string | null;
   lastUsedAt: string | null;
   createdAt: string;
   state: KeyState;
+  /** What uses the key (the console's key routes always send it). */
+  use: KeyUse;
+}
+
+/** An origin that called a key lately ('' = requests that named none, e.g. a backend). */
+export interface KeyOrigin {
+  origin: string;
+  count: number;
+  /** Last UTC day (YYYY-MM-DD) it called. */
+  lastDay: string;
+}
+
+/** What uses a key: the embeds reading with it and the origins that called it since `originsSince` (UTC day). */
+export interface KeyUse {
+  embeds: { id: string; name: string }[];
+  origins: KeyOrigin[];
+  originsSince: string;
+}
+
+/** POST /api/orgs/:org/keys/:id/rotate */
+export interface KeyRotateInput {
+  /** The new key's name; it must differ from the old one's. */
+  name: string;
+  /** The old key retires once unused this many minutes (0 = at once). */
+  quietMinutes: number;
+  /** ... and at the latest at this time (ISO 8601). */
+  retireBy: string;
 }
 
 export interface KeyCreateInput {
@@ -188,6 +235,12 @@ export interface UsageReport {
   from: string;
   to: string;
   days: { day: string; count: number }[];
+  /** UTC hours 'YYYY-MM-DDTHH' of the first 31 days of the range, each present. */
+  hours: { hour: string; count: number }[];
+  /** Answers by HTTP status; all of them count against the quota. */
+  byStatus: { status: number; count: number }[];
+  /** Requests by calling origin ('' = none named). */
+  byOrigin: { origin: string; count: number }[];
   byKey: { apiKeyId: string; name: string; count: number }[];
   byRoute: { endpoint: string; count: number }[];
   rows: { day: string; apiKeyId: string; endpoint: string; count: number }[];
@@ -222,10 +275,64 @@ export interface PreviewToken {
   expiresIn: number;
 }
 
+export interface Subscription {
+  plan: PlanId;
+  /** The provider's word: active, past_due, canceled, ... ('none' when no paid subscription backs the plan). */
+  status: string;
+  currentPeriodEnd: string | null;
+  cancelAtPeriodEnd: boolean;
+  /** After a failed payment the paid plan is kept until then. */
+  graceUntil: string | null;
+  /** When the organization fell back to Starter because payment stayed overdue. */
+  lapsedAt: string | null;
+  provider: 'none' | 'external';
+}
+
+export interface Invoice {
+  id: string;
+  number: string | null;
+  status: string;
+  /** Minor units (cents). */
+  amountDue: number;
+  amountPaid: number;
+  currency: string;
+  periodStart: string | null;
+  periodEnd: string | null;
+  issuedAt: string;
+  /** The payment provider's pages for this invoice. */
+  hostedUrl: string | null;
+  pdfUrl: string | null;
+}
+
+/** GET /api/orgs/:org/billing */
 export interface Billing {
   plan: PlanId;
   plans: Plan[];
-  subscription: { plan: PlanId; status: string; currentPeriodEnd: string | null; provider: 'none' | 'external' } | null;
+  subscription: Subscription | null;
+  /** False when the server has no payment provider: paid plans cannot be bought. */
+  paymentsAvailable: boolean;
+  /** Newest first. */
+  invoices: Invoice[];
+}
+
+export type NoticeKind = 'quota' | 'stale-digest' | 'payment-failed' | 'plan-changed';
+
+/** GET /api/orgs/:org/notices */
+export interface OrgNotice {
+  id: number;
+  kind: NoticeKind;
+  subject: string;
+  body: string;
+  createdAt: string;
+  detail: Record<string, unknown>;
+}
+
+/** GET /api/me/notices */
+export interface NoticePreference {
+  kind: NoticeKind;
+  label: string;
+  roles: Role[];
+  email: boolean;
 }
 
 /** One field-level problem (problem+json `errors[]`). */

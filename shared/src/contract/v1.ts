@@ -29,11 +29,22 @@ export const CAPS = {
   /** Largest element-set body or file, bytes. */
   uploadMaxBytes: 2 * 1024 * 1024,
   uploadMaxFiles: 20,
-  /** Farthest from now a time parameter may lie, days (propagation is refused beyond a year of epoch anyway). */
-  maxTimeOffsetDays: 366,
+  /**
+   * Farthest a time may lie from the epoch of the element set in force at it, days, either side
+   * (the engine's MAX_PROPAGATION_SPAN_DAYS): beyond it the answer is 422 propagation-failed with
+   * reason too-far-from-epoch.
+   */
+  maxDaysFromEpoch: 365,
+  /** Times are accepted from this year to the last one (the set in force decides what can be computed). */
+  firstYear: 1957,
+  lastYear: 2199,
+  /** Step of pass sky paths (path=true), seconds; coarser for long passes so a path holds at most skyPathMaxPoints. */
+  skyPathStepS: 10,
+  skyPathMaxPoints: 200,
+  /** Longest pass calendar, days. */
+  calendarMaxDays: 14,
+  calendarDefaultDays: 7,
 } as const;
-
-const DAY_MS = 86_400_000;
 
 const ISO_EXAMPLE = '2025-01-31T12:00:00Z';
 
@@ -50,8 +61,8 @@ const isoTime = (description: string) =>
           ctx.addIssue({ code: 'custom', message: 'is not a real date and time' });
           return z.NEVER;
         }
-        if (Math.abs(ms - Date.now()) > CAPS.maxTimeOffsetDays * DAY_MS) {
-          ctx.addIssue({ code: 'custom', message: `must lie within ${CAPS.maxTimeOffsetDays} days of now` });
+        if (ms < Date.UTC(CAPS.firstYear, 0, 1) || ms >= Date.UTC(CAPS.lastYear + 1, 0, 1)) {
+          ctx.addIssue({ code: 'custom', message: `must lie between the years ${CAPS.firstYear} and ${CAPS.lastYear}` });
           return z.NEVER;
         }
         return ms;
@@ -128,6 +139,29 @@ export const passesQuery = z.object({
   minElevation: num(0, 89, `Elevation mask, degrees (default ${CAPS.passesDefaultMinElevationDeg}).`, 'an elevation mask, a number of degrees from 0 to 89').default(
     CAPS.passesDefaultMinElevationDeg,
   ),
+  path: expects(z.enum(['true', 'false']), 'true or false')
+    .default('false')
+    .transform((v) => v === 'true')
+    .meta({
+      description: `true adds each pass's path across the sky: points every ${CAPS.skyPathStepS} s from rise to set (coarser for long passes, at most ${CAPS.skyPathMaxPoints} points), each with azimuth, elevation, sunlit and dark (the observer's Sun below -6 deg).`,
+    }),
+});
+
+export const passesIcsQuery = z.object({
+  lat: passesQuery.shape.lat,
+  lon: passesQuery.shape.lon,
+  altM: passesQuery.shape.altM,
+  days: num(
+    0.01,
+    CAPS.calendarMaxDays,
+    `Days ahead from now (default ${CAPS.calendarDefaultDays}, at most ${CAPS.calendarMaxDays}).`,
+    `a number of days from 0.01 to ${CAPS.calendarMaxDays}`,
+  ).default(CAPS.calendarDefaultDays),
+  minElevation: passesQuery.shape.minElevation,
+  visible: expects(z.enum(['true', 'false']), 'true or false')
+    .default('false')
+    .transform((v) => v === 'true')
+    .meta({ description: 'true keeps only passes visible to the eye (satellite sunlit while the observer’s sky is dark).' }),
 });
 
 export const createSatelliteBody = expects(
@@ -147,6 +181,27 @@ export const createSatelliteBody = expects(
 
 const t = z.string().meta({ format: 'date-time', description: 'ISO 8601 UTC' });
 
+export const continuitySchema = z
+  .object({
+    classification: z.enum(['continues', 'manoeuvre', 'does-not-continue', 'not-checked']),
+    summary: z.string().meta({ description: 'continues the orbit / orbit raised or lowered (manoeuvre likely) / does not continue (check the catalog number and the source) / not checked' }),
+    reason: z.string().meta({ description: 'One sentence with the deciding figure' }),
+    previousElementSetId: z.string(),
+    previousEpoch: t,
+    spanDays: z.number().meta({ description: 'This epoch minus the previous set’s, days' }),
+    positionDifferenceKm: z.number().optional().meta({ description: 'Distance between the previous set’s prediction and this set at this epoch, km (absent when not checked)' }),
+    radialKm: z.number().optional(),
+    alongTrackKm: z.number().optional(),
+    crossTrackKm: z.number().optional(),
+    alongTrackTimingS: z.number().optional().meta({ description: 'Along-track difference as time, s; positive: the previous prediction runs ahead' }),
+    semiMajorAxisChangeKm: z.number().optional(),
+    eccentricityChange: z.number().optional(),
+    inclinationChangeDeg: z.number().optional(),
+    raanChangeDeg: z.number().optional().meta({ description: 'After carrying the previous node to this epoch by its secular drift' }),
+    catalogNumberChanged: z.boolean().optional(),
+  })
+  .meta({ description: 'The previous set (by epoch) propagated to this set’s epoch and compared with it; parts in the radial / along-track / cross-track frame of this set' });
+
 export const elementSetSummarySchema = z.object({
   id: z.string(),
   source: z.enum(['tle', 'omm-kvn', 'omm-xml', 'omm-json', 'kepler']),
@@ -157,6 +212,15 @@ export const elementSetSummarySchema = z.object({
   createdAt: t,
   catalogNumber: z.string(),
   name: z.string(),
+  continuity: continuitySchema.nullable().meta({ description: 'The continuity check made when the set arrived; null for a satellite\u2019s first set' }),
+  awaitingConfirmation: z.boolean().meta({ description: 'Held until an editor confirms it (organization setting); not used for any answer meanwhile' }),
+});
+
+/** The element set an answer was computed from, with its age at the answer's time. */
+export const elementSetRefSchema = z.object({
+  id: z.string(),
+  epoch: t,
+  ageDays: z.number().meta({ description: 'Age of the set at the answer’s time (a track part’s or pass window’s start), days; negative before the epoch' }),
 });
 
 export const derivedSchema = z.object({
@@ -196,12 +260,17 @@ export const positionSchema = z.object({
   speedKmS: z.number().meta({ description: 'Inertial speed, km/s' }),
   footprintRadiusKm: z.number().meta({ description: 'Ground distance to the horizon circle (0 deg elevation), km' }),
   sunlit: z.boolean(),
+  elementSet: elementSetRefSchema.meta({ description: 'The set in force at t: the latest epoch at or before t, else the earliest set' }),
 });
 
 export const trackPointSchema = z.object({ t, lat: z.number(), lon: z.number(), altKm: z.number(), sunlit: z.boolean() });
 export const trackSchema = z.object({
   satelliteId: z.string(),
-  elementSetId: z.string(),
+  elementSetId: z.string().meta({ description: 'The set in force at start (the first part’s)' }),
+  elementSet: elementSetRefSchema.meta({ description: 'The set in force at start, with its age there' }),
+  parts: z
+    .array(z.object({ elementSet: elementSetRefSchema, start: t, end: t, firstIndex: z.number().int(), count: z.number().int() }))
+    .meta({ description: 'The track split where the set in force changes: points[firstIndex ..< firstIndex + count] come from elementSet. One part when one set covers the window.' }),
   start: t,
   end: t,
   stepS: z.number(),
@@ -232,9 +301,15 @@ export const passSchema = z.object({
   visible: z.boolean().meta({ description: 'Sunlit satellite while the observer is in darkness (Sun below -6 deg) at some moment of the pass' }),
   inProgressAtStart: z.boolean(),
   inProgressAtEnd: z.boolean(),
+  path: z
+    .array(z.object({ t, azimuth: z.number(), elevation: z.number(), sunlit: z.boolean(), dark: z.boolean().meta({ description: 'The observer’s Sun is below -6 deg' }) }))
+    .optional()
+    .meta({ description: `Only with path=true: the pass across the sky every ${CAPS.skyPathStepS} s from rise to set (coarser for long passes, at most ${CAPS.skyPathMaxPoints} points)` }),
 });
 export const passesSchema = z.object({
   satelliteId: z.string(),
+  elementSet: elementSetRefSchema.meta({ description: 'The set in force at start; passes are searched within it (and within the next sets when the window spans several)' }),
+  elementSets: z.array(elementSetRefSchema).meta({ description: 'Every set the window used, in time order' }),
   observer: z.object({ lat: z.number(), lon: z.number(), altM: z.number() }),
   start: t,
   end: t,
@@ -254,6 +329,8 @@ export const reportEntrySchema = z.object({
   message: z.string().optional(),
   column: z.number().int().optional(),
   file: z.string().optional(),
+  continuity: continuitySchema.nullable().optional().meta({ description: 'For a newly stored set: its continuity check (null when the satellite had no earlier set)' }),
+  awaitingConfirmation: z.boolean().optional().meta({ description: 'The set is held until an editor confirms it (organization setting)' }),
 });
 export const uploadSchema = z.object({
   detail: z.string().meta({ description: 'One sentence: how many sets were stored, were stored already, or could not be used' }),
@@ -334,7 +411,7 @@ export const V1_ROUTES: RouteSpec[] = [
     path: '/satellites/{id}/track',
     operationId: 'getTrack',
     summary: 'Ground track over a window',
-    description: `Points every \`step\` seconds from \`start\` to \`end\`. Caps: window at most ${CAPS.trackMaxWindowS / 3600} h, at most ${CAPS.trackMaxPoints} points, step ${CAPS.trackMinStepS} to ${CAPS.trackMaxStepS} s. Answers carry an ETag; windows whose start and end are whole multiples of ${CAPS.trackCacheQuantumS} s are publicly cacheable.`,
+    description: `Points every \`step\` seconds from \`start\` to \`end\`, each from the element set in force at its time (the latest epoch at or before it, else the earliest set); \`parts\` says where the set changes. Times further than ${CAPS.maxDaysFromEpoch} days from the epoch of the set in force answer 422 propagation-failed (reason too-far-from-epoch). Caps: window at most ${CAPS.trackMaxWindowS / 3600} h, at most ${CAPS.trackMaxPoints} points, step ${CAPS.trackMinStepS} to ${CAPS.trackMaxStepS} s. Answers carry an ETag; windows whose start and end are whole multiples of ${CAPS.trackCacheQuantumS} s are publicly cacheable.`,
     access: 'read',
     query: trackQuery,
     responses: {
@@ -348,6 +425,7 @@ export const V1_ROUTES: RouteSpec[] = [
     path: '/satellites/{id}/position',
     operationId: 'getPosition',
     summary: 'Position at one time',
+    description: `From the element set in force at \`at\` (the latest epoch at or before it, else the earliest set), named in \`elementSet\`. More than ${CAPS.maxDaysFromEpoch} days from that set's epoch answers 422 propagation-failed (reason too-far-from-epoch).`,
     access: 'read',
     query: positionQuery,
     responses: { '200': { description: 'The position', schema: positionSchema.extend({ satelliteId: z.string() }) } },
@@ -358,7 +436,7 @@ export const V1_ROUTES: RouteSpec[] = [
     path: '/positions',
     operationId: 'getPositions',
     summary: 'Positions of several satellites at one time',
-    description: `At most ${CAPS.positionsMaxIds} ids. A satellite whose position cannot be computed appears with an \`error\` instead of coordinates.`,
+    description: `At most ${CAPS.positionsMaxIds} ids, each from its element set in force at \`at\`. A satellite whose position cannot be computed appears with an \`error\` instead of coordinates.`,
     access: 'read',
     query: positionsQuery,
     responses: {
@@ -396,11 +474,48 @@ export const V1_ROUTES: RouteSpec[] = [
     path: '/satellites/{id}/passes',
     operationId: 'getPasses',
     summary: 'Passes over an observer',
-    description: `Rise, culmination and set above the elevation mask, for up to ${CAPS.passesMaxDays} days. Observing advice: never point optics at or near the Sun.`,
+    description: `Rise, culmination and set above the elevation mask, for up to ${CAPS.passesMaxDays} days, from the element sets in force over the window (\`elementSets\`). \`path=true\` adds each pass's sky path every ${CAPS.skyPathStepS} s (at most ${CAPS.skyPathMaxPoints} points). More than ${CAPS.maxDaysFromEpoch} days from a set's epoch answers 422 propagation-failed (reason too-far-from-epoch). Observing advice: never point optics at or near the Sun.`,
     access: 'read',
     query: passesQuery,
     responses: { '200': { description: 'The passes', schema: passesSchema } },
     problems: ['not-found', 'validation-failed', 'no-element-set', 'decayed', 'propagation-failed'],
+  },
+  {
+    method: 'get',
+    path: '/satellites/{id}/passes.ics',
+    operationId: 'getPassCalendar',
+    summary: 'Passes over an observer as an iCalendar document (RFC 5545)',
+    description: `One VEVENT per pass from now for \`days\` (default ${CAPS.calendarDefaultDays}, at most ${CAPS.calendarMaxDays}): DTSTART at rise, DTEND at set (UTC), a UID that stays the same for the satellite, the observer and the rise minute (a subscribed calendar updates its events instead of adding copies), a summary, and a description with the highest elevation, the directions and the cautions. \`visible=true\` keeps passes visible to the eye. Browser keys (\`?key=\`) and \`embed=\` work as for the other reads. Answers carry an ETag and may be cached for an hour (calendar apps poll). The calendar asks apps to refresh every 6 hours.`,
+    access: 'read',
+    query: passesIcsQuery,
+    responses: {
+      '200': {
+        description: 'The calendar',
+        schema: z.string().meta({ description: 'An iCalendar document (RFC 5545): VCALENDAR with one VEVENT per pass; lines end in CRLF and are folded at 75 octets' }),
+        mediaTypes: ['text/calendar'],
+      },
+      '304': { description: 'Not modified (If-None-Match matched the ETag)' },
+    },
+    problems: ['not-found', 'validation-failed', 'no-element-set', 'decayed', 'propagation-failed'],
+  },
+  {
+    method: 'get',
+    path: '/satellites/{id}/element-sets',
+    operationId: 'listElementSets',
+    summary: 'The history of element sets, newest epoch first, with continuity checks (server keys and console previews)',
+    description: 'Every stored set with its summary, the continuity check made when it arrived, and the figures a history chart needs (apogee and perigee altitude, mean motion, inclination). Browser keys and embeds get 403 forbidden.',
+    access: 'read',
+    responses: {
+      '200': {
+        description: 'The history',
+        schema: z.object({
+          satelliteId: z.string(),
+          currentElementSetId: z.string().nullable(),
+          elementSets: z.array(elementSetSummarySchema.extend({ meanMotionRevPerDay: z.number(), apogeeAltKm: z.number(), perigeeAltKm: z.number(), inclinationDeg: z.number() })),
+        }),
+      },
+    },
+    problems: ['not-found', 'forbidden'],
   },
   {
     method: 'get',
@@ -474,6 +589,7 @@ export function expressPath(path: string): string {
 // widget and other readers import, type-only.
 
 export type V1ElementSetSummary = z.output<typeof elementSetSummarySchema>;
+export type Continuity = z.output<typeof continuitySchema>;
 export type V1Derived = z.output<typeof derivedSchema>;
 export type V1Satellite = z.output<typeof satelliteSchema>;
 export type V1SatelliteList = { satellites: V1Satellite[] };

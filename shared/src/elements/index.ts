@@ -19,3 +19,6 @@ export type { ElementSetsRead, ReadElementSetsOptions } from './detect.ts';
 export { toSatrec } from './satrec.ts';
 export type { ElementSetErrorCode } from './errors.ts';
 export { MIN_MEAN_MOTION, MAX_MEAN_MOTION, MAX_TLE_CATALOG, MAX_OMM_CATALOG } from './validate.ts';
+/** AIAA 2006-6753 verification sets and their published states (for tests across packages). */
+export { AIAA_2006_6753_CASES } from './verification-cases.ts';
+export type { VerificationCase, VerificationState } from './verification-cases.ts';

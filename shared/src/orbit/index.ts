@@ -47,3 +47,9 @@ export type { Pass, PassList, PassOptions, PassErrorCode } from './passes.ts';
  * check `findPasses` against. Not for serving requests.
  */
 export { findPassesBruteForce } from './passes-bruteforce.ts';
+export { byEpoch, indexInForce, setInForce, ageDaysAt, piecewiseWindows, sampleTrackAcrossSets, findPassesAcrossSets } from './history.ts';
+export type { HasEpoch, WindowPart, PropagatableSet, TrackPart, PassFromSet } from './history.ts';
+export { checkContinuity, classify, carryForward, CONTINUITY_POLICY, CONTINUITY_WORDS } from './continuity.ts';
+export type { ContinuityClass, ContinuityReport, ContinuityErrorCode } from './continuity.ts';
+export { skyPath, skyPathStepS, SKY_PATH_STEP_S, SKY_PATH_MAX_POINTS } from './sky-path.ts';
+export type { SkyPoint } from './sky-path.ts';

@@ -1,13 +1,17 @@
-/** "Show passes over me": asks the browser for the reader's place once and hands it to the tracker. */
+/**
+ * "Show passes over me": asks the browser for the reader's place once and hands it to the tracker.
+ * `locationNote` says why there is no place ('no-geolocation', 'refused'; '' when none is needed),
+ * for the element to say in the reader's words.
+ */
 import { ref, type Ref } from 'vue';
 import type { Tracker } from '../lib/tracker.ts';
 
 export function useObserverLocation(tracker: Ref<Tracker | null>) {
   const locating = ref(false);
-  const locationNote = ref('');
+  const locationNote = ref<'' | 'no-geolocation' | 'refused'>('');
   function useMyLocation() {
     if (!('geolocation' in navigator)) {
-      locationNote.value = 'This browser cannot share a location, so passes cannot be worked out.';
+      locationNote.value = 'no-geolocation';
       return;
     }
     locating.value = true;
@@ -19,7 +23,7 @@ export function useObserverLocation(tracker: Ref<Tracker | null>) {
       },
       () => {
         locating.value = false;
-        locationNote.value = 'Location not shared. Passes need a place; nothing else changes.';
+        locationNote.value = 'refused';
       },
       { maximumAge: 600_000, timeout: 20_000 },
     );

@@ -4,7 +4,7 @@
  * areas. Everything pauses and resumes with the clock's `running`.
  */
 import { computed, onBeforeUnmount, shallowRef, ref, watch, type Ref } from 'vue';
-import { loadWorld, scriptUrl, type World } from '../lib/assets.ts';
+import { loadLand, loadWorld, scriptUrl, type World } from '../lib/assets.ts';
 import { settle } from '../lib/config.ts';
 import { clock } from '../lib/format.ts';
 import { namedAreas, type NamedArea } from '../lib/places.ts';
@@ -24,6 +24,10 @@ export interface NadirTrackProps {
   timeZone?: string;
   locale?: string;
   theme?: string;
+  /** ISO 8601 time the map is pinned to (a launch page); the time control moves from it. */
+  at?: string;
+  /** What to call a fixed observer place in the pass list. */
+  observerName?: string;
 }
 
 export function useTrackerData(
@@ -41,6 +45,7 @@ export function useTrackerData(
     theme: props.theme,
     timeZone: props.timeZone,
     locale: props.locale,
+    observerName: props.observerName,
   });
   const tracker = shallowRef<Tracker | null>(null);
   const state = computed(() => tracker.value?.state ?? null);
@@ -80,12 +85,24 @@ export function useTrackerData(
     if (typeof requestIdleCallback === 'function') requestIdleCallback(fn, { timeout: 2000 });
     else setTimeout(fn, 200);
   }
+  /**
+   * The land outline first (half the bytes of the countries), so the coastlines are drawn no later
+   * than the tracks on a slow link; the countries, which only name places, come when the page is
+   * idle after that and then replace the land (same coastlines).
+   */
   function fetchWorld() {
-    void loadWorld().then((w) => {
-      world.value = w;
-      worldFailed.value = !w;
-      // country outlines for place names are prepared when the page is idle, after the first drawing
-      if (w) whenIdle(() => (areas.value = namedAreas(w.countries)));
+    void loadLand().then((land) => {
+      if (land && !world.value) world.value = { land, countries: [] };
+      worldFailed.value = !land && !world.value;
+      whenIdle(() =>
+        void loadWorld().then((w) => {
+          if (w) {
+            world.value = w;
+            worldFailed.value = false;
+            areas.value = namedAreas(w.countries);
+          } else if (!world.value) worldFailed.value = true;
+        }),
+      );
     });
   }
 

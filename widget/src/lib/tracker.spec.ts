@@ -87,6 +87,28 @@ afterEach(() => {
 });
 
 describe('Tracker', () => {
+  it('plans track windows around the shown time, keeps passes on now, and asks nothing while paused', async () => {
+    const fake = fakeApi();
+    const { t } = make(fake, { attrs: { satellites: 'a', observer: '52.2,0.12', orbitsBehind: 0.5, orbitsAhead: 0.5 } });
+    t.resume();
+    await advance(10);
+    const shown = NOW - 9 * 3600_000;
+    t.setShownTime(() => shown);
+    await advance(10);
+    const starts = fake.calls.filter((c) => c.path.endsWith('/track')).map((c) => Date.parse(c.q.get('start')!));
+    expect(starts.some((s) => s <= shown && shown < s + 2 * 3600_000)).toBe(true);
+    const samples = t.state.sats[0]!.samples;
+    expect(samples[0]!.t).toBeLessThanOrEqual(shown);
+    const passStarts = fake.calls.filter((c) => c.path.endsWith('/passes')).map((c) => Date.parse(c.q.get('start')!));
+    expect(passStarts.every((s) => s > NOW - 6 * 3600_000)).toBe(true);
+    t.pause();
+    const before = fake.calls.length;
+    t.setShownTime(() => NOW - 11 * 3600_000);
+    await advance(60_000);
+    expect(fake.calls.length).toBe(before);
+    t.dispose();
+  });
+
   it('loads names, element sets, aligned track windows and passes, then says so once', async () => {
     const fake = fakeApi();
     const { t, events } = make(fake);

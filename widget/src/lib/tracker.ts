@@ -5,7 +5,8 @@
  * Vue reactivity carries the state to the components; sample arrays are kept raw for speed.
  */
 import { markRaw, reactive } from 'vue';
-import { NadirApi, type ApiProblem, type ApiResult, type ElementsInfo, type EmbedConfig, type FetchLike, type Pass } from './api.ts';
+import { NadirApi, PASS_MIN_ELEVATION_DEG, type ApiProblem, type ApiResult, type ElementsInfo, type EmbedConfig, type FetchLike, type Pass } from './api.ts';
+import type { SkyPathPoint } from './skyplot.ts';
 import { settle, type Observer, type RawOptions, type Settings } from './config.ts';
 import { actionFor, noticeFor, type Notice } from './messages.ts';
 import { LADDER, mergeSamples, planWindows, type Sample, type WindowPlan } from './track.ts';
@@ -108,6 +109,8 @@ export class Tracker {
   private readonly reported = new Map<string, 'lasting' | 'passing'>();
   private readonly windows = new Map<string, Map<number, Sample[]>>();
   private readonly passKey = new Map<string, string>();
+  /** The time the map shows (time control, `at`); null: now. Track windows follow it, passes stay on now. */
+  private shown: (() => number) | null = null;
 
   constructor(private readonly opts: TrackerOptions) {
     this.now = opts.now ?? Date.now;
@@ -162,6 +165,54 @@ export class Tracker {
       this.pause();
       this.resume();
     }
+  }
+
+  /**
+   * Show the map at another time (the time control or the `at` attribute): track windows are
+   * planned around `shown()` from now on, and the missing ones are asked for at once (if
+   * running; a paused tracker asks nothing). Passes stay those after the real now.
+   */
+  setShownTime(shown: (() => number) | null): void {
+    if (shown === null && this.shown === null) return;
+    this.shown = shown;
+    if (this.running) {
+      this.pause();
+      this.resume();
+    }
+  }
+
+  /**
+   * The sky path of one pass over the observer (GET .../passes?path=true over the pass alone).
+   * Asked only when the reader opens the sky plot; null when it cannot be had.
+   */
+  async skyPath(satId: string, pass: Pass, signal?: AbortSignal): Promise<SkyPathPoint[] | null> {
+    const obs = this.state.observer;
+    if (!obs) return null;
+    const rise = Date.parse(pass.rise.t);
+    const set = Date.parse(pass.set.t);
+    const start = rise - 60_000;
+    const days = Math.max(0.01, (set - start + 60_000) / 86_400_000);
+    const r = await this.api.get<{ passes: (Pass & { path?: SkyPathPoint[] })[] }>(
+      `v1/satellites/${encodeURIComponent(satId)}/passes`,
+      { lat: Math.round(obs.lat * 100) / 100, lon: Math.round(obs.lon * 100) / 100, altM: Math.round(obs.altM), start: new Date(start).toISOString(), days: Math.round(days * 1e4) / 1e4, minElevation: PASS_MIN_ELEVATION_DEG, path: 'true' },
+      signal,
+    );
+    if (!r.ok) return null;
+    const match = r.value.passes.find((p) => Math.abs(Date.parse(p.culmination.t) - Date.parse(pass.culmination.t)) < 120_000);
+    return match?.path ?? null;
+  }
+
+  /** Link to the pass calendar of a satellite over the observer (iCalendar), or null without an observer. */
+  calendarUrl(satId: string): string | null {
+    const obs = this.state.observer;
+    if (!obs) return null;
+    return this.api.url(`v1/satellites/${encodeURIComponent(satId)}/passes.ics`, {
+      lat: Math.round(obs.lat * 100) / 100,
+      lon: Math.round(obs.lon * 100) / 100,
+      altM: Math.round(obs.altM),
+      days: 7,
+      minElevation: PASS_MIN_ELEVATION_DEG,
+    });
   }
 
   private useSettings(settings: Settings): void {
@@ -262,9 +313,10 @@ export class Tracker {
     // Meanwhile the window around now is asked for on the guess of a low orbit (the common case),
     // so the first track is drawn one round trip sooner; a high orbit just ignores that answer.
     const rung0 = LADDER[0]!;
+    const shownMs = this.shown ? this.shown() : now;
     let early: { start: number; answer: Promise<ApiResult<Sample[]>> } | null = null;
     if (!sat.elements) {
-      const start = Math.floor(now / rung0.spanMs) * rung0.spanMs;
+      const start = Math.floor(shownMs / rung0.spanMs) * rung0.spanMs;
       early = { start, answer: this.api.track(sat.id, start, start + rung0.spanMs, rung0.stepS, signal) };
       const meta = await this.api.satellite(sat.id, signal);
       if (signal.aborted) return undefined;
@@ -297,7 +349,7 @@ export class Tracker {
 
     // track windows not yet held, all at once
     const s = this.state.settings;
-    const plan = planWindows(now, sat.elements.periodMin || FALLBACK_PERIOD_MIN, s.orbitsBehind, s.orbitsAhead);
+    const plan = planWindows(shownMs, sat.elements.periodMin || FALLBACK_PERIOD_MIN, s.orbitsBehind, s.orbitsAhead);
     let held = this.windows.get(sat.id);
     if (!held || (sat.plan && sat.plan.spanMs !== plan.spanMs)) {
       held = new Map();

@@ -2,7 +2,7 @@
 import type { AppContext } from '../../context.ts';
 import { orgAuth } from '../../http/roles.ts';
 import { parseBody } from '../../http/validate.ts';
-import { recordAudit } from '../../services/audit.ts';
+import { changesOf, recordAudit } from '../../services/audit.ts';
 import { embedInputSchema, embedUpdateSchema, getEmbedService, serializeEmbed } from '../../services/embeds.ts';
 import { param } from './params.ts';
 import { ApiRoutes } from './routes.ts';
@@ -27,8 +27,17 @@ export function embedRoutes(ctx: AppContext): ApiRoutes {
   r.patch('/orgs/:org/embeds/:id', 'embeds.write', async (req, res) => {
     const auth = orgAuth(res);
     const body = parseBody(embedUpdateSchema, req);
-    const embed = await embeds.updateEmbed(auth.organization.id, param(req, 'id'), body);
-    await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'embed.update', targetType: 'embed', targetId: embed.id, detail: { name: embed.name, changed: Object.keys(body) } });
+    const before = serializeEmbed(await embeds.getEmbed(auth.organization.id, param(req, 'id')));
+    const embed = await embeds.updateEmbed(auth.organization.id, before.id, body);
+    const after = serializeEmbed(embed);
+    // Display options are compared one by one, so "theme: light → dark" rather than the whole object.
+    const changes = {
+      ...changesOf({ name: before.name, satelliteIds: before.satelliteIds, apiKeyId: before.apiKeyId }, { name: after.name, satelliteIds: after.satelliteIds, apiKeyId: after.apiKeyId }),
+      ...changesOf(before.options, after.options),
+    };
+    if (Object.keys(changes).length > 0) {
+      await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'embed.update', targetType: 'embed', targetId: embed.id, detail: { name: embed.name, changes } });
+    }
     res.json({ embed: serializeEmbed(embed) });
   });
 

@@ -12,8 +12,10 @@ import { securityHeaders } from '../../http/security.ts';
 import { createSessionMiddleware } from '../../http/session.ts';
 import { getMailService } from '../../services/mail.ts';
 import { accountRoutes } from './account.ts';
+import { billingRoutes } from './billing.ts';
 import { embedRoutes } from './embeds.ts';
 import { keyRoutes } from './keys.ts';
+import { noticeRoutes } from './notices.ts';
 import { orgRoutes } from './orgs.ts';
 import { previewRoutes } from './preview.ts';
 import type { ApiRoute } from './routes.ts';
@@ -29,7 +31,7 @@ declare module '../../context.ts' {
 
 /** Every /api route with its action, in mounting order. */
 export function buildApiRoutes(ctx: AppContext): ApiRoute[] {
-  return [accountRoutes, orgRoutes, keyRoutes, satelliteRoutes, embedRoutes, usageRoutes, previewRoutes].flatMap((routes) => routes(ctx).list);
+  return [accountRoutes, orgRoutes, keyRoutes, satelliteRoutes, embedRoutes, usageRoutes, billingRoutes, noticeRoutes, previewRoutes].flatMap((routes) => routes(ctx).list);
 }
 
 export async function createApiRouter(ctx: AppContext): Promise<Router> {

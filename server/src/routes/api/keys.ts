@@ -1,16 +1,26 @@
 /** API keys in the console (docs/console-api.md "Keys"); rules live in services/keys.ts (S2). */
-import { z } from 'zod';
 import type { AppContext } from '../../context.ts';
 import { HttpError } from '../../http/problem.ts';
 import { orgAuth } from '../../http/roles.ts';
 import { parseBody } from '../../http/validate.ts';
-import { ApiKey } from '../../models/index.ts';
-import { recordAudit } from '../../services/audit.ts';
-import { DEFAULT_GRACE_HOURS, MAX_GRACE_HOURS, getKeyService, keyInputSchema, keyUpdateSchema } from '../../services/keys.ts';
+import { ApiKey, Embed } from '../../models/index.ts';
+import { changesOf, recordAudit } from '../../services/audit.ts';
+import { getEmbedService } from '../../services/embeds.ts';
+import { getKeyService, keyInputSchema, keyUpdateSchema, rotateInputSchema, type KeyJson } from '../../services/keys.ts';
+import { getUsageRecorder, utcDay, type KeyOrigin } from '../../services/usage.ts';
 import { param } from './params.ts';
 import { ApiRoutes } from './routes.ts';
 
-const RotateBody = z.object({ graceHours: z.number().min(0).max(MAX_GRACE_HOURS).optional() });
+/** "Seen from these origins": the calling origins of the last this many UTC days, today included. */
+export const KEY_ORIGIN_DAYS = 7;
+
+/** What uses a key: the embeds that read with it and the origins that called it lately. */
+export interface KeyUse {
+  embeds: Array<{ id: string; name: string }>;
+  origins: KeyOrigin[];
+  /** First UTC day the origins count from. */
+  originsSince: string;
+}
 
 async function keyOfOrg(organizationId: string, id: string): Promise<ApiKey> {
   const key = await ApiKey.findOne({ where: { id, organizationId } });
@@ -21,10 +31,34 @@ async function keyOfOrg(organizationId: string, id: string): Promise<ApiKey> {
 export function keyRoutes(ctx: AppContext): ApiRoutes {
   const r = new ApiRoutes();
   const keys = getKeyService(ctx);
+  const usage = getUsageRecorder(ctx);
+
+  /** Keys as the console shows them: which key each replaced, and what uses each one. */
+  async function present(orgId: string, rows: ApiKey[]): Promise<Array<KeyJson & { use: KeyUse }>> {
+    const ids = rows.map((k) => k.id);
+    const since = utcDay(Date.now() - (KEY_ORIGIN_DAYS - 1) * 86_400_000);
+    const [embeds, origins, predecessors] = await Promise.all([
+      Embed.findAll({ where: { organizationId: orgId, apiKeyId: ids }, attributes: ['id', 'name', 'apiKeyId'], order: [['name', 'ASC']] }),
+      usage.origins(orgId, ids, since),
+      ApiKey.findAll({ where: { organizationId: orgId, replacedById: ids }, attributes: ['id', 'replacedById'] }),
+    ]);
+    const replaces = new Map(predecessors.map((p) => [p.replacedById, p.id]));
+    return rows.map((k) => ({
+      ...keys.serializeKey(k),
+      replacesId: replaces.get(k.id) ?? null,
+      use: {
+        embeds: embeds.filter((e) => e.apiKeyId === k.id).map((e) => ({ id: e.id, name: e.name })),
+        origins: origins.get(k.id) ?? [],
+        originsSince: since,
+      },
+    }));
+  }
+  const one = async (orgId: string, key: ApiKey) => (await present(orgId, [key]))[0]!;
 
   r.get('/orgs/:org/keys', 'keys.read', async (_req, res) => {
-    const rows = await ApiKey.findAll({ where: { organizationId: orgAuth(res).organization.id }, order: [['createdAt', 'DESC']] });
-    res.json({ keys: rows.map((k) => keys.serializeKey(k)) });
+    const orgId = orgAuth(res).organization.id;
+    const rows = await ApiKey.findAll({ where: { organizationId: orgId }, order: [['createdAt', 'DESC']] });
+    res.json({ keys: await present(orgId, rows) });
   });
 
   r.post('/orgs/:org/keys', 'keys.write', async (req, res) => {
@@ -39,7 +73,7 @@ export function keyRoutes(ctx: AppContext): ApiRoutes {
       targetId: key.id,
       detail: { name: key.name, kind: key.kind, lastFour: key.lastFour, origins: key.origins, scopes: key.scopes, rateLimitPerMin: key.rateLimitPerMin },
     });
-    res.status(201).json({ key: keys.serializeKey(key), secret });
+    res.status(201).json({ key: await one(auth.organization.id, key), secret });
   });
 
   r.patch('/orgs/:org/keys/:id', 'keys.write', async (req, res) => {
@@ -48,30 +82,38 @@ export function keyRoutes(ctx: AppContext): ApiRoutes {
     const before = await keyOfOrg(auth.organization.id, param(req, 'id'));
     const was = { name: before.name, origins: before.origins, scopes: before.scopes, rateLimitPerMin: before.rateLimitPerMin, expiresAt: before.expiresAt };
     const key = await keys.updateKey(before.id, body);
-    const changes: Record<string, { from: unknown; to: unknown }> = {};
-    for (const field of Object.keys(was) as Array<keyof typeof was>) {
-      if (JSON.stringify(was[field]) !== JSON.stringify(key[field])) changes[field] = { from: was[field], to: key[field] };
-    }
+    const changes = changesOf(was, { name: key.name, origins: key.origins, scopes: key.scopes, rateLimitPerMin: key.rateLimitPerMin, expiresAt: key.expiresAt });
     if (Object.keys(changes).length > 0) {
       await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'key.update', targetType: 'key', targetId: key.id, detail: { name: key.name, lastFour: key.lastFour, changes } });
     }
-    res.json({ key: keys.serializeKey(key) });
+    res.json({ key: await one(auth.organization.id, key) });
   });
 
   r.post('/orgs/:org/keys/:id/rotate', 'keys.write', async (req, res) => {
     const auth = orgAuth(res);
-    const { graceHours = DEFAULT_GRACE_HOURS } = parseBody(RotateBody, req);
+    const body = parseBody(rotateInputSchema, req);
     const old = await keyOfOrg(auth.organization.id, param(req, 'id'));
-    const { key, secret, previous } = await keys.rotateKey(old.id, graceHours, auth.user.id);
+    const { key, secret, previous, embedsMoved } = await keys.rotateKey(old.id, body, auth.user.id);
+    if (embedsMoved > 0) getEmbedService(ctx).invalidateAll();
     await recordAudit(ctx, {
       organizationId: auth.organization.id,
       actorUserId: auth.user.id,
       action: 'key.rotate',
       targetType: 'key',
       targetId: previous.id,
-      detail: { name: key.name, previousLastFour: previous.lastFour, newKeyId: key.id, newLastFour: key.lastFour, graceHours, graceUntil: previous.graceUntil },
+      detail: {
+        name: previous.name,
+        previousLastFour: previous.lastFour,
+        newKeyId: key.id,
+        newName: key.name,
+        newLastFour: key.lastFour,
+        quietMinutes: previous.retireQuietMinutes,
+        retireBy: previous.graceUntil,
+        embedsMoved,
+      },
     });
-    res.status(201).json({ key: keys.serializeKey(key), secret, previous: keys.serializeKey(previous) });
+    const [fresh, prev] = await present(auth.organization.id, [key, previous]);
+    res.status(201).json({ key: fresh, secret, previous: prev, embedsMoved });
   });
 
   r.post('/orgs/:org/keys/:id/revoke', 'keys.write', async (req, res) => {
@@ -82,7 +124,7 @@ export function keyRoutes(ctx: AppContext): ApiRoutes {
     if (!wasRevoked) {
       await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'key.revoke', targetType: 'key', targetId: key.id, detail: { name: key.name, lastFour: key.lastFour } });
     }
-    res.json({ key: keys.serializeKey(key) });
+    res.json({ key: await one(auth.organization.id, key) });
   });
 
   return r;

@@ -18,14 +18,23 @@ import {
   serializeOrganization,
   transferOwnership,
 } from '../../services/orgs.ts';
+import { recordAudit } from '../../services/audit.ts';
 import { param } from './params.ts';
 import { ApiRoutes } from './routes.ts';
+import { bodyEmail, clientKey, getThrottleStore, Throttle, throttle } from '../../http/throttle.ts';
+
+/** Invitations one client may send per hour, and invitations to one address (from any organization) per hour. */
+export const INVITATIONS_PER_CLIENT_PER_HOUR = 30;
+export const INVITATIONS_PER_ADDRESS_PER_HOUR = 5;
 
 const NameBody = z.object({ name: fields.name });
 const TransferBody = z.object({ userId: z.string().min(1).max(40) });
 const roleField = z.enum(ASSIGNABLE_ROLES, { message: 'Choose admin, editor or viewer (the owner role moves only by transfer).' });
 const InviteBody = z.object({ email: fields.email, role: roleField });
 const RoleBody = z.object({ role: roleField });
+const SettingsBody = z.object({
+  confirmSuspiciousSets: z.boolean({ message: 'confirmSuspiciousSets must be true or false.' }),
+});
 
 
 export function orgRoutes(ctx: AppContext): ApiRoutes {
@@ -48,6 +57,24 @@ export function orgRoutes(ctx: AppContext): ApiRoutes {
     res.json({ organization: serializeOrganization(org) });
   });
 
+  r.patch('/orgs/:org/settings', 'org.settings', async (req, res) => {
+    const auth = orgAuth(res);
+    const body = parseBody(SettingsBody, req);
+    const was = Boolean(auth.organization.confirmSuspiciousSets);
+    await auth.organization.update({ confirmSuspiciousSets: body.confirmSuspiciousSets });
+    if (was !== body.confirmSuspiciousSets) {
+      await recordAudit(ctx, {
+        organizationId: auth.organization.id,
+        actorUserId: auth.user.id,
+        action: 'org.settings',
+        targetType: 'organization',
+        targetId: auth.organization.id,
+        detail: { confirmSuspiciousSets: body.confirmSuspiciousSets },
+      });
+    }
+    res.json({ organization: serializeOrganization(auth.organization) });
+  });
+
   r.delete('/orgs/:org', 'org.delete', async (_req, res) => {
     await deleteOrganization(ctx, orgAuth(res));
     res.status(204).end();
@@ -63,7 +90,16 @@ export function orgRoutes(ctx: AppContext): ApiRoutes {
     res.json(await listMembers(orgAuth(res).organization.id));
   });
 
-  r.post('/orgs/:org/invitations', 'members.manage', async (req, res) => {
+  const store = getThrottleStore(ctx);
+  const inviteThrottle = throttle(
+    [
+      { throttle: new Throttle(store, { name: 'invite-client', limit: INVITATIONS_PER_CLIENT_PER_HOUR, windowMs: 3600_000 }), key: clientKey },
+      { throttle: new Throttle(store, { name: 'invite-address', limit: INVITATIONS_PER_ADDRESS_PER_HOUR, windowMs: 3600_000 }), key: bodyEmail },
+    ],
+    'Too many invitations sent from here or to this address.',
+  );
+
+  r.post('/orgs/:org/invitations', 'members.manage', inviteThrottle, async (req, res) => {
     const { email, role } = parseBody(InviteBody, req);
     const invitation = await inviteMember(ctx, orgAuth(res), email, role);
     res.status(201).json({ invitation });

@@ -12,7 +12,7 @@ import { HttpError, withUploadLimits } from '../../http/problem.ts';
 import { orgAuth } from '../../http/roles.ts';
 import { parseBody, parseQuery } from '../../http/validate.ts';
 import { ElementSetRecord, type Satellite } from '../../models/index.ts';
-import { recordAudit } from '../../services/audit.ts';
+import { changesOf, recordAudit } from '../../services/audit.ts';
 import { parsedOf } from '../../services/orbit-cache.ts';
 import { EXPORT_FORMATS, getSatelliteService, unprocessable, type ElementFormat, type UploadResult } from '../../services/satellites.ts';
 import { param } from './params.ts';
@@ -105,14 +105,17 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     const before = await sats.getSatellite(auth.organization.id, param(req, 'id'));
     const was = { name: before.name, description: before.description };
     const satellite = await sats.updateSatellite(auth.organization.id, before.id, body);
-    await recordAudit(ctx, {
-      organizationId: auth.organization.id,
-      actorUserId: auth.user.id,
-      action: 'satellite.update',
-      targetType: 'satellite',
-      targetId: satellite.id,
-      detail: { name: satellite.name, ...(was.name !== satellite.name ? { renamedFrom: was.name } : {}), descriptionChanged: was.description !== satellite.description },
-    });
+    const changes = changesOf(was, { name: satellite.name, description: satellite.description });
+    if (Object.keys(changes).length > 0) {
+      await recordAudit(ctx, {
+        organizationId: auth.organization.id,
+        actorUserId: auth.user.id,
+        action: 'satellite.update',
+        targetType: 'satellite',
+        targetId: satellite.id,
+        detail: { name: satellite.name, changes },
+      });
+    }
     const [view] = await views([satellite]);
     res.json({ satellite: view });
   });
@@ -130,7 +133,19 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     const records = await sats.listElementSets(satellite.id);
     const uploaders = await sats.uploaderNames(records);
     const now = new Date();
-    res.json({ elementSets: records.map((rec) => sats.summary(rec, parsedOf(rec), now, uploaders)) });
+    // With the figures the history chart draws: apogee and perigee altitude (km), mean motion (rev/day).
+    res.json({
+      elementSets: records.map((rec) => {
+        const es = parsedOf(rec);
+        const d = sats.derived(es, now);
+        return {
+          ...sats.summary(rec, es, now, uploaders),
+          meanMotionRevPerDay: es.meanMotionRevPerDay,
+          apogeeAltKm: Math.round(d.apogeeAltKm * 1000) / 1000,
+          perigeeAltKm: Math.round(d.perigeeAltKm * 1000) / 1000,
+        };
+      }),
+    });
   });
 
   r.post('/orgs/:org/satellites/:id/element-sets', 'element-sets.write', upload, async (req, res) => {
@@ -153,7 +168,29 @@ export function satelliteRoutes(ctx: AppContext): ApiRoutes {
     }
     await auditUpload(auth, satellite, result, how);
     if (result.accepted === 0) throw unprocessable(result.report);
-    res.status(201).json({ report: result.report, accepted: result.accepted, rejected: result.rejected });
+    const now = new Date();
+    const uploaders = await sats.uploaderNames(result.created);
+    res.status(201).json({
+      report: result.report,
+      accepted: result.accepted,
+      rejected: result.rejected,
+      elementSets: result.created.map((rec) => sats.summary(rec, parsedOf(rec), now, uploaders)),
+    });
+  });
+
+  r.post('/orgs/:org/element-sets/:esId/confirm', 'element-sets.confirm', async (req, res) => {
+    const auth = orgAuth(res);
+    const record = await sats.confirmElementSet(auth.organization.id, param(req, 'esId'), auth.user.id);
+    await recordAudit(ctx, {
+      organizationId: auth.organization.id,
+      actorUserId: auth.user.id,
+      action: 'element-set.confirm',
+      targetType: 'satellite',
+      targetId: record.satelliteId,
+      detail: { elementSetId: record.id, epoch: parsedOf(record).epochIso, continuity: record.continuityClass },
+    });
+    const uploaders = await sats.uploaderNames([record]);
+    res.json({ elementSet: sats.summary(record, parsedOf(record), new Date(), uploaders) });
   });
 
   r.get('/orgs/:org/element-sets/:esId/export', 'satellites.read', async (req, res) => {

@@ -1,12 +1,10 @@
-/** Usage, activity log, plan and billing (docs/console-api.md "Usage, plan, activity"). */
+/** Usage and the activity log (docs/console-api.md "Usage, plan, activity"); plan and billing are in billing.ts. */
 import { z } from 'zod';
 import type { AppContext } from '../../context.ts';
 import { HttpError } from '../../http/problem.ts';
 import { orgAuth } from '../../http/roles.ts';
-import { parseBody, parseQuery } from '../../http/validate.ts';
-import { PLANS } from '../../models/index.ts';
+import { parseQuery } from '../../http/validate.ts';
 import { listActivity } from '../../services/audit.ts';
-import { billingOverview, startCheckout } from '../../services/billing.ts';
 import { getQuotaService } from '../../services/quota.ts';
 import { getUsageRecorder, utcDay } from '../../services/usage.ts';
 import type { UsageReport as UsageAnswer } from '@nadirline/shared/contract';
@@ -23,7 +21,6 @@ const ActivityQuery = z.object({
   before: z.coerce.number().int().positive().optional(),
   limit: z.coerce.number().int().min(1).max(200).default(50),
 });
-const CheckoutBody = z.object({ plan: z.enum(PLANS, { message: `Choose one of: ${PLANS.join(', ')}.` }) });
 
 function range(q: z.infer<typeof UsageQuery>): { from: string; to: string } {
   const to = q.to ?? utcDay(Date.now());
@@ -62,15 +59,6 @@ export function usageRoutes(ctx: AppContext): ApiRoutes {
     const q = parseQuery(ActivityQuery, req);
     const events = await listActivity(ctx, orgAuth(res).organization.id, { before: q.before, limit: q.limit });
     res.json({ events });
-  });
-
-  r.get('/orgs/:org/billing', 'billing.read', async (_req, res) => {
-    res.json(await billingOverview(ctx, orgAuth(res).organization));
-  });
-
-  r.post('/orgs/:org/billing/checkout', 'billing.manage', async (req, res) => {
-    const { plan } = parseBody(CheckoutBody, req);
-    res.json(await startCheckout(ctx, orgAuth(res), plan));
   });
 
   return r;

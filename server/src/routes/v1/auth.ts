@@ -34,6 +34,7 @@
 import type { NextFunction, Request, RequestHandler, Response } from 'express';
 import { rateLimit, type Options as RateLimitOptions } from 'express-rate-limit';
 import type { AppContext } from '../../context.ts';
+import { getOverLimitGate } from '../../http/over-limit.ts';
 import { HttpError } from '../../http/problem.ts';
 import { getEmbedService, type EmbedRecord } from '../../services/embeds.ts';
 import { getKeyService, kindOfKeyText, originAllowed, type KeyRecord } from '../../services/keys.ts';
@@ -165,6 +166,8 @@ export function previewKey(orgId: string): KeyRecord {
       revokedAt: null,
       replacedById: null,
       graceUntil: null,
+      replacedAt: null,
+      retireQuietMinutes: null,
       lastUsedAt: null,
       createdByUserId: null,
       createdAt: new Date(0),
@@ -277,8 +280,13 @@ export function authenticate(ctx: AppContext, access: Exclude<Access, 'public'>,
   };
 }
 
-/** Per-key rate limit (limit from the key record), standard RateLimit headers, 429 problem. */
-export function keyRateLimit(): RequestHandler {
+/**
+ * Per-key rate limit (limit from the key record), standard RateLimit headers, 429 problem. A key
+ * found over its limit is handed to the over-limit gate, which refuses the rest of its window at
+ * the front of the app (http/over-limit.ts).
+ */
+export function keyRateLimit(ctx?: AppContext): RequestHandler {
+  const gate = ctx ? getOverLimitGate(ctx) : undefined;
   const options: Partial<RateLimitOptions> = {
     windowMs: 60_000,
     limit: (_req: Request, res: Response) => authOf(res).key.rateLimitPerMin,
@@ -290,8 +298,11 @@ export function keyRateLimit(): RequestHandler {
     legacyHeaders: false,
     identifier: 'per-key',
     validate: false,
-    handler: (_req, res, next, opts) => {
+    handler: (req, res, next, opts) => {
       const retry = res.getHeader('Retry-After');
+      const reset = (req as Request & { rateLimit?: { resetTime?: Date } }).rateLimit?.resetTime;
+      const { key } = authOf(res);
+      if (gate && reset && authOf(res).via !== 'preview') gate.block(key.id, { untilMs: reset.getTime(), limitPerMin: key.rateLimitPerMin, lastFour: key.lastFour });
       const who = authOf(res).via === 'preview' ? `The console previews of this organization allow` : 'This key allows';
       next(
         new HttpError(
@@ -339,12 +350,22 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
   const quota = getQuotaService(ctx);
   const usage = getUsageRecorder(ctx);
   const keys = getKeyService(ctx);
-  const count = (key: KeyRecord, now: number) => {
+  const count = (res: Response, key: KeyRecord, origin: string | null, now: number) => {
     usage.record(key.organizationId, key.id, template, now);
     keys.touch(key.id, now);
+    // The answer's status (errors count against the quota too, so the console shows them) and
+    // the calling origin, once the answer is sent or the connection closes.
+    let done = false;
+    const outcome = () => {
+      if (done) return;
+      done = true;
+      usage.recordOutcome(key.organizationId, key.id, template, now, res.statusCode, origin);
+    };
+    res.once('finish', outcome);
+    res.once('close', outcome);
   };
   return (_req, res, next) => {
-    const { key, via } = authOf(res);
+    const { key, via, origin } = authOf(res);
     if (via === 'preview') {
       next();
       return;
@@ -352,13 +373,13 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
     const now = Date.now();
     const under = quota.underQuota(key.organizationId, now);
     if (under === true) {
-      count(key, now);
+      count(res, key, origin, now);
       next();
       return;
     }
     // Not cached yet, or spent: the full check reads what it needs and throws quota-exceeded.
     return quota.check(key.organizationId, new Date(now)).then(() => {
-      count(key, now);
+      count(res, key, origin, now);
       next();
     });
   };

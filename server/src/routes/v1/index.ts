@@ -10,13 +10,16 @@ import express, { Router, type Request, type RequestHandler, type Response } fro
 import multer from 'multer';
 import type { z } from 'zod';
 import {
-  findPasses,
+  findPassesAcrossSets,
   footprintRadius,
   isSunlit,
+  passCalendar,
   propagateAt,
-  sampleTrack,
+  sampleTrackAcrossSets,
+  skyPath,
   sunVector,
   trackToGeoJSON,
+  type WindowPart,
 } from '@nadirline/shared';
 import type { AppContext } from '../../context.ts';
 import { readMultipart, refuseNulInJson } from '../../http/input-guards.ts';
@@ -34,6 +37,7 @@ import {
   createSatelliteBody,
   expressPath,
   idParam,
+  passesIcsQuery,
   passesQuery,
   positionQuery,
   positionsQuery,
@@ -130,6 +134,11 @@ function requireSet(c: CachedSatellite): CurrentSet {
   return c.current;
 }
 
+/** `{ id, epoch, ageDays }` of the set an answer used, its age at `atMs`. */
+export function elementSetRef(cur: CurrentSet, atMs: number) {
+  return { id: cur.record.id, epoch: cur.elementSet.epochIso, ageDays: round((atMs - cur.elementSet.epochMs) / 86_400_000, 4) };
+}
+
 function positionOf(cur: CurrentSet, atMs: number, name: string): { ok: false; error: HttpError } | { ok: true; value: V1Position } {
   const p = propagateAt(cur.satrec, atMs);
   if (!p.ok) return { ok: false as const, error: engineProblem(p.code, p.message, name) };
@@ -143,8 +152,14 @@ function positionOf(cur: CurrentSet, atMs: number, name: string): { ok: false; e
       speedKmS: round(p.speedKmS, 4),
       footprintRadiusKm: round(footprintRadius(p.altKm, 0).radiusKm, 1),
       sunlit: isSunlit(p.positionEciKm, sunVector(atMs)),
+      elementSet: elementSetRef(cur, atMs),
     },
   };
+}
+
+/** Window parts as the engine's multi-set functions take them: each part's set, starting where the part starts. */
+function partSets(parts: WindowPart<CurrentSet>[]) {
+  return parts.map((p) => ({ epochMs: p.startMs, satrec: p.set.satrec, cur: p.set }));
 }
 
 function uploadDetail(stored: number, duplicates: number, rejected: number): string {
@@ -164,8 +179,8 @@ function uploadDetail(stored: number, duplicates: number, rejected: number): str
 export async function createV1Router(ctx: AppContext): Promise<Router> {
   const router = Router();
   const sats = getSatelliteService(ctx);
-  const limiter = keyRateLimit();
-  const trackAnswers = new TrackAnswerCache();
+  const limiter = keyRateLimit(ctx);
+  const trackAnswers = new TrackAnswerCache({ maxBytes: ctx.config.TRACK_CACHE_MB * 1024 * 1024 });
   // Without PUBLIC_URL the server URL is relative: the document is right on any host and port.
   const openapi = buildOpenApi(ctx.config.PUBLIC_URL ? ctx.config.publicUrl : '/');
   const openapiText = JSON.stringify(openapi, null, 2);
@@ -234,19 +249,26 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
 
   keyed('get', '/satellites/:id/position', (req, res) => {
     const q = parseQuery(positionQuery, req);
-    const answer = (c: CachedSatellite) => {
-      const cur = requireSet(c);
-      const at = q.at ?? Date.now();
+    const send = (c: CachedSatellite, cur: CurrentSet, at: number) => {
       const p = positionOf(cur, at, c.satellite.name);
       if (!p.ok) throw p.error;
       res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
       const body: V1SatellitePosition = { satelliteId: c.satellite.id, ...p.value };
       sendJson(res, body);
     };
+    const answer = (c: CachedSatellite): Promise<void> | undefined => {
+      const cur = requireSet(c);
+      const at = q.at ?? Date.now();
+      // The set in force: the current set from its epoch on (no database read), else the history.
+      if (at >= cur.elementSet.epochMs) {
+        send(c, cur, at);
+        return undefined;
+      }
+      return sats.setAt(c, at).then((inForce) => send(c, inForce ?? cur, at));
+    };
     const c = visibleSatelliteNow(sats, authOf(res), req.params.id);
     if (c instanceof Promise) return c.then(answer);
-    answer(c);
-    return undefined;
+    return answer(c);
   });
 
   keyed('get', '/positions', async (req, res) => {
@@ -259,18 +281,21 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
       return !c || !canSee(auth, c.satellite);
     });
     if (missing.length > 0) throw new HttpError('not-found', `No satellite ${missing.join(', ')} is visible to this key.`, { missing });
-    const positions = (found as CachedSatellite[]).map((c): V1Positions['positions'][number] => {
-      const base = { id: c.satellite.id, name: c.satellite.name };
-      if (!c.current) return { ...base, error: { code: 'no-element-set', detail: `${c.satellite.name} has no element set yet.` } };
-      const p = positionOf(c.current, at, c.satellite.name);
-      return p.ok ? { ...base, ...p.value } : { ...base, error: { code: p.error.code, detail: p.error.detail } };
-    });
+    const positions = await Promise.all(
+      (found as CachedSatellite[]).map(async (c): Promise<V1Positions['positions'][number]> => {
+        const base = { id: c.satellite.id, name: c.satellite.name };
+        if (!c.current) return { ...base, error: { code: 'no-element-set', detail: `${c.satellite.name} has no element set yet.` } };
+        const cur = at >= c.current.elementSet.epochMs ? c.current : ((await sats.setAt(c, at)) ?? c.current);
+        const p = positionOf(cur, at, c.satellite.name);
+        return p.ok ? { ...base, ...p.value } : { ...base, error: { code: p.error.code, detail: p.error.detail } };
+      }),
+    );
     res.setHeader('Cache-Control', q.at !== undefined ? 'private, max-age=60' : 'no-store');
     const body: V1Positions = { t: iso(at), positions };
     res.json(body);
   });
 
-  /** The window of a track request: explicit start and end, or defaults from the orbit; refused beyond the caps. */
+  /** The window of a track request: explicit start and end, or defaults from the orbit (of the set in force at start); refused beyond the caps. */
   const trackWindow = (q: { start?: number | undefined; end?: number | undefined; step?: number | undefined }, cur: CurrentSet) => {
     const stepS = q.step ?? CAPS.trackDefaultStepS;
     const start = q.start ?? Math.floor(Date.now() / MINUTE_MS) * MINUTE_MS;
@@ -279,43 +304,66 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     checkWindow(start, end, stepS);
     return { start, end, stepS, count: Math.floor((end - start) / (stepS * 1000) + 1e-9) + 1 };
   };
+  /** The set in force at a track's start (its period sets the default window). */
+  const startSetOf = async (c: CachedSatellite, cur: CurrentSet, start: number) => (start >= cur.elementSet.epochMs ? cur : ((await sats.setAt(c, start)) ?? cur));
   /** Cache-Control of a track answer: public for whole-minute windows asked for explicitly. */
   const trackCaching = (q: { start?: number | undefined; end?: number | undefined }, start: number, end: number) => {
     const quantum = CAPS.trackCacheQuantumS * 1000;
     const explicit = q.start !== undefined && q.end !== undefined;
     return explicit && start % quantum === 0 && end % quantum === 0 ? 'public, max-age=600, stale-while-revalidate=60' : explicit ? 'private, max-age=60' : 'private, max-age=30';
   };
-  const trackEtag = (c: CachedSatellite, cur: CurrentSet, start: number, end: number, stepS: number, format: string) =>
-    `W/"${crypto.hash('sha1', `${c.satellite.id}|${cur.record.id}|${start}|${end}|${stepS}|${format}|${c.satellite.name}`, 'base64url').slice(0, 22)}"`;
+  /** ETag of a track answer: the satellite, every set in force over the window, the window and the format. */
+  const trackEtag = (c: CachedSatellite, parts: WindowPart<CurrentSet>[], start: number, end: number, stepS: number, format: string) =>
+    `W/"${crypto.hash('sha1', `${c.satellite.id}|${parts.map((p) => p.set.record.id).join(',')}|${start}|${end}|${stepS}|${format}|${c.satellite.name}`, 'base64url').slice(0, 22)}"`;
+  /** Samples of a window from the sets in force, split into parts where the set changes, with each part's description. Throws the engine's problem. */
+  const trackParts = (c: CachedSatellite, windowParts: WindowPart<CurrentSet>[], start: number, end: number, stepS: number) => {
+    const r = sampleTrackAcrossSets(partSets(windowParts), { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
+    if (!r.ok) throw engineProblem(r.code, r.message, c.satellite.name);
+    const samples = r.parts.length === 1 ? (r.parts[0]?.samples ?? []) : r.parts.flatMap((p) => p.samples);
+    let firstIndex = 0;
+    const parts = r.parts.map((p) => {
+      const first = p.samples[0]?.t ?? start;
+      const part = { elementSet: elementSetRef(p.set.cur, first), start: iso(first), end: iso(p.samples[p.samples.length - 1]?.t ?? first), firstIndex, count: p.samples.length };
+      firstIndex += p.samples.length;
+      return part;
+    });
+    return { r, samples, parts };
+  };
   /** The JSON text of one track answer, from the finished-answer cache or computed and kept there. Throws the engine's problem. */
-  const trackJson = (c: CachedSatellite, cur: CurrentSet, start: number, end: number, stepS: number, etag: string, extra: Record<string, string> = {}): string => {
-    const cachedAnswer = trackAnswers.get(etag);
-    let body = cachedAnswer?.body;
+  const trackJson = (c: CachedSatellite, windowParts: WindowPart<CurrentSet>[], start: number, end: number, stepS: number, etag: string, extra: Record<string, string> = {}): string | Buffer => {
+    // A cached answer is its UTF-8 bytes, sent as they are when nothing is added.
+    let body: string | Buffer | undefined = trackAnswers.get(etag)?.body;
     if (body === undefined) {
-      const r = sampleTrack(cur.satrec, { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
-      if (!r.ok) throw engineProblem(r.code, r.message, c.satellite.name);
+      const { r, samples, parts } = trackParts(c, windowParts, start, end, stepS);
+      const firstSet = r.parts[0]?.set.cur ?? (windowParts[0]?.set as CurrentSet);
       const headFields: Omit<V1Track, 'points'> = {
         satelliteId: c.satellite.id,
-        elementSetId: cur.record.id,
+        elementSetId: firstSet.record.id,
+        elementSet: elementSetRef(firstSet, start),
+        parts,
         start: iso(start),
-        end: iso(r.samples[r.samples.length - 1]?.t ?? end),
+        end: iso(samples[samples.length - 1]?.t ?? end),
         stepS,
-        count: r.samples.length,
+        count: samples.length,
       };
       const head = JSON.stringify(headFields);
-      body = `${head.slice(0, -1)},"points":${trackPointsJson(r.samples)}}`;
+      body = `${head.slice(0, -1)},"points":${trackPointsJson(samples)}}`;
       trackAnswers.set(etag, body, 'application/json; charset=utf-8');
     }
     const more = Object.entries(extra);
-    return more.length === 0 ? body : `${body.slice(0, -1)},${more.map(([k, v]) => `${JSON.stringify(k)}:${JSON.stringify(v)}`).join(',')}}`;
+    if (more.length === 0) return body;
+    const text = typeof body === 'string' ? body : body.toString('utf8');
+    return `${text.slice(0, -1)},${more.map(([k, v]) => `${JSON.stringify(k)}:${JSON.stringify(v)}`).join(',')}}`;
   };
 
   keyed('get', '/satellites/:id/track', async (req, res) => {
     const q = parseQuery(trackQuery, req);
     const c = await visibleSatellite(sats, authOf(res), req.params.id);
     const cur = requireSet(c);
-    const { start, end, stepS } = trackWindow(q, cur);
-    const etag = trackEtag(c, cur, start, end, stepS, q.format);
+    const startSet = await startSetOf(c, cur, q.start ?? Math.floor(Date.now() / MINUTE_MS) * MINUTE_MS);
+    const { start, end, stepS } = trackWindow(q, startSet);
+    const windowParts = await sats.setsInForce(c, start, end);
+    const etag = trackEtag(c, windowParts, start, end, stepS, q.format);
     res.setHeader('ETag', etag);
     res.setHeader('Vary', 'Origin, Authorization');
     res.setHeader('Cache-Control', trackCaching(q, start, end));
@@ -329,22 +377,25 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
         sendJson(res, cachedAnswer.body, cachedAnswer.type);
         return;
       }
-      const r = sampleTrack(cur.satrec, { startMs: start, endMs: end, stepS, maxSamples: CAPS.trackMaxPoints });
-      if (!r.ok) throw engineProblem(r.code, r.message, c.satellite.name);
-      const fc = trackToGeoJSON(r.samples, {
-        satelliteId: c.satellite.id,
-        name: c.satellite.name,
-        elementSetId: cur.record.id,
-        start: iso(start),
-        end: iso(end),
-        stepS,
-      });
-      const body = trackGeoJsonText(fc);
+      const { r, parts } = trackParts(c, windowParts, start, end, stepS);
+      // One MultiLineString feature per set in force (one feature when one set covers the window).
+      const features = r.parts.flatMap((p, i) =>
+        trackToGeoJSON(p.samples, {
+          satelliteId: c.satellite.id,
+          name: c.satellite.name,
+          elementSetId: p.set.cur.record.id,
+          elementSet: parts[i]?.elementSet,
+          start: parts[i]?.start,
+          end: i === r.parts.length - 1 ? iso(end) : parts[i]?.end,
+          stepS,
+        }).features,
+      );
+      const body = trackGeoJsonText({ type: 'FeatureCollection', features });
       trackAnswers.set(etag, body, 'application/geo+json; charset=utf-8');
       sendJson(res, body, 'application/geo+json; charset=utf-8');
       return;
     }
-    sendJson(res, trackJson(c, cur, start, end, stepS, etag));
+    sendJson(res, trackJson(c, windowParts, start, end, stepS, etag));
   });
 
   // One window for many satellites: each entry is the one-satellite answer (from the same cache)
@@ -356,13 +407,15 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     const start = q.start ?? Math.floor(Date.now() / MINUTE_MS) * MINUTE_MS;
     if (q.end !== undefined) checkWindow(start, q.end, stepS);
     const found = await Promise.all(q.ids.map((id) => sats.current(id)));
-    const plans = q.ids.map((id, i) => {
+    const plans = await Promise.all(q.ids.map(async (id, i) => {
       const c = found[i];
       if (!c || !canSee(auth, c.satellite)) return { id, error: new HttpError('not-found', `No satellite ${id} is visible to this key.`), name: null };
       if (!c.current) return { id, error: new HttpError('no-element-set', `${c.satellite.name} has no element set yet; upload one (TLE or OMM) first.`), name: c.satellite.name };
-      const w = trackWindow({ start, end: q.end, step: stepS }, c.current);
-      return { id, c, cur: c.current, w, name: c.satellite.name, etag: trackEtag(c, c.current, w.start, w.end, w.stepS, 'json') };
-    });
+      const startSet = await startSetOf(c, c.current, start);
+      const w = trackWindow({ start, end: q.end, step: stepS }, startSet);
+      const windowParts = await sats.setsInForce(c, w.start, w.end);
+      return { id, c, windowParts, w, name: c.satellite.name, etag: trackEtag(c, windowParts, w.start, w.end, w.stepS, 'json') };
+    }));
     const points = plans.reduce((n, p) => n + ('w' in p && p.w ? p.w.count : 0), 0);
     if (points > CAPS.tracksMaxPoints) {
       throw new HttpError('validation-failed', `These ${q.ids.length} tracks would hold ${points} points; at most ${CAPS.tracksMaxPoints} per request. Use a larger step, a shorter window or fewer ids.`, {
@@ -379,9 +432,9 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     }
     const entries = plans.map((p) => {
       const fail = (e: HttpError) => JSON.stringify({ satelliteId: p.id, name: p.name, error: { code: e.code, status: e.status, detail: e.detail } });
-      if (!('c' in p) || !p.c || !p.cur || !p.w || !p.etag) return fail(p.error!);
+      if (!('c' in p) || !p.c || !p.windowParts || !p.w || !p.etag) return fail(p.error!);
       try {
-        return trackJson(p.c, p.cur, p.w.start, p.w.end, p.w.stepS, p.etag, { name: p.c.satellite.name });
+        return trackJson(p.c, p.windowParts, p.w.start, p.w.end, p.w.stepS, p.etag, { name: p.c.satellite.name });
       } catch (e) {
         if (e instanceof HttpError) return fail(e);
         throw e;
@@ -390,27 +443,28 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     sendJson(res, `{"start":${JSON.stringify(iso(start))},"stepS":${stepS},"tracks":[${entries.join(',')}]}`);
   });
 
-  keyed('get', '/satellites/:id/passes', async (req, res) => {
-    const q = parseQuery(passesQuery, req);
-    const c = await visibleSatellite(sats, authOf(res), req.params.id);
-    const cur = requireSet(c);
-    const start = q.start ?? Date.now();
-    const r = findPasses(cur.satrec, { latDeg: q.lat, lonDeg: q.lon, altM: q.altM }, { startMs: start, days: q.days, minElevationDeg: q.minElevation });
+  /** Passes from the sets in force over the window (piecewise), or the problem to answer. */
+  const passesOver = async (c: CachedSatellite, observer: { latDeg: number; lonDeg: number; altM: number }, startMs: number, days: number, minElevationDeg: number) => {
+    requireSet(c);
+    const windowParts = await sats.setsInForce(c, startMs, startMs + days * 86_400_000);
+    const r = findPassesAcrossSets(partSets(windowParts), observer, { startMs, days, minElevationDeg });
     if (!r.ok) {
       if (r.code === 'invalid-observer' || r.code === 'invalid-window') {
         throw new HttpError('validation-failed', r.message, { errors: [{ where: 'query', message: r.message }] });
       }
       throw engineProblem(r.code, r.message, c.satellite.name);
     }
-    res.setHeader('Cache-Control', q.start !== undefined ? 'private, max-age=300' : 'private, max-age=60');
-    const body: V1Passes = {
-      satelliteId: c.satellite.id,
-      observer: { lat: q.lat, lon: q.lon, altM: q.altM },
-      start: iso(start),
-      end: iso(start + q.days * 86_400_000),
-      minElevation: q.minElevation,
-      alwaysUp: r.alwaysUp,
-      passes: r.passes.map((p) => ({
+    return r;
+  };
+
+  keyed('get', '/satellites/:id/passes', async (req, res) => {
+    const q = parseQuery(passesQuery, req);
+    const c = await visibleSatellite(sats, authOf(res), req.params.id);
+    const start = q.start ?? Date.now();
+    const observer = { latDeg: q.lat, lonDeg: q.lon, altM: q.altM };
+    const r = await passesOver(c, observer, start, q.days, q.minElevation);
+    const passes = r.passes.map((p) => {
+      const base = {
         rise: { t: iso(p.rise.t), azimuth: round(p.rise.azimuthDeg, 2) },
         culmination: {
           t: iso(p.culmination.t),
@@ -422,9 +476,78 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
         visible: p.visible,
         inProgressAtStart: p.inProgressAtStart,
         inProgressAtEnd: p.inProgressAtEnd,
-      })),
+      };
+      if (!q.path) return base;
+      const sky = skyPath(p.inForce.satrec, observer, p, CAPS.skyPathStepS);
+      if (!sky.ok) throw engineProblem(sky.code, sky.message, c.satellite.name);
+      return {
+        ...base,
+        path: sky.points.map((pt) => ({ t: iso(pt.t), azimuth: round(pt.azimuthDeg, 2), elevation: round(pt.elevationDeg, 2), sunlit: pt.sunlit, dark: pt.dark })),
+      };
+    });
+    const first = r.sets[0]?.cur ?? requireSet(c);
+    res.setHeader('Cache-Control', q.start !== undefined ? 'private, max-age=300' : 'private, max-age=60');
+    const body: V1Passes = {
+      satelliteId: c.satellite.id,
+      elementSet: elementSetRef(first, start),
+      elementSets: r.sets.map((s, i) => elementSetRef(s.cur, i === 0 ? start : s.epochMs)),
+      observer: { lat: q.lat, lon: q.lon, altM: q.altM },
+      start: iso(start),
+      end: iso(start + q.days * 86_400_000),
+      minElevation: q.minElevation,
+      alwaysUp: r.alwaysUp,
+      passes,
     };
     res.json(body);
+  });
+
+  keyed('get', '/satellites/:id/passes.ics', async (req, res) => {
+    const q = parseQuery(passesIcsQuery, req);
+    const c = await visibleSatellite(sats, authOf(res), req.params.id);
+    // Calendars start at the current minute, so polls within a minute answer the same document.
+    const now = Date.now();
+    const start = Math.floor(now / MINUTE_MS) * MINUTE_MS;
+    const observer = { latDeg: q.lat, lonDeg: q.lon, altM: q.altM };
+    const r = await passesOver(c, observer, start, q.days, q.minElevation);
+    const passes = r.passes.filter((p) => !p.inProgressAtStart && (!q.visible || p.visible));
+    const text = passCalendar({ satellite: { id: c.satellite.id, name: c.satellite.name }, observer, passes, generatedMs: start, minElevationDeg: q.minElevation });
+    const etag = `W/"${crypto.hash('sha1', text, 'base64url').slice(0, 22)}"`;
+    res.setHeader('ETag', etag);
+    res.setHeader('Cache-Control', 'private, max-age=3600');
+    res.setHeader('Vary', 'Origin, Authorization');
+    res.setHeader('Content-Disposition', `inline; filename="${c.satellite.name.replace(/[^A-Za-z0-9._-]+/g, '-') || 'satellite'}-passes.ics"`);
+    if (req.fresh) {
+      res.status(304).end();
+      return;
+    }
+    sendJson(res, text, 'text/calendar; charset=utf-8');
+  });
+
+  keyed('get', '/satellites/:id/element-sets', async (req, res) => {
+    const auth = authOf(res);
+    if (auth.key.kind !== 'server' && auth.via !== 'preview') {
+      throw new HttpError('forbidden', 'The element-set history is for server keys and console previews; browser keys and embeds answer public pages.');
+    }
+    const c = await visibleSatellite(sats, auth, req.params.id);
+    const records = await sats.listElementSets(c.satellite.id);
+    const uploaders = await sats.uploaderNames(records);
+    const now = new Date();
+    res.setHeader('Cache-Control', 'private, no-cache');
+    res.json({
+      satelliteId: c.satellite.id,
+      currentElementSetId: c.satellite.currentElementSetId,
+      elementSets: records.map((rec) => {
+        const es = parsedOf(rec);
+        const d = sats.derived(es, now);
+        return {
+          ...sats.summary(rec, es, now, uploaders),
+          meanMotionRevPerDay: es.meanMotionRevPerDay,
+          apogeeAltKm: round(d.apogeeAltKm, 3),
+          perigeeAltKm: round(d.perigeeAltKm, 3),
+          inclinationDeg: es.inclinationDeg,
+        };
+      }),
+    });
   });
 
   // -- writes ----------------------------------------------------------------------------------
