@@ -6,4 +6,5 @@
 export type * from './types.ts';
 export * from './elements/index.ts';
 export * from './orbit/index.ts';
+export * from './markup.ts';
 export * from './calendar/ical.ts';

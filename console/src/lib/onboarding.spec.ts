@@ -6,7 +6,7 @@ import { onboardingDone } from './onboarding.ts';
 const bare: SatelliteListItem = { id: 's1', name: 'Wren', catalogNumber: null, description: null, current: null, derived: null };
 const withSet: SatelliteListItem = {
   ...bare,
-  current: { id: 'es1', source: 'tle', epoch: '2031-01-01T00:00:00Z', ageDays: 1, staleness: 'fresh', uploadedBy: null, createdAt: '2031-01-01T00:00:00Z', catalogNumber: '99901', name: 'WREN' },
+  current: { id: 'es1', source: 'tle', epoch: '2031-01-01T00:00:00Z', ageDays: 1, staleness: 'fresh', uploadedBy: null, createdAt: '2031-01-01T00:00:00Z', catalogNumber: '99901', name: 'WREN', continuity: null, awaitingConfirmation: false },
 };
 const embed = { id: 'e1', name: 'Lobby' } as Embed;
 const SELF = 'https://console.nadirline.test';

@@ -8,7 +8,7 @@ function sat(name: string, catalogNumber: string | null, ageDays: number | null,
     name,
     catalogNumber,
     description: null,
-    current: ageDays === null ? null : { id: `es-${name}`, source: 'tle', epoch: new Date(Date.UTC(2031, 0, 10) - ageDays * 86_400_000).toISOString(), ageDays, staleness: 'fresh', uploadedBy: null, createdAt: '2031-01-01T00:00:00Z', catalogNumber: catalogNumber ?? '', name },
+    current: ageDays === null ? null : { id: `es-${name}`, source: 'tle', epoch: new Date(Date.UTC(2031, 0, 10) - ageDays * 86_400_000).toISOString(), ageDays, staleness: 'fresh', uploadedBy: null, createdAt: '2031-01-01T00:00:00Z', catalogNumber: catalogNumber ?? '', name, continuity: null, awaitingConfirmation: false },
     derived: periodMin === null ? null : ({ periodMin, inclinationDeg: periodMin / 2 } as SatelliteListItem['derived']),
   };
 }

@@ -6,6 +6,7 @@
  * app.ts mounts it at /dev only when NODE_ENV is not production, and it answers only clients on
  * this machine (loopback addresses): the mailbox holds password-reset and invitation links.
  */
+import { escapeMarkup as esc } from '@nadirline/shared';
 import { Router } from 'express';
 import type { AppContext } from '../context.ts';
 import { HttpError } from '../http/problem.ts';
@@ -13,9 +14,6 @@ import { securityHeaders } from '../http/security.ts';
 import { settleAfterResponse } from '../services/after-response.ts';
 import { getMailService, type KeptMessage } from '../services/mail.ts';
 
-function esc(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c);
-}
 
 function page(messages: KeptMessage[]): string {
   const items = [...messages]

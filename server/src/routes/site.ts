@@ -24,6 +24,7 @@ import { createHash } from 'node:crypto';
 import fs from 'node:fs';
 import { createRequire } from 'node:module';
 import path from 'node:path';
+import { escapeMarkup as esc } from '@nadirline/shared';
 import express, { Router, type Request, type Response } from 'express';
 import { repoRoot } from '../config.ts';
 import type { AppContext } from '../context.ts';
@@ -40,9 +41,6 @@ const FAVICON_SVG =
 const YEAR_S = 31_536_000;
 const HASHED = /[.-][A-Za-z0-9_-]{8,}\.[a-z0-9]+$/;
 
-export function esc(s: string): string {
-  return s.replace(/[&<>"']/g, (c) => ({ '&': '&amp;', '<': '&lt;', '>': '&gt;', '"': '&quot;', "'": '&#39;' })[c] ?? c);
-}
 
 /** Escaped text with `backticks` shown as code. */
 function prose(s: string): string {
@@ -137,7 +135,7 @@ function fieldsTable(schema: Json | undefined): string {
   if (!props) return '';
   const rows = Object.entries(props).map(([k, v]) => {
     const inner = v.type === 'array' ? (v.items as Json | undefined) : v;
-    const nested = inner?.properties ? ` <span class="muted">{ ${Object.keys(inner.properties as Json).map(esc).join(', ')} }</span>` : '';
+    const nested = inner?.properties ? ` <span class="muted">{ ${Object.keys(inner.properties as Json).map((k) => esc(k)).join(', ')} }</span>` : '';
     return { cells: [`<code>${esc(k)}</code>`, `${schemaText(v)}${nested}`, esc(String(v.description ?? ''))] };
   });
   return stackTable(['field', 'type', 'meaning'], rows);

@@ -6,6 +6,7 @@
  * reported at its own line and column (the library's parser keeps no positions).
  */
 import { XMLValidator } from 'fast-xml-parser';
+import { escapeMarkup } from '../markup.ts';
 import type { ElementSet, ElementSetError, ParseResult, ParsedEntry } from '../types.ts';
 import { reject } from './errors.ts';
 import type { FieldLocation } from './errors.ts';
@@ -354,9 +355,7 @@ export function parseOmmXml(text: string): ParseResult {
   return (messages[0] as ParsedEntry).result;
 }
 
-function escapeXml(s: string): string {
-  return s.replace(/&/g, '&amp;').replace(/</g, '&lt;').replace(/>/g, '&gt;').replace(/"/g, '&quot;').replace(/'/g, '&apos;');
-}
+const escapeXml = (s: string) => escapeMarkup(s, 'xml');
 
 function ommElement(es: ElementSet, options: OmmExportOptions, indent: string): string {
   const s = ommSections(es, options);

@@ -1,5 +1,5 @@
 import { Body, GeoVector, RotateVector, Rotation_EQJ_EQD, SiderealTime } from 'astronomy-engine';
-import { eciToGeodetic, jday, shadowFraction, sunPos } from 'satellite.js';
+import { eciToGeodetic, gstime, jday, shadowFraction, sunPos } from 'satellite.js';
 import { describe, expect, it } from 'vitest';
 import { DEG_PER_RAD } from './constants.ts';
 import { cartesianToGeodetic, geodeticToEcef, gmstRad, isSunlit, julianDateFromMs, sunVector, wrap360Deg, wrapLonDeg } from './frames.ts';
@@ -51,6 +51,22 @@ describe('WGS-84 geodetic conversion', () => {
 });
 
 describe('the Sun', () => {
+  it('gives what satellite.js sunPos and gstime give (the same Vallado formulas, written in the engine)', () => {
+    for (let ms = Date.UTC(1990, 0, 1); ms < Date.UTC(2060, 0, 1); ms += 86_400_000 * 37.3) {
+      const jd = julianDateFromMs(ms);
+      const ref = sunPos(jd);
+      const au = Math.hypot(ref.rsun.x, ref.rsun.y, ref.rsun.z);
+      const ours = sunVector(ms);
+      expect(ours.x).toBeCloseTo(ref.rsun.x / au, 12);
+      expect(ours.y).toBeCloseTo(ref.rsun.y / au, 12);
+      expect(ours.z).toBeCloseTo(ref.rsun.z / au, 12);
+      expect(ours.distanceKm).toBeCloseTo(au * 149597870.7, 3);
+      expect(ours.rightAscensionRad).toBeCloseTo(ref.rtasc, 12);
+      expect(ours.declinationRad).toBeCloseTo(ref.decl, 12);
+      expect(gmstRad(ms)).toBeCloseTo(gstime(jd), 12);
+    }
+  });
+
   it('stands at RA 198.38083 deg, dec -7.78507 deg on 1992 October 13.0 TD (Meeus example 25.a), within 0.01 deg', () => {
     // references.md: satellite.js sunPos (7.1.0) agrees with Meeus to about 0.01 deg.
     const { rtasc, decl } = sunPos(2448908.5);

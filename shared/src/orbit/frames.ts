@@ -2,7 +2,6 @@
  * Time scales, Earth rotation, the WGS-84 ellipsoid and the Sun: the small pieces every other
  * orbit module stands on. Pure functions; angles in radians unless the name says Deg.
  */
-import { gstime, sunPos } from 'satellite.js';
 import {
   AU_KM,
   DEG_PER_RAD,
@@ -10,6 +9,7 @@ import {
   ECCENTRICITY_SQ_WGS84,
   JD_UNIX_EPOCH,
   MS_PER_DAY,
+  RAD_PER_DEG,
 } from './constants.ts';
 
 /** A Cartesian vector; the frame and unit are in the name of the field that holds it. */
@@ -31,9 +31,17 @@ export function msFromJulianDate(jd: number): number {
   return (jd - JD_UNIX_EPOCH) * MS_PER_DAY;
 }
 
-/** Greenwich mean sidereal time, rad in [0, 2 pi) (Vallado eq. 3-45 through satellite.js gstime). */
+/**
+ * Greenwich mean sidereal time, rad in [0, 2 pi) (Vallado, Fundamentals of Astrodynamics and
+ * Applications, eq. 3-45, the IAU-82 polynomial SGP4 uses). Written here rather than imported
+ * from satellite.js so the Sun and Earth module pulls nothing of SGP4 into the widget's bundle;
+ * frames.spec.ts checks it equals satellite.js's gstime.
+ */
 export function gmstRad(ms: number): number {
-  return gstime(julianDateFromMs(ms));
+  const tut1 = (julianDateFromMs(ms) - 2451545.0) / 36525.0;
+  const sec = -6.2e-6 * tut1 * tut1 * tut1 + 0.093104 * tut1 * tut1 + (876600.0 * 3600 + 8640184.812866) * tut1 + 67310.54841;
+  const rad = ((sec * RAD_PER_DEG) / 240.0) % TWO_PI; // 360 deg per 86400 s = 1/240 deg per s
+  return rad < 0 ? rad + TWO_PI : rad;
 }
 
 /** Wrap an angle in degrees to [-180, 180). */
@@ -120,19 +128,33 @@ export interface SunVector {
 }
 
 /**
- * Sun direction and distance (Vallado's low-precision solar ephemeris, about 0.01 deg for
- * 1950-2050, through satellite.js sunPos; references.md checks it against Meeus example 25.a).
+ * Sun direction and distance (Vallado's low-precision solar ephemeris, Fundamentals of
+ * Astrodynamics and Applications, algorithm 29: about 0.01 deg for 1950-2050; references.md
+ * checks it against Meeus example 25.a). The same formulas as satellite.js sunPos, written here
+ * so the widget can draw the night without SGP4 in its bundle; frames.spec.ts checks they agree.
  */
 export function sunVector(ms: number): SunVector {
-  const { rsun, rtasc, decl } = sunPos(julianDateFromMs(ms));
-  const au = Math.sqrt(rsun.x * rsun.x + rsun.y * rsun.y + rsun.z * rsun.z);
+  const tut1 = (julianDateFromMs(ms) - 2451545.0) / 36525.0;
+  const meanLongDeg = (280.46 + 36000.77 * tut1) % 360;
+  let meanAnomaly = ((357.5277233 + 35999.05034 * tut1) * RAD_PER_DEG) % TWO_PI;
+  if (meanAnomaly < 0) meanAnomaly += TWO_PI;
+  const eclLong = ((meanLongDeg + 1.914666471 * Math.sin(meanAnomaly) + 0.019994643 * Math.sin(2 * meanAnomaly)) % 360) * RAD_PER_DEG;
+  const obliquity = (23.439291 - 0.0130042 * tut1) * RAD_PER_DEG;
+  const au = 1.000140612 - 0.016708617 * Math.cos(meanAnomaly) - 0.000139589 * Math.cos(2 * meanAnomaly);
+  const rx = au * Math.cos(eclLong);
+  const ry = au * Math.cos(obliquity) * Math.sin(eclLong);
+  const rz = au * Math.sin(obliquity) * Math.sin(eclLong);
+  // right ascension in the quadrant of the ecliptic longitude
+  let ra = Math.atan(Math.cos(obliquity) * Math.tan(eclLong));
+  if (Math.abs(eclLong - ra) > Math.PI / 2) ra += (Math.PI / 2) * Math.round((eclLong - ra) / (Math.PI / 2));
+  const norm = Math.sqrt(rx * rx + ry * ry + rz * rz);
   return {
-    x: rsun.x / au,
-    y: rsun.y / au,
-    z: rsun.z / au,
-    distanceKm: au * AU_KM,
-    rightAscensionRad: rtasc,
-    declinationRad: decl,
+    x: rx / norm,
+    y: ry / norm,
+    z: rz / norm,
+    distanceKm: norm * AU_KM,
+    rightAscensionRad: ra,
+    declinationRad: Math.asin(Math.sin(obliquity) * Math.sin(eclLong)),
   };
 }
 
