@@ -118,7 +118,7 @@ describe('satellite chips', () => {
       const m = await w.page.evaluate(() => {
         const sr = document.querySelector('nadir-track')!.shadowRoot!;
         const views = sr.querySelector('.views')!.getBoundingClientRect();
-        const chips = [...sr.querySelectorAll<HTMLElement>('button.chip')].map((c) => {
+        const chips = Array.from(sr.querySelectorAll<HTMLElement>('button.chip')).map((c) => {
           const r = c.getBoundingClientRect();
           const hit = document.elementFromPoint(r.left + r.width / 2, r.top + r.height / 2);
           return {
