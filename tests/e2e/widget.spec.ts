@@ -303,12 +303,14 @@ describe('<nadir-track> on the science centre example', () => {
         const box = sr.querySelector('.mapbox')!.getBoundingClientRect();
         const about = sr.querySelector('.about')!.getBoundingClientRect();
         const scroller = sr.querySelector('.nadir')!;
-        return { frameH: frame.height, frameBottom: frame.bottom, boxH: box.height, aboutBottom: about.bottom, overflows: scroller.scrollHeight > scroller.clientHeight + 1 };
+        return { frameH: frame.height, frameW: frame.width, frameBottom: frame.bottom, boxH: box.height, aboutBottom: about.bottom, overflows: scroller.scrollHeight > scroller.clientHeight + 1 };
       });
       expect(m.frameH).toBeCloseTo(height, 0);
       expect(m.frameBottom - m.aboutBottom).toBeLessThan(14); // the frame's padding and border, no band
       expect(m.overflows).toBe(false);
-      expect(m.boxH).toBeGreaterThan(height * 0.6); // the map took the rest
+      // The map takes the rest, or at a phone's width at least its own Equal Earth shape (about 2.05:1)
+      // when the pass list and the time control share the height below it.
+      expect(m.boxH).toBeGreaterThan(Math.min(height * 0.6, (m.frameW - 24) / 2.1));
       await w.page.screenshot({ path: path.join(ARTIFACTS, `fixed-height-${width}.png`) });
       expect(w.pageErrors).toEqual([]);
       await w.ctx.close();
@@ -329,7 +331,7 @@ describe('<nadir-track> on the science centre example', () => {
     await ctx.close();
   });
 
-  it('keeps the satellite buttons to one scrolling row at 320 px, so the map keeps its height', async () => {
+  it('keeps the satellite buttons whole at 320 px (they wrap into rows), so the map keeps its height', async () => {
     const w = await open(`${server.url}/examples/science-centre.html`, { width: 320 });
     await w.page.waitForFunction(() => (document.querySelector('nadir-track')?.shadowRoot?.querySelectorAll('button.chip').length ?? 0) >= 4);
     const m = await w.page.evaluate(() => {
@@ -337,11 +339,13 @@ describe('<nadir-track> on the science centre example', () => {
       const tops = Array.from(sr.querySelectorAll('.chip')).map((c) => Math.round(c.getBoundingClientRect().top));
       const bar = sr.querySelector('.bar')!.getBoundingClientRect();
       const chips = sr.querySelector('.chips')!;
-      return { rows: new Set(tops).size, barH: bar.height, scrolls: chips.scrollWidth > chips.clientWidth, box: sr.querySelector('.mapbox')!.getBoundingClientRect().height };
+      const cut = Array.from(sr.querySelectorAll<HTMLElement>('.chip')).filter((c) => c.scrollWidth > c.clientWidth + 1).length;
+      return { rows: new Set(tops).size, barH: bar.height, sideways: chips.scrollWidth > chips.clientWidth + 1, cut, box: sr.querySelector('.mapbox')!.getBoundingClientRect().height };
     });
-    expect(m.rows).toBe(1);
-    expect(m.barH).toBeLessThan(48);
-    expect(m.scrolls).toBe(true);
+    expect(m.rows).toBeGreaterThanOrEqual(1);
+    expect(m.rows).toBeLessThanOrEqual(3);
+    expect(m.cut).toBe(0);
+    expect(m.sideways).toBe(false);
     expect(m.box).toBeGreaterThan(110);
     await w.ctx.close();
   });

@@ -154,7 +154,9 @@ export class NadirApi {
     if (!res.ok) return problemFrom(res);
     try {
       return { ok: true, value: (await res.json()) as T };
-    } catch {
+    } catch (e) {
+      // A request given up while its body was still arriving is not a bad answer.
+      if (signal?.aborted || (e as { name?: string } | null)?.name === 'AbortError') return { ok: false, code: 'aborted', status: 0, title: 'Aborted', detail: '' };
       return { ok: false, code: 'bad-answer', status: res.status, title: 'Unreadable answer', detail: '' };
     }
   }
