@@ -41,15 +41,13 @@ export class FakeMailbox {
         const chunks: Buffer[] = [];
         stream.on('data', (c: Buffer) => chunks.push(c));
         stream.on('end', () => {
-          try {
-            const raw = Buffer.concat(chunks).toString('latin1');
-            const to = session.envelope.rcptTo.map((a) => a.address).join(', ');
-            const from = session.envelope.mailFrom ? session.envelope.mailFrom.address : '';
-            this.keep(raw, to, from);
-            callback();
-          } catch (err) {
-            callback(err as Error);
-          }
+          const to = session.envelope.rcptTo.map((a) => a.address).join(', ');
+          const from = session.envelope.mailFrom ? session.envelope.mailFrom.address : '';
+          // The sender hears "accepted" only once the message is kept, so it is listed at once.
+          this.keep(Buffer.concat(chunks), to, from).then(
+            () => callback(),
+            (err: unknown) => callback(err as Error),
+          );
         });
       },
     });
@@ -63,8 +61,8 @@ export class FakeMailbox {
     return this.port;
   }
 
-  keep(raw: string, to: string, from: string): KeptMessage {
-    const parsed = parseMessage(raw);
+  async keep(raw: string | Buffer, to: string, from: string): Promise<KeptMessage> {
+    const parsed = await parseMessage(raw);
     const message: KeptMessage = {
       id: this.nextId++,
       to: to || parsed.to,

@@ -3,7 +3,7 @@ import type { Sequelize } from 'sequelize';
 import { afterEach, describe, expect, it } from 'vitest';
 import { loadConfig } from '../config.ts';
 import type { AppContext } from '../context.ts';
-import { decodeEncodedWords, extractLinks, getMailService, invitationMail, parseMessage } from './mail.ts';
+import { extractLinks, getMailService, invitationMail, parseMessage } from './mail.ts';
 
 const closers: Array<() => Promise<void> | void> = [];
 afterEach(async () => {
@@ -73,8 +73,8 @@ describe('mail service with the built-in fake SMTP server', () => {
   });
 });
 
-describe('minimal MIME reading', () => {
-  it('reads a base64 text part inside a multipart message', () => {
+describe('reading received messages (mailparser)', () => {
+  it('reads a base64 text part inside a multipart message', async () => {
     const raw = [
       'To: c@example.test',
       'Subject: =?UTF-8?B?w4lsw6ltZW50cw==?= du jour',
@@ -88,13 +88,14 @@ describe('minimal MIME reading', () => {
       '--b1--',
       '',
     ].join('\r\n');
-    const m = parseMessage(raw);
+    const m = await parseMessage(raw);
     expect(m.subject).toBe('Éléments du jour');
     expect(m.text).toBe('Épopée https://x.test/a.');
     expect(extractLinks(m.text)).toEqual(['https://x.test/a']);
   });
 
-  it('joins adjacent encoded words without the space between them', () => {
-    expect(decodeEncodedWords('=?UTF-8?Q?Caf=C3=A9?= =?UTF-8?Q?_ouvert?=')).toBe('Café ouvert');
+  it('joins adjacent encoded words without the space between them', async () => {
+    const m = await parseMessage(['To: c@example.test', 'Subject: =?UTF-8?Q?Caf=C3=A9?= =?UTF-8?Q?_ouvert?=', '', 'x', ''].join('\r\n'));
+    expect(m.subject).toBe('Café ouvert');
   });
 });

@@ -19,7 +19,7 @@ import type { AppContext } from '../context.ts';
 import type { FakeMailbox } from './fake-mailbox.ts';
 
 export type { KeptMessage } from './fake-mailbox.ts';
-export { decodeEncodedWords, decodeQuotedPrintable, extractLinks, parseMessage, type ParsedMessage } from './mime.ts';
+export { extractLinks, parseMessage, type ParsedMessage } from './mime.ts';
 
 declare module '../context.ts' {
   interface AppServices {
