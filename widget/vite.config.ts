@@ -61,7 +61,7 @@ export default defineConfig({
     __VUE_PROD_HYDRATION_MISMATCH_DETAILS__: 'false',
   },
   build: {
-    target: 'es2020',
+    target: 'es2022',
     outDir: 'dist',
     // Hashed files of earlier builds stay beside the new ones: during a rolling restart a page
     // loaded from a process of the previous release still finds its files on the new ones.
