@@ -61,7 +61,7 @@ export default defineConfig({
     __VUE_PROD_HYDRATION_MISMATCH_DETAILS__: 'false',
   },
   build: {
-    target: 'es2020',
+    target: 'es2022',
     outDir: 'dist',
     // Hashed files of earlier builds stay beside the new ones: during a rolling restart a page
     // loaded from a process of the previous release still finds its files on the new ones.
@@ -73,6 +73,9 @@ export default defineConfig({
       output: { minify: !process.env.NADIR_DEBUG_BUILD, comments: { annotation: false, legal: false, jsdoc: false } },
       // assets.ts reads import.meta.url only after document.currentScript, which the classic script has
       checks: { emptyImportMeta: false },
+      // d3-array builds its bisect helpers at load time; the widget uses none of them (d3-geo takes
+      // Adder, merge and range), so these calls may go when nothing reads their results
+      treeshake: { manualPureFunctions: ['bisector'] },
     },
     lib: {
       entry: 'src/auto.ts',

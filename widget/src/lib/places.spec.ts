@@ -2,6 +2,7 @@ import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
 import type { Feature, FeatureCollection, Geometry, Polygon } from 'geojson';
+import { geoBounds } from 'd3-geo';
 import { feature } from 'topojson-client';
 import type { GeometryCollection, Topology } from 'topojson-specification';
 import { namedAreas, oceanName, placeName } from './places.ts';
@@ -82,5 +83,32 @@ describe('oceanName', () => {
     [35, 18, 'the Mediterranean Sea'],
   ])('calls %f, %f %s', (lat, lon, name) => {
     expect(oceanName(lat, lon)).toBe(name);
+  });
+});
+
+describe('namedAreas boxes', () => {
+  it('hold the whole of every shipped country (d3-geo geoBounds inside the box)', () => {
+    const areas = shippedCountries();
+    expect(areas.length).toBeGreaterThan(150);
+    for (const a of areas) {
+      const [[w, s], [e, n]] = a.bounds;
+      const [[gw, gs], [ge, gn]] = geoBounds(a.feature);
+      expect(s, a.name).toBeLessThanOrEqual(gs);
+      expect(n, a.name).toBeGreaterThanOrEqual(gn);
+      if (gw <= ge) {
+        expect(w, a.name).toBeLessThanOrEqual(gw);
+        expect(e, a.name).toBeGreaterThanOrEqual(ge);
+      } else {
+        // across the antimeridian: the box takes every longitude
+        expect([w, e], a.name).toEqual([-180, 180]);
+      }
+    }
+  });
+  it('take the whole Earth for an area without outline points', () => {
+    const [a] = namedAreas([{ type: 'Feature', properties: { name: 'Nowhere' }, geometry: { type: 'GeometryCollection', geometries: [] } }]);
+    expect(a!.bounds).toEqual([
+      [-180, -90],
+      [180, 90],
+    ]);
   });
 });

@@ -3,21 +3,56 @@
  * countries when the point is on land, otherwise a coarse ocean name from longitude and
  * latitude boxes drawn for Nadirline (good enough for "over the South Atlantic", not a gazetteer).
  */
-import { geoBounds, geoContains } from 'd3-geo';
+import { geoContains } from 'd3-geo';
 import type { Feature, Geometry } from 'geojson';
 import { english, type Translate, type WordKey } from './words.ts';
 
 export interface NamedArea {
   name: string;
   feature: Feature<Geometry, { name?: string }>;
-  /** [[west, south], [east, north]] from geoBounds; west > east when the area spans the antimeridian. */
+  /** [[west, south], [east, north]]; west > east when the area spans the antimeridian. */
   bounds: [[number, number], [number, number]];
+}
+
+/**
+ * A box around an area's outline points, one degree wider on every side for the bulge of its
+ * edges (great-circle arcs, a small fraction of a degree between the 110m outline's points):
+ * only a first sieve before geoContains, so it need only hold the whole area (places.spec.ts
+ * checks it holds d3-geo's geoBounds of every shipped country). Cheaper in bytes than geoBounds.
+ */
+function outlineBox(g: Geometry | null): NamedArea['bounds'] {
+  let w = 180;
+  let s = 90;
+  let e = -180;
+  let n = -90;
+  const walk = (c: unknown): void => {
+    if (typeof (c as number[])[0] === 'number') {
+      const [x, y] = c as [number, number];
+      w = Math.min(w, x);
+      e = Math.max(e, x);
+      s = Math.min(s, y);
+      n = Math.max(n, y);
+    } else (c as unknown[]).forEach(walk);
+  };
+  if (g && 'coordinates' in g) walk(g.coordinates);
+  // no outline, or one round every longitude, which may hold a pole (Antarctica) or cross the
+  // antimeridian (Russia, Fiji): the whole Earth, no sieve
+  if (e - w >= 359 || w > e) {
+    return [
+      [-180, -90],
+      [180, 90],
+    ];
+  }
+  return [
+    [Math.max(-180, w - 1), Math.max(-90, s - 1)],
+    [Math.min(180, e + 1), Math.min(90, n + 1)],
+  ];
 }
 
 export function namedAreas(features: readonly Feature<Geometry, { name?: string }>[]): NamedArea[] {
   return features
     .filter((f) => typeof f.properties?.name === 'string')
-    .map((f) => ({ name: f.properties.name!, feature: f, bounds: geoBounds(f) }));
+    .map((f) => ({ name: f.properties.name!, feature: f, bounds: outlineBox(f.geometry) }));
 }
 
 function inBounds(b: NamedArea['bounds'], lat: number, lon: number): boolean {
