@@ -9,6 +9,7 @@ import request from 'supertest';
 import { describe, expect, it } from 'vitest';
 import { writeLockOf } from '@nadirline/server/db/index.ts';
 import { leoTle, startKeyedApp } from '../support/app.ts';
+import { onPgRedis } from '../support/stores.ts';
 import { runWriteLoad } from '../support/write-load.ts';
 
 describe('20 parallel writers on one SQLite file', () => {
@@ -28,7 +29,10 @@ describe('20 parallel writers on one SQLite file', () => {
   }, 180_000);
 });
 
-describe('a write that cannot get its turn in time', () => {
+// The write queue is SQLite's (server/src/db/write-lock.ts): one writer at a time, the others
+// wait their turn. PostgreSQL has no such queue (writers wait on row locks), so on the
+// PostgreSQL run this case is reported as skipped under this name, not left out silently.
+describe.skipIf(onPgRedis)('on SQLite only (its write queue; PostgreSQL has none): a write that cannot get its turn in time', () => {
   it('answers 503 busy with Retry-After, stores nothing, and the next try works', async () => {
     const t = await startKeyedApp();
     try {

@@ -14,12 +14,20 @@ const ORIGIN = 'http://limited.test';
 let server: StartedServer;
 
 beforeAll(async () => {
-  const seeding = await startServer();
+  // The demo data is made by a first start; the second start reads the changed keys from the same
+  // database (the SQLite file, or the PostgreSQL database and Redis prefix on the pg-redis run).
+  const seeding = await startServer({ keepStores: true });
   await seeding.stop();
-  const db = new Sequelize({ dialect: 'sqlite', storage: path.join(seeding.dataDir, 'nadirline.sqlite'), logging: false });
-  await db.query(`UPDATE api_keys SET rateLimitPerMin = ${LIMIT}, origins = '["${ORIGIN}"]' WHERE kind = 'browser'`, { type: QueryTypes.UPDATE });
-  await db.close();
-  server = await startServer({ dataDir: seeding.dataDir, env: { LOG_LEVEL: 'info' } });
+  const db = seeding.stores.databaseUrl
+    ? new Sequelize(seeding.stores.databaseUrl, { logging: false })
+    : new Sequelize({ dialect: 'sqlite', storage: path.join(seeding.dataDir, 'nadirline.sqlite'), logging: false });
+  try {
+    // camelCase columns quoted, as PostgreSQL needs.
+    await db.query(`UPDATE api_keys SET "rateLimitPerMin" = ${LIMIT}, "origins" = '["${ORIGIN}"]' WHERE "kind" = 'browser'`, { type: QueryTypes.UPDATE });
+  } finally {
+    await db.close();
+  }
+  server = await startServer({ dataDir: seeding.dataDir, stores: seeding.stores, env: { LOG_LEVEL: 'info' } });
 }, 120_000);
 afterAll(async () => {
   await server?.stop();

@@ -293,9 +293,11 @@ beforeAll(async () => {
     const email = uniqueEmail(role);
     await owner.browser.post(`/api/orgs/${orgId}/invitations`, { email, role }).expect(201);
     const b = t.browser();
-    await b.post('/api/auth/signup', { email, name: `Matrix ${role}`, password: PASSWORD, invitationToken: (await t.lastMailTo(email)).token }).expect(201);
-    const signin = await b.signIn(email);
-    people[role] = { email, name: `Matrix ${role}`, userId: signin.body.user.id, browser: b, orgId };
+    const signup = await b.post('/api/auth/signup', { email, name: `Matrix ${role}`, password: PASSWORD, invitationToken: (await t.lastMailTo(email)).token }).expect(201);
+    // The sign-up from an invitation signs the new member in, with a fresh CSRF token.
+    expect(signup.body.signedIn).toBe(true);
+    b.csrf = signup.body.csrfToken as string;
+    people[role] = { email, name: `Matrix ${role}`, userId: signup.body.user.id, browser: b, orgId };
   }
   const outsider = await signUpAndVerify(t, { name: 'Matrix Outsider', organizationName: 'Outside Org' });
   f = { t, people, outsider, orgId, satelliteId: '', elementSetId: '', browserKeyId: '', serverKeyId: '', embedId: '' };

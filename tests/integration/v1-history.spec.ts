@@ -259,7 +259,13 @@ describe('passes: sky paths and calendars', () => {
     expect(text.split('\r\n').every((l) => Buffer.byteLength(l) <= 75)).toBe(true);
     const cal = new ICAL.Component(ICAL.parse(text));
     const events = cal.getAllSubcomponents('vevent').map((v) => new ICAL.Event(v));
-    const start = Math.floor(Date.now() / MIN) * MIN;
+    // The calendar starts at the minute it was made (its DTSTAMP); the list is asked for the same
+    // window, not the minute this test reaches after the answer (a minute may have turned meanwhile).
+    const stamp = cal.getFirstSubcomponent('vevent')?.getFirstPropertyValue('dtstamp');
+    expect(stamp).toBeInstanceOf(ICAL.Time);
+    const start = (stamp as ICAL.Time).toJSDate().getTime();
+    expect(start % MIN).toBe(0);
+    expect(Math.abs(Date.now() - start)).toBeLessThan(5 * MIN);
     const passes = await request(t.app)
       .get(`/v1/satellites/${t.satellites.leo.id}/passes`)
       .query({ ...observer, days: 3, start: new Date(start).toISOString() })

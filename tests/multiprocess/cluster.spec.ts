@@ -4,13 +4,16 @@
  *
  * Three processes start at the same moment on an empty database (migrations run once); a member
  * signs up on one; then: a 6-a-minute key answers exactly 6 of 12 requests spread over all three;
- * a key revoked through one process is refused by another within a second; usage counted on two
+ * five failed sign-ins from one client spread over them stop the sixth, and failed sign-ins of
+ * one account from many clients stop at the per-account limit; a key revoked through one process is
+ * refused by another within a second; usage counted on two
  * processes adds up exactly in usage_daily; a SIGKILLed process loses none of the usage it answered.
  */
 import pg from 'pg';
 import request from 'supertest';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
 import type { NadirlineApp } from '@nadirline/server/app';
+import { SIGNIN_ACCOUNT_MAX_FAILURES } from '@nadirline/server/routes/api/account.ts';
 import { Browser, PASSWORD, uniqueEmail } from '../integration/console-api.harness.ts';
 import { leoTle } from '../support/app.ts';
 import { startServer, type StartedServer } from '../support/server.ts';
@@ -27,8 +30,8 @@ let db: pg.Client;
 const env = { DEMO: 'false', USAGE_FLUSH_MS: '300', LOG_LEVEL: 'warn', SESSION_SECRET: 'cluster-test-session-secret-0123456789' };
 
 /** A member's browser on one process (the session lives in the shared database). */
-function browserOn(server: StartedServer): Browser {
-  return new Browser(server.url as unknown as NadirlineApp['app']);
+function browserOn(server: StartedServer, clientAddress?: string): Browser {
+  return new Browser(server.url as unknown as NadirlineApp['app'], clientAddress);
 }
 
 async function makeKey(body: object): Promise<{ id: string; secret: string }> {
@@ -111,6 +114,30 @@ describe('three processes on one PostgreSQL database and one Redis', () => {
     console.log(`rate limit 6/min over 3 processes: ${statuses.filter((s) => s === 200).length} answered, ${statuses.filter((s) => s === 429).length} refused (429)`);
     expect(statuses.filter((s) => s === 200)).toHaveLength(6);
     expect(statuses.filter((s) => s === 429)).toHaveLength(6);
+  });
+
+  it('counts failed sign-ins of one address from one client across the processes', async () => {
+    const statuses: number[] = [];
+    for (let i = 0; i < 6; i++) {
+      // One client (its address through the trusted proxy), a new connection to another process each try.
+      const b = browserOn(servers[i % 3]!, '203.0.113.44');
+      await b.session();
+      const res = await b.agent.post('/api/auth/signin').set('X-CSRF-Token', b.csrf).send({ email: 'guessed@example.test', password: `guess ${i}` });
+      statuses.push(res.status);
+    }
+    expect(statuses).toEqual([401, 401, 401, 401, 401, 429]);
+  });
+
+  it('counts failed sign-ins of one account from many clients across the processes', async () => {
+    // Every try from another client address, so only the per-account count (in Redis) can stop them.
+    const statuses: number[] = [];
+    for (let i = 0; i <= SIGNIN_ACCOUNT_MAX_FAILURES; i++) {
+      const b = browserOn(servers[i % 3]!);
+      await b.session();
+      const res = await b.agent.post('/api/auth/signin').set('X-CSRF-Token', b.csrf).send({ email: 'targeted@example.test', password: `guess ${i}` });
+      statuses.push(res.status);
+    }
+    expect(statuses).toEqual([...Array<number>(SIGNIN_ACCOUNT_MAX_FAILURES).fill(401), 429]);
   });
 
   it('a key revoked through one process is refused by the others within a second', async () => {

@@ -1,8 +1,9 @@
 /**
  * Throttles for the account routes (sign-up, sign-in failures, e-mail requests, invitations):
  * fixed windows counted per key, behind a small store interface so the counts can move to a
- * shared store (Redis) when several processes serve one site. One MemoryThrottleStore per app
- * (ctx.services.throttleStore) unless something else is put there before the routes are built.
+ * shared store (Redis) when several processes serve one site. One store per app
+ * (ctx.services.throttleStore): RedisThrottleStore when REDIS_URL is set (every process counts the
+ * same tries), else MemoryThrottleStore, unless something else is put there before the routes are built.
  *
  *   const t = new Throttle(store, { name: 'signup-address', limit: 3, windowMs: HOUR });
  *   await t.hit(key)     -> { count, retryAfterS }       count includes this hit
@@ -13,6 +14,7 @@
 import type { Request, RequestHandler } from 'express';
 import { ipKeyGenerator } from 'express-rate-limit';
 import type { AppContext } from '../context.ts';
+import { sharedRedis, type SharedRedis } from '../services/shared.ts';
 import { HttpError } from './problem.ts';
 
 export interface ThrottleCount {
@@ -70,6 +72,56 @@ export class MemoryThrottleStore implements ThrottleStore {
   }
 }
 
+/**
+ * Add one and open the window in one step: the first hit sets the expiry; a key left without one
+ * (should not happen) gets it too, so no count outlives its window. Answers { count, ms left }.
+ */
+const INCREMENT_SCRIPT = `
+local n = redis.call('INCR', KEYS[1])
+local ttl = redis.call('PTTL', KEYS[1])
+if n == 1 or ttl < 0 then
+  redis.call('PEXPIRE', KEYS[1], ARGV[1])
+  ttl = tonumber(ARGV[1])
+end
+return {n, ttl}`;
+
+/**
+ * Counts in Redis under the deployment's prefix (`<prefix>th:<rule>:<key>`), one fixed window per
+ * key ending by Redis's expiry, shared by every process. While Redis does not answer, throttled
+ * routes answer 503 `unavailable` rather than go unthrottled.
+ */
+export class RedisThrottleStore implements ThrottleStore {
+  constructor(
+    private readonly redis: SharedRedis,
+    private readonly onError: (err: unknown) => void = () => undefined,
+  ) {}
+
+  private k(key: string): string {
+    return this.redis.key(`th:${key}`);
+  }
+
+  private unavailable = (err: unknown): never => {
+    this.onError(err);
+    throw new HttpError('unavailable', 'Nadirline cannot check the sign-in and e-mail limits right now (its shared counter store does not answer). Try again in a few seconds.', {}, { 'Retry-After': '5' });
+  };
+
+  async increment(key: string, windowMs: number): Promise<ThrottleCount> {
+    const reply = (await this.redis.client.eval(INCREMENT_SCRIPT, { keys: [this.k(key)], arguments: [String(windowMs)] }).catch(this.unavailable)) as [number, number];
+    return { count: Number(reply[0]), retryAfterS: Math.max(1, Math.ceil(Number(reply[1]) / 1000)) };
+  }
+
+  async get(key: string): Promise<ThrottleCount> {
+    const [count, ttl] = (await this.redis.client.multi().get(this.k(key)).pTTL(this.k(key)).exec().catch(this.unavailable)) as unknown as [string | null, number];
+    const n = Number(count ?? 0);
+    const left = Number(ttl);
+    return n > 0 && left > 0 ? { count: n, retryAfterS: Math.max(1, Math.ceil(left / 1000)) } : { count: 0, retryAfterS: 0 };
+  }
+
+  async reset(key: string): Promise<void> {
+    await this.redis.client.del(this.k(key)).catch(this.unavailable);
+  }
+}
+
 export interface ThrottleRule {
   /** Part of every stored key, so rules never share counts. */
   name: string;
@@ -102,13 +154,18 @@ export class Throttle {
 
 declare module '../context.ts' {
   interface AppServices {
-    /** Counts of the account throttles (in memory unless replaced before the routes are built). */
+    /** Counts of the account throttles (Redis with REDIS_URL, else memory, unless replaced before the routes are built). */
     throttleStore?: ThrottleStore;
   }
 }
 
 export function getThrottleStore(ctx: AppContext): ThrottleStore {
-  ctx.services.throttleStore ??= new MemoryThrottleStore();
+  if (!ctx.services.throttleStore) {
+    const redis = sharedRedis(ctx);
+    ctx.services.throttleStore = redis
+      ? new RedisThrottleStore(redis, (err) => ctx.logger.error({ err }, 'throttle counter in Redis did not answer'))
+      : new MemoryThrottleStore();
+  }
   return ctx.services.throttleStore;
 }
 

@@ -381,6 +381,9 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
   const count = (res: Response, key: KeyRecord, origin: string | null, now: number) => {
     usage.record(key.organizationId, key.id, template, now);
     keys.touch(key.id, now);
+    countOutcome(res, key, origin, now);
+  };
+  const countOutcome = (res: Response, key: KeyRecord, origin: string | null, now: number) => {
     // The answer's status (errors count against the quota too, so the console shows them) and
     // the calling origin, once the answer is sent or the connection closes.
     let done = false;
@@ -396,7 +399,7 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
     // Several processes: the month counter and the count are in Redis, checked and added in one
     // script before the answer is sent (a process killed afterwards has lost nothing).
     return (_req, res, next) => {
-      const { key, via } = authOf(res);
+      const { key, via, origin } = authOf(res);
       if (via === 'preview') {
         next();
         return;
@@ -404,6 +407,8 @@ export function quotaAndUsage(ctx: AppContext, template: string): RequestHandler
       const now = Date.now();
       return quota.countOrRefuse(key.organizationId, key.id, template, now).then(() => {
         keys.touch(key.id, now);
+        // Answers per hour and status and the calling origin are this process's counts, as without Redis.
+        countOutcome(res, key, origin, now);
         next();
       });
     };
