@@ -189,6 +189,60 @@ describe('the picked satellite', () => {
   });
 });
 
+describe('the picked satellite, picked early', () => {
+  // the picked marker comes to the middle of the globe (within a tenth of its radius) and stays there
+  const centred = (page: Page) =>
+    page.waitForFunction(
+      () => {
+        const sr = document.querySelector('nadir-track')!.shadowRoot!;
+        const svg = sr.querySelector('svg.map')!.getBoundingClientRect();
+        const mark = sr.querySelector('.mark.selected');
+        if (!mark) return false;
+        const r = mark.getBoundingClientRect();
+        return Math.hypot(r.left + r.width / 2 - (svg.left + svg.width / 2), r.top + r.height / 2 - (svg.top + svg.height / 2)) < Math.min(svg.width, svg.height) / 20;
+      },
+      undefined,
+      { timeout: 10_000 },
+    );
+
+  it('turns the globe to a satellite picked before its track arrived', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const page = await ctx.newPage();
+    let release!: () => void;
+    const held = new Promise<void>((r) => (release = r));
+    // the track windows wait until the pick is made
+    await page.route(/\/v1\/(tracks|satellites\/[^/]+\/track)\b/, async (r) => {
+      await held;
+      await r.continue();
+    });
+    const url = `${server.url}/e2e-layout-early-pick.html`;
+    await page.route(url, (r) =>
+      r.fulfill({
+        contentType: 'text/html',
+        body: `<!doctype html><body style="margin:0;padding:8px"><script type="module" src="/widget/nadir-track.js"></script><nadir-track api-key="${server.credentials.browserKey}" satellites="${allIds()}" projection="globe" style="display:block"></nadir-track>`,
+      }),
+    );
+    await page.goto(url);
+    await page.waitForFunction(() => document.querySelector('nadir-track')?.shadowRoot?.querySelectorAll('button.chip').length === 4, undefined, { timeout: 15_000 });
+    await page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll<HTMLElement>('button.chip')[2]!.click());
+    release();
+    await centred(page);
+    await ctx.close();
+  });
+
+  it('turns the globe to the picked satellite when the reader switches from the map', async () => {
+    const w = await widgetPage('map-then-globe', `satellites="${allIds()}"`);
+    await w.page.waitForFunction(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll('button.chip').length === 4);
+    await w.page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll<HTMLElement>('button.chip')[2]!.click());
+    await w.page.evaluate(() => {
+      const sr = document.querySelector('nadir-track')!.shadowRoot!;
+      [...sr.querySelectorAll<HTMLElement>('button')].find((b) => /globe/i.test(b.textContent ?? ''))!.click();
+    });
+    await centred(w.page);
+    await w.ctx.close();
+  });
+});
+
 describe('words in the reader’s language', () => {
   const text = (page: Page) => page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.nadir') as HTMLElement).innerText);
 
