@@ -236,7 +236,7 @@ describe('the picked satellite, picked early', () => {
     await w.page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll<HTMLElement>('button.chip')[2]!.click());
     await w.page.evaluate(() => {
       const sr = document.querySelector('nadir-track')!.shadowRoot!;
-      [...sr.querySelectorAll<HTMLElement>('button')].find((b) => /globe/i.test(b.textContent ?? ''))!.click();
+      Array.from(sr.querySelectorAll<HTMLElement>('button')).find((b) => /globe/i.test(b.textContent ?? ''))!.click();
     });
     await centred(w.page);
     await w.ctx.close();
