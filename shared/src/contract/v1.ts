@@ -181,26 +181,39 @@ export const createSatelliteBody = expects(
 
 const t = z.string().meta({ format: 'date-time', description: 'ISO 8601 UTC' });
 
+/** What every continuity check says, whether or not the figures could be computed. */
+const continuityCommon = {
+  summary: z.string().meta({ description: 'continues the orbit / orbit raised or lowered (manoeuvre likely) / does not continue (check the catalog number and the source) / not checked' }),
+  reason: z.string().meta({ description: 'One sentence with the deciding figure' }),
+  previousElementSetId: z.string(),
+  previousEpoch: t,
+  spanDays: z.number().meta({ description: 'This epoch minus the previous set\u2019s, days' }),
+};
+
+/**
+ * The continuity check stored with a set: with its figures when the previous set could be carried
+ * to this epoch, else `not-checked` with the reason only. The server writes it
+ * (services/satellites.ts continuityOf, from the engine's ContinuityReport), the console reads it.
+ */
 export const continuitySchema = z
-  .object({
-    classification: z.enum(['continues', 'manoeuvre', 'does-not-continue', 'not-checked']),
-    summary: z.string().meta({ description: 'continues the orbit / orbit raised or lowered (manoeuvre likely) / does not continue (check the catalog number and the source) / not checked' }),
-    reason: z.string().meta({ description: 'One sentence with the deciding figure' }),
-    previousElementSetId: z.string(),
-    previousEpoch: t,
-    spanDays: z.number().meta({ description: 'This epoch minus the previous set’s, days' }),
-    positionDifferenceKm: z.number().optional().meta({ description: 'Distance between the previous set’s prediction and this set at this epoch, km (absent when not checked)' }),
-    radialKm: z.number().optional(),
-    alongTrackKm: z.number().optional(),
-    crossTrackKm: z.number().optional(),
-    alongTrackTimingS: z.number().optional().meta({ description: 'Along-track difference as time, s; positive: the previous prediction runs ahead' }),
-    semiMajorAxisChangeKm: z.number().optional(),
-    eccentricityChange: z.number().optional(),
-    inclinationChangeDeg: z.number().optional(),
-    raanChangeDeg: z.number().optional().meta({ description: 'After carrying the previous node to this epoch by its secular drift' }),
-    catalogNumberChanged: z.boolean().optional(),
-  })
-  .meta({ description: 'The previous set (by epoch) propagated to this set’s epoch and compared with it; parts in the radial / along-track / cross-track frame of this set' });
+  .discriminatedUnion('classification', [
+    z.object({
+      classification: z.enum(['continues', 'manoeuvre', 'does-not-continue']),
+      ...continuityCommon,
+      positionDifferenceKm: z.number().meta({ description: 'Distance between the previous set\u2019s prediction and this set at this epoch, km' }),
+      radialKm: z.number(),
+      alongTrackKm: z.number(),
+      crossTrackKm: z.number(),
+      alongTrackTimingS: z.number().meta({ description: 'Along-track difference as time, s; positive: the previous prediction runs ahead' }),
+      semiMajorAxisChangeKm: z.number(),
+      eccentricityChange: z.number(),
+      inclinationChangeDeg: z.number(),
+      raanChangeDeg: z.number().meta({ description: 'After carrying the previous node to this epoch by its secular drift' }),
+      catalogNumberChanged: z.boolean(),
+    }),
+    z.object({ classification: z.literal('not-checked'), ...continuityCommon }),
+  ])
+  .meta({ description: 'The previous set (by epoch) propagated to this set\u2019s epoch and compared with it; parts in the radial / along-track / cross-track frame of this set' });
 
 export const elementSetSummarySchema = z.object({
   id: z.string(),
