@@ -30,7 +30,7 @@ const km = (v: number | undefined) => (v === undefined ? '—' : `${Math.abs(v) 
 
 /** One sentence of figures: "4.2 km apart (radial 0.1, along-track -4.2, cross-track 0.0 km; 0.6 s along the track); a +0.02 km". */
 export function continuityFigures(c: Continuity): string {
-  if (c.positionDifferenceKm === undefined) return c.reason;
+  if (c.classification === 'not-checked') return c.reason;
   const s = c.alongTrackTimingS ?? 0;
   return (
     `${km(c.positionDifferenceKm)} from the previous set's prediction ` +

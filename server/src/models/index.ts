@@ -104,7 +104,7 @@ export class ElementSetRecord extends Model<InferAttributes<ElementSetRecord>, I
   declare epoch: Date;
   declare uploadedByUserId: string | null;
   declare uploadedByKeyId: string | null;
-  /** The continuity check made on arrival (ContinuityView of services/satellites.ts), null for a first set. */
+  /** The continuity check made on arrival (the contract's `Continuity`, written by continuityOf in services/satellites.ts), null for a first set. */
   declare continuity: CreationOptional<object | null>;
   /** continues | manoeuvre | does-not-continue | not-checked, or null for a first set. */
   declare continuityClass: CreationOptional<string | null>;

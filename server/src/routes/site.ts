@@ -81,6 +81,9 @@ th { font-weight: 600; color: var(--muted); }
 .note { border-left: 3px solid var(--warn); padding: .25rem .75rem; color: var(--muted); }
 nav.top { display: flex; flex-wrap: wrap; gap: .5rem 1rem; font-size: .95rem; margin-bottom: 1.5rem; }
 td, li, p, h1, h2, h3 { overflow-wrap: anywhere; }
+/* A field's dotted path breaks only after a dot, never inside a name. */
+code.field { overflow-wrap: normal; word-break: normal; }
+code.field span { white-space: nowrap; }
 /* Narrow screens: each row of a wide table becomes a block, each cell labelled by its column. */
 @media (max-width: 40rem) {
   main { padding: 1.25rem 1rem 3rem; }
@@ -117,12 +120,31 @@ function page(title: string, body: string): string {
 
 type Json = Record<string, unknown>;
 
+/** The one non-null branch of `X | null` (zod writes it as anyOf [X, { type: null }]), and whether null was allowed. */
+function unwrapNull(schema: Json): { inner: Json; nullable: boolean } {
+  const branches = schema.anyOf as Json[] | undefined;
+  if (!Array.isArray(branches)) return { inner: schema, nullable: false };
+  const real = branches.filter((b) => b.type !== 'null');
+  if (real.length === 1 && real.length < branches.length) return { inner: { ...real[0], ...(schema.description ? { description: schema.description } : {}) }, nullable: true };
+  return { inner: schema, nullable: false };
+}
+
+/** The branches of a union of several shapes (anyOf / oneOf), or none. */
+function variantsOf(schema: Json): Json[] {
+  const list = (schema.oneOf ?? schema.anyOf) as Json[] | undefined;
+  return Array.isArray(list) ? list.filter((b) => b.type !== 'null') : [];
+}
+
 function schemaText(schema: Json | undefined): string {
   if (!schema) return '';
+  const { inner, nullable } = unwrapNull(schema);
+  if (nullable) return `${schemaText(inner)} <span class="muted">or null</span>`;
   const parts: string[] = [];
-  const type = schema.type ?? (schema.enum ? 'enum' : schema.anyOf ? 'one of' : '');
-  parts.push(String(type));
+  const items = schema.items as Json | undefined;
+  const type = schema.type === 'array' && items?.type ? `array of ${String(items.type)}` : (schema.type ?? (schema.enum ? 'enum' : variantsOf(schema).length ? 'one of' : schema.const !== undefined ? 'constant' : ''));
+  parts.push(Array.isArray(type) ? type.map(String).join(' or ') : String(type));
   if (Array.isArray(schema.enum)) parts.push(`(${schema.enum.map((v) => `<code>${esc(String(v))}</code>`).join(' | ')})`);
+  if (schema.const !== undefined) parts.push(`<code>${esc(String(schema.const))}</code>`);
   if (schema.format) parts.push(`<span class="muted">${esc(String(schema.format))}</span>`);
   const bounded = (v: unknown) => v !== undefined && Math.abs(Number(v)) < Number.MAX_SAFE_INTEGER;
   if (bounded(schema.minimum) || bounded(schema.maximum)) parts.push(`<span class="muted">${bounded(schema.minimum) ? schema.minimum : '…'} to ${bounded(schema.maximum) ? schema.maximum : '…'}</span>`);
@@ -130,15 +152,58 @@ function schemaText(schema: Json | undefined): string {
   return parts.join(' ');
 }
 
+interface FieldRow {
+  /** Dotted path from the top of the body: `parts[].elementSet.id`. */
+  path: string;
+  schema: Json;
+  /** "variant 1 of 2" for a row that introduces one shape of a union. */
+  variant?: string;
+}
+
+/** Rows for every field below `schema`, nested objects, array items and each shape of a union included. */
+export function fieldRows(schema: Json | undefined, prefix = '', out: FieldRow[] = []): FieldRow[] {
+  if (!schema) return out;
+  const { inner } = unwrapNull(schema);
+  const props = inner.properties as Record<string, Json> | undefined;
+  if (props) {
+    for (const [k, v] of Object.entries(props)) {
+      const path = prefix ? `${prefix}.${k}` : k;
+      out.push({ path, schema: v });
+      below(v, path, out);
+    }
+  }
+  return out;
+}
+
+function below(field: Json, path: string, out: FieldRow[]): void {
+  const { inner } = unwrapNull(field);
+  if (inner.type === 'array' && inner.items) {
+    below(inner.items as Json, `${path}[]`, out);
+    return;
+  }
+  const variants = variantsOf(inner);
+  if (variants.length > 1) {
+    variants.forEach((v, i) => {
+      out.push({ path, schema: v, variant: `variant ${i + 1} of ${variants.length}` });
+      fieldRows(v, path, out);
+    });
+    return;
+  }
+  fieldRows(inner, path, out);
+}
+
 function fieldsTable(schema: Json | undefined): string {
-  const props = (schema?.properties ?? null) as Record<string, Json> | null;
-  if (!props) return '';
-  const rows = Object.entries(props).map(([k, v]) => {
-    const inner = v.type === 'array' ? (v.items as Json | undefined) : v;
-    const nested = inner?.properties ? ` <span class="muted">{ ${Object.keys(inner.properties as Json).map((k) => esc(k)).join(', ')} }</span>` : '';
-    return { cells: [`<code>${esc(k)}</code>`, `${schemaText(v)}${nested}`, esc(String(v.description ?? ''))] };
+  const rows = fieldRows(schema).map((r) => {
+    // Each segment unbroken, a break allowed after each dot; the parents muted, the field itself plain.
+    const segments = r.path.split('.');
+    const name = segments.map((seg, i) => `<span${i < segments.length - 1 ? ' class="muted"' : ''}>${esc(seg)}${i < segments.length - 1 ? '.' : ''}</span>`).join('<wbr>');
+    const { inner } = unwrapNull(r.schema);
+    const description = String(r.schema.description ?? inner.description ?? '');
+    return {
+      cells: [`<code class="field">${name}</code>${r.variant ? ` <span class="muted">${esc(r.variant)}</span>` : ''}`, r.variant ? 'object' : schemaText(r.schema), prose(description)],
+    };
   });
-  return stackTable(['field', 'type', 'meaning'], rows);
+  return rows.length ? stackTable(['field', 'type', 'meaning'], rows) : '';
 }
 
 /** Values that make each route's example runnable against the demo data (the README shows how to set KEY and SAT). */
@@ -174,6 +239,17 @@ export function exampleRequest(method: string, p: string, op: Json, baseUrl: str
   return parts.join(' ');
 }
 
+/** A request body: each media type with what it holds, and the fields of JSON and form bodies. */
+function bodyText(body: Json): string {
+  return Object.entries(body.content as Record<string, Json>)
+    .map(([type, media]) => {
+      const schema = media.schema as Json | undefined;
+      const what = String(media.description ?? (schema?.properties ? '' : (schema?.description ?? '')));
+      return `<p><code>${esc(type)}</code>${what ? ` ${prose(what)}` : ''}</p>${fieldsTable(schema)}`;
+    })
+    .join('');
+}
+
 export function renderApiReference(doc: ReturnType<typeof buildOpenApi>, baseUrl: string): string {
   const info = doc.info as Json;
   const sections: string[] = [];
@@ -191,19 +267,20 @@ export function renderApiReference(doc: ReturnType<typeof buildOpenApi>, baseUrl
         .map(([status, r]) => {
           const content = r.content as Record<string, Json> | undefined;
           const json = content?.['application/json']?.schema as Json | undefined;
-          return `<h3>${esc(status)} <span class="muted">${prose(String(r.description ?? ''))}</span></h3>${status.startsWith('2') ? fieldsTable(json) : ''}`;
+          const other = json ? undefined : (Object.values(content ?? {})[0]?.schema as Json | undefined);
+          const otherText = other?.description ? `<p class="muted">${prose(String(other.description))}</p>` : '';
+          return `<h3>${esc(status)} <span class="muted">${prose(String(r.description ?? ''))}</span></h3>${status.startsWith('2') ? fieldsTable(json) || otherText : ''}`;
         })
         .join('');
       const body = op.requestBody as Json | undefined;
       const bodyTypes = body ? Object.keys(body.content as Json) : [];
-      const bodyJson = body ? (((body.content as Json)['application/json'] as Json | undefined)?.schema as Json | undefined) : undefined;
       sections.push(`<section id="${esc(anchor)}">
 <h2><span class="method">${method.toUpperCase()}</span> <code>${esc(p)}</code></h2>
 <p>${esc(String(op.summary))}</p>
 ${op.description ? `<p class="muted">${prose(String(op.description))}</p>` : ''}
 <p class="muted">Credential: ${(op.security as unknown[]).length === 0 ? 'none' : method === 'post' ? 'server key with <code>element-sets:write</code> (Authorization: Bearer)' : 'any key (Authorization: Bearer), or <code>?key=</code> with a browser key, or <code>?embed=</code>'}</p>
 ${paramRows.length ? stackTable(['parameter', 'in', 'type', 'meaning'], paramRows) : ''}
-${bodyTypes.length ? `<h3>Body</h3><p>${bodyTypes.map((t) => `<code>${esc(t)}</code>`).join(', ')}</p>${fieldsTable(bodyJson)}` : ''}
+${bodyTypes.length ? `<h3>Body</h3>${bodyText(body!)}` : ''}
 <h3>Example</h3>
 <pre><code>${esc(exampleRequest(method, p, op, baseUrl))}</code></pre>
 ${responses}

@@ -134,7 +134,7 @@ export function buildOpenApi(serverUrl: string): OpenApiDocument {
         ...(route.path.endsWith('/track') && status === '200'
           ? {
               headers: {
-                ETag: { schema: { type: 'string' } },
+                ETag: { schema: { type: 'string' }, description: 'Validator of this answer: send it back as If-None-Match to get 304 while the answer is unchanged' },
                 'Cache-Control': { schema: { type: 'string' }, description: `public when start and end are whole multiples of ${CAPS.trackCacheQuantumS} s` },
               },
             }
@@ -160,7 +160,7 @@ export function buildOpenApi(serverUrl: string): OpenApiDocument {
           Object.entries(route.bodies).map(([type, description]) => [
             type,
             type === 'multipart/form-data'
-              ? { schema: { type: 'object', properties: { 'files[]': { type: 'array', items: { type: 'string', format: 'binary' }, maxItems: CAPS.uploadMaxFiles } } }, description }
+              ? { schema: { type: 'object', properties: { 'files[]': { type: 'array', items: { type: 'string', format: 'binary' }, maxItems: CAPS.uploadMaxFiles, description: `Element-set files (TLE, OMM KVN, XML or JSON; the format from the extension or the content), at most ${CAPS.uploadMaxFiles} files of ${CAPS.uploadMaxBytes / 1024 / 1024} MiB each` }, text: { type: 'string', description: 'Element-set text as a form field, beside or instead of files[]' } } }, description }
               : { schema: { type: 'string', maxLength: CAPS.uploadMaxBytes, description } },
           ]),
         ),

@@ -50,7 +50,7 @@ import { HttpError } from '../http/problem.ts';
 import { ApiKey, ElementSetRecord, Organization, Satellite, User } from '../models/index.ts';
 import { OrbitCache, parsedOf, type CachedSatellite, type CurrentSet } from './orbit-cache.ts';
 import { invalidationBus } from './shared.ts';
-import type { V1ElementSetSummary, V1Satellite } from '@nadirline/shared/contract';
+import type { Continuity, V1ElementSetSummary, V1Satellite } from '@nadirline/shared/contract';
 
 export const MAX_ELEMENT_TEXT_CHARS = 2_000_000;
 export const MAX_SETS_PER_UPLOAD = 500;
@@ -78,38 +78,20 @@ export interface ReportEntry {
   column?: number;
   file?: string;
   /** The continuity check of a newly stored set (null: the satellite had no earlier set). */
-  continuity?: ContinuityView | null;
+  continuity?: Continuity | null;
   /** The set is held until an editor confirms it (organization setting). */
   awaitingConfirmation?: boolean;
 }
 
-/** The continuity check as stored with a set and shown by /v1 and /api (figures rounded). */
-export type ContinuityView =
-  | {
-      classification: 'continues' | 'manoeuvre' | 'does-not-continue';
-      summary: string;
-      reason: string;
-      previousElementSetId: string;
-      previousEpoch: string;
-      spanDays: number;
-      positionDifferenceKm: number;
-      radialKm: number;
-      alongTrackKm: number;
-      crossTrackKm: number;
-      alongTrackTimingS: number;
-      semiMajorAxisChangeKm: number;
-      eccentricityChange: number;
-      inclinationChangeDeg: number;
-      raanChangeDeg: number;
-      catalogNumberChanged: boolean;
-    }
-  | { classification: 'not-checked'; summary: string; reason: string; previousElementSetId: string; previousEpoch: string; spanDays: number };
-
 const r3 = (v: number) => Math.round(v * 1000) / 1000;
 const r4 = (v: number) => Math.round(v * 10_000) / 10_000;
 
-/** Compare the set before `next` (by epoch) with it: the previous set's prediction at next's epoch. */
-export function continuityOf(previous: { id: string; elementSet: ElementSet }, next: ElementSet): ContinuityView {
+/**
+ * Compare the set before `next` (by epoch) with it: the previous set's prediction at next's epoch.
+ * The one mapping from the engine's ContinuityReport to the contract's `Continuity` (figures
+ * rounded, the previous set named by id, `not-checked` when the engine could not compare).
+ */
+export function continuityOf(previous: { id: string; elementSet: ElementSet }, next: ElementSet): Continuity {
   const base = { previousElementSetId: previous.id, previousEpoch: previous.elementSet.epochIso, spanDays: r4((next.epochMs - previous.elementSet.epochMs) / DAY_MS) };
   const r = checkContinuity({ elementSet: previous.elementSet, satrec: toSatrec(previous.elementSet) }, { elementSet: next, satrec: toSatrec(next) });
   if (!r.ok) return { classification: 'not-checked', summary: 'not checked', reason: `The previous set could not be carried to this epoch: ${r.message}.`, ...base };
@@ -132,7 +114,7 @@ export function continuityOf(previous: { id: string; elementSet: ElementSet }, n
 }
 
 /** Suspicious: the check found a manoeuvre or a set that does not continue the orbit. */
-export const isSuspicious = (c: ContinuityView | null | undefined) => c?.classification === 'manoeuvre' || c?.classification === 'does-not-continue';
+export const isSuspicious = (c: Continuity | null | undefined) => c?.classification === 'manoeuvre' || c?.classification === 'does-not-continue';
 
 export interface UploadResult {
   report: ReportEntry[];
@@ -536,9 +518,9 @@ export class SatelliteService {
 }
 
 /** Stored continuity JSON (SQLite may hand JSON columns back as text). */
-function continuityJson(v: object | string | null | undefined): ContinuityView | null {
+function continuityJson(v: object | string | null | undefined): Continuity | null {
   if (v === null || v === undefined) return null;
-  return (typeof v === 'string' ? JSON.parse(v) : v) as ContinuityView;
+  return (typeof v === 'string' ? JSON.parse(v) : v) as Continuity;
 }
 
 export interface BatchItem {

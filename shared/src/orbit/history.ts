@@ -12,7 +12,7 @@ import { MS_PER_DAY } from './constants.ts';
 import type { Observer } from './observer.ts';
 import { findPasses } from './passes.ts';
 import type { Pass, PassErrorCode, PassOptions } from './passes.ts';
-import { DEFAULT_MAX_TRACK_SAMPLES, sampleTrack } from './track.ts';
+import { DEFAULT_MAX_TRACK_SAMPLES, sampleTrack, trackGrid } from './track.ts';
 import type { TrackErrorCode, TrackWindow } from './track.ts';
 
 /** Anything with an epoch (Unix ms): a stored set row, a parsed ElementSet, a cached satrec. */
@@ -101,25 +101,18 @@ export interface TrackPart<T> {
  * Sample a track on one time grid (startMs + k * stepS) across several sets: each sample comes
  * from the set in force at its time, and the track is split into parts where the set changes.
  * Parts that hold no sample of the grid (two epochs within one step) are left out. Any
- * propagation failure fails the whole track, as in `sampleTrack`.
+ * propagation failure fails the whole track, as in `sampleTrack`; the window is checked the same
+ * way (`trackGrid`).
  */
 export function sampleTrackAcrossSets<T extends PropagatableSet>(
   sorted: readonly T[],
   window: TrackWindow,
 ): Result<{ parts: TrackPart<T>[] }, TrackErrorCode> {
-  const { startMs, endMs, stepS } = window;
+  const grid = trackGrid(window);
+  if (!grid.ok) return grid;
+  const { startMs, stepS } = window;
   const maxSamples = window.maxSamples ?? DEFAULT_MAX_TRACK_SAMPLES;
-  if (!Number.isFinite(startMs) || !Number.isFinite(endMs) || endMs < startMs) {
-    return { ok: false, code: 'invalid-window', message: 'the window needs finite startMs <= endMs' };
-  }
-  if (!Number.isFinite(stepS) || stepS <= 0) {
-    return { ok: false, code: 'invalid-window', message: 'stepS must be a positive number of seconds' };
-  }
-  const stepMs = stepS * 1000;
-  const count = Math.floor((endMs - startMs) / stepMs + 1e-9) + 1;
-  if (count > maxSamples) {
-    return { ok: false, code: 'too-many-samples', message: `the window holds ${count} samples; at most ${maxSamples} are allowed` };
-  }
+  const { stepMs, count } = grid;
   const lastMs = startMs + (count - 1) * stepMs;
   const parts: TrackPart<T>[] = [];
   const windows = piecewiseWindows(sorted, startMs, lastMs);

@@ -18,7 +18,7 @@ export {
 export type { Vec3, Geodetic, SunVector } from './frames.ts';
 export { propagateAt, satrecEpochMs } from './propagate.ts';
 export type { OrbitState, PropagationResult, PropagationErrorCode, PropagationFailure } from './propagate.ts';
-export { sampleTrack, splitAtAntimeridian, trackToGeoJSON, DEFAULT_MAX_TRACK_SAMPLES } from './track.ts';
+export { gridCount, sampleTrack, splitAtAntimeridian, trackGrid, trackToGeoJSON, DEFAULT_MAX_TRACK_SAMPLES } from './track.ts';
 export type { TrackWindow, TrackErrorCode, TrackGeoJsonOptions } from './track.ts';
 export {
   deriveElements,

@@ -4,7 +4,8 @@ import type { TrackSample } from '../types.ts';
 import { DEG_PER_RAD, MS_PER_DAY } from './constants.ts';
 import { propagateAt } from './propagate.ts';
 import { TEST_EPOCH_MS, TEST_ORBITS, testSatrec } from './testing/orbits.ts';
-import { sampleTrack, splitAtAntimeridian, trackToGeoJSON } from './track.ts';
+import { gridCount, sampleTrack, splitAtAntimeridian, trackGrid, trackToGeoJSON } from './track.ts';
+import { sampleTrackAcrossSets } from './history.ts';
 
 const sample = (t: number, lat: number, lon: number, sunlit = true): TrackSample => ({ t, lat, lon, altKm: 400, sunlit });
 
@@ -72,6 +73,26 @@ describe('sampleTrack', () => {
       ok: false,
       code: 'too-far-from-epoch',
     });
+  });
+
+  it('refuses a bad window in one-set and several-set tracks with the same code and message', () => {
+    const satrec = testSatrec('polar');
+    const windows = [
+      { startMs: TEST_EPOCH_MS, endMs: TEST_EPOCH_MS - 1, stepS: 60 },
+      { startMs: TEST_EPOCH_MS, endMs: TEST_EPOCH_MS + 1000, stepS: -5 },
+      { startMs: TEST_EPOCH_MS, endMs: Number.POSITIVE_INFINITY, stepS: 60 },
+      { startMs: TEST_EPOCH_MS, endMs: TEST_EPOCH_MS + 3_600_000, stepS: 60, maxSamples: 60 },
+    ];
+    for (const w of windows) {
+      const one = sampleTrack(satrec, w);
+      expect(one.ok, JSON.stringify(w)).toBe(false);
+      expect(sampleTrackAcrossSets([{ epochMs: TEST_EPOCH_MS, satrec }], w)).toEqual(one);
+      expect(trackGrid(w)).toEqual(one);
+    }
+    // An hour at 60 s is 61 samples, start and end included; an end just short of the last grid time by rounding still counts it.
+    expect(trackGrid({ startMs: 0, endMs: 3_600_000, stepS: 60, maxSamples: 61 })).toEqual({ ok: true, stepMs: 60_000, count: 61 });
+    expect(gridCount(0, 3_600_000 - 1e-6, 60)).toBe(61);
+    expect(gridCount(0, 3_599_999, 60)).toBe(60);
   });
 });
 

@@ -29,6 +29,35 @@ const SUN_REFRESH_MS = 10 * MS_PER_MIN;
 export const DEFAULT_MAX_TRACK_SAMPLES = 100_000;
 
 /**
+ * Samples of the grid startMs + k * stepS from startMs to endMs (the last at or before endMs;
+ * a sample that misses endMs by under a nanosecond's share of a step still counts).
+ */
+export function gridCount(startMs: number, endMs: number, stepS: number): number {
+  return Math.floor((endMs - startMs) / (stepS * 1000) + 1e-9) + 1;
+}
+
+/**
+ * The time grid of a track window, checked: its step in ms and its number of samples, or why it
+ * cannot be sampled (a non-finite or reversed window, a step that is not positive, more samples
+ * than `maxSamples`). `sampleTrack` and `sampleTrackAcrossSets` share it.
+ */
+export function trackGrid(window: TrackWindow): Result<{ stepMs: number; count: number }, 'invalid-window' | 'too-many-samples'> {
+  const { startMs, endMs, stepS } = window;
+  const maxSamples = window.maxSamples ?? DEFAULT_MAX_TRACK_SAMPLES;
+  if (!Number.isFinite(startMs) || !Number.isFinite(endMs) || endMs < startMs) {
+    return { ok: false, code: 'invalid-window', message: 'the window needs finite startMs <= endMs' };
+  }
+  if (!Number.isFinite(stepS) || stepS <= 0) {
+    return { ok: false, code: 'invalid-window', message: 'stepS must be a positive number of seconds' };
+  }
+  const count = gridCount(startMs, endMs, stepS);
+  if (count > maxSamples) {
+    return { ok: false, code: 'too-many-samples', message: `the window holds ${count} samples; at most ${maxSamples} are allowed` };
+  }
+  return { ok: true, stepMs: stepS * 1000, count };
+}
+
+/**
  * Sample the ground track from `startMs` to `endMs` every `stepS` seconds: WGS-84 geodetic
  * latitude and longitude (deg), height (km), and `sunlit` (the satellite sees the Sun's centre:
  * see `isSunlit`, the middle of the conical penumbra). Any propagation failure inside the window
@@ -38,23 +67,10 @@ export function sampleTrack(
   satrec: SatRec,
   window: TrackWindow,
 ): Result<{ samples: TrackSample[] }, TrackErrorCode> {
-  const { startMs, endMs, stepS } = window;
-  const maxSamples = window.maxSamples ?? DEFAULT_MAX_TRACK_SAMPLES;
-  if (!Number.isFinite(startMs) || !Number.isFinite(endMs) || endMs < startMs) {
-    return { ok: false, code: 'invalid-window', message: 'the window needs finite startMs <= endMs' };
-  }
-  if (!Number.isFinite(stepS) || stepS <= 0) {
-    return { ok: false, code: 'invalid-window', message: 'stepS must be a positive number of seconds' };
-  }
-  const stepMs = stepS * 1000;
-  const count = Math.floor((endMs - startMs) / stepMs + 1e-9) + 1;
-  if (count > maxSamples) {
-    return {
-      ok: false,
-      code: 'too-many-samples',
-      message: `the window holds ${count} samples; at most ${maxSamples} are allowed`,
-    };
-  }
+  const grid = trackGrid(window);
+  if (!grid.ok) return grid;
+  const { startMs } = window;
+  const { stepMs, count } = grid;
   const epochMs = satrecEpochMs(satrec);
   const samples: TrackSample[] = new Array<TrackSample>(count);
   let sun: SunVector = sunVector(startMs);

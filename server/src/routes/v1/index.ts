@@ -12,6 +12,7 @@ import type { z } from 'zod';
 import {
   findPassesAcrossSets,
   footprintRadius,
+  gridCount,
   isSunlit,
   passCalendar,
   propagateAt,
@@ -122,7 +123,7 @@ function checkWindow(start: number, end: number, stepS: number): void {
       errors: [{ where: 'query.end', field: 'end', message: `at most ${CAPS.trackMaxWindowS / 3600} h after start` }],
     });
   }
-  const count = Math.floor((end - start) / (stepS * 1000) + 1e-9) + 1;
+  const count = gridCount(start, end, stepS);
   if (count > CAPS.trackMaxPoints) {
     throw new HttpError('validation-failed', `This window and step give ${count} points; at most ${CAPS.trackMaxPoints} per request. Use a larger step or a shorter window.`, {
       errors: [{ where: 'query.step', field: 'step', message: `gives ${count} points, more than ${CAPS.trackMaxPoints}` }],
@@ -303,7 +304,7 @@ export async function createV1Router(ctx: AppContext): Promise<Router> {
     const periodMs = (1440 / cur.elementSet.meanMotionRevPerDay) * MINUTE_MS;
     const end = q.end ?? start + Math.min(Math.ceil(periodMs / (stepS * 1000)) * stepS * 1000, CAPS.trackMaxWindowS * 1000);
     checkWindow(start, end, stepS);
-    return { start, end, stepS, count: Math.floor((end - start) / (stepS * 1000) + 1e-9) + 1 };
+    return { start, end, stepS, count: gridCount(start, end, stepS) };
   };
   /** The set in force at a track's start (its period sets the default window). */
   const startSetOf = async (c: CachedSatellite, cur: CurrentSet, start: number) => (start >= cur.elementSet.epochMs ? cur : ((await sats.setAt(c, start)) ?? cur));
