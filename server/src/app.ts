@@ -21,6 +21,7 @@ import { getEmbedService } from './services/embeds.ts';
 import { getKeyService } from './services/keys.ts';
 import { registerNoticeJobs } from './services/notices.ts';
 import { getPayments } from './services/payments.ts';
+import { installTestClock } from './services/clock.ts';
 import { startScheduler } from './services/scheduler.ts';
 import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
@@ -84,6 +85,7 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   await getPayments(context);
   // Notices and scheduled work (grace ends, quota thresholds, the daily stale digest); run once
   // across processes through job_leases. Tests drive runDueJobs with their own clock instead.
+  installTestClock(context);
   registerNoticeJobs(context);
   if (!config.isTest) startScheduler(context);
 

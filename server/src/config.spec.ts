@@ -50,6 +50,13 @@ describe('configuration defaults', () => {
   it('still demands SESSION_SECRET in production', () => {
     expect(() => loadConfig({ ...fileIn(tempDir()), NODE_ENV: 'production' })).toThrow(/SESSION_SECRET/);
   });
+
+  it('refuses the test clock in production and takes it elsewhere', () => {
+    const prod = { ...fileIn(tempDir()), NODE_ENV: 'production', SESSION_SECRET: 'a-production-secret-of-32-chars!' };
+    expect(() => loadConfig({ ...prod, TEST_CLOCK_FILE: '/tmp/clock' })).toThrow(/TEST_CLOCK_FILE: the test clock never runs in production/);
+    expect(loadConfig(prod).TEST_CLOCK_FILE).toBeUndefined();
+    expect(loadConfig({ ...fileIn(tempDir()), NODE_ENV: 'development', TEST_CLOCK_FILE: '/tmp/clock' }).TEST_CLOCK_FILE).toBe('/tmp/clock');
+  });
 });
 
 describe('own origins', () => {

@@ -37,6 +37,13 @@ const schema = z.object({
     .optional(),
   /** Most PostgreSQL connections one process opens (at least 2: migrations hold one while they run). */
   DATABASE_POOL_MAX: z.coerce.number().int().min(2).max(200).default(10),
+  /**
+   * PostgreSQL: how long a statement waits for a row or table lock before it gives up, ms (0 = no
+   * limit). A request whose lock is not had in time answers 503 `busy` with Retry-After.
+   */
+  DATABASE_LOCK_TIMEOUT_MS: z.coerce.number().int().min(0).max(600_000).default(5_000),
+  /** PostgreSQL: the longest a single statement may run, ms (0 = no limit); then 503 `busy`. Migrations have no limit. */
+  DATABASE_STATEMENT_TIMEOUT_MS: z.coerce.number().int().min(0).max(3_600_000).default(30_000),
   /** TLS to PostgreSQL: off, require (encrypted, certificate not checked) or verify (checked against DATABASE_CA_FILE or the system CAs). */
   DATABASE_SSL: z.enum(['off', 'require', 'verify']).default('off'),
   /** PEM file of the CA that signed the PostgreSQL server's certificate (DATABASE_SSL=verify). */
@@ -84,6 +91,14 @@ const schema = z.object({
   /** Provider price ids of the paid plans. */
   PAYMENTS_PRICE_MISSION: z.string().default('price_nl_mission'),
   PAYMENTS_PRICE_CONSTELLATION: z.string().default('price_nl_constellation'),
+  /** How often each process looks for scheduled work that is due (services/scheduler.ts), ms. */
+  SCHEDULER_TICK_MS: z.coerce.number().int().min(50).max(3_600_000).default(60_000),
+  /**
+   * Tests only, refused in production: a file holding the time (ms since the epoch, or an ISO
+   * date) that billing, notices and scheduled work read instead of the system clock, so several
+   * processes share one clock a test moves. Missing or unreadable file: the system clock.
+   */
+  TEST_CLOCK_FILE: z.string().optional(),
   /** Days a paid plan is kept after a failed payment before the organization falls back to Starter. */
   PAYMENTS_GRACE_DAYS: z.coerce.number().min(0).max(60).default(7),
 });
@@ -172,6 +187,7 @@ export function loadConfig(env: Record<string, string | undefined> = process.env
   const c = parsed.data;
   const isProduction = c.NODE_ENV === 'production';
   if (isProduction && !c.SESSION_SECRET) throw new Error('Invalid configuration:\n  SESSION_SECRET: required in production');
+  if (isProduction && c.TEST_CLOCK_FILE) throw new Error('Invalid configuration:\n  TEST_CLOCK_FILE: the test clock never runs in production');
   if (isProduction && c.PAYMENTS_FAKE) throw new Error('Invalid configuration:\n  PAYMENTS_FAKE: the fake payment provider never runs in production');
   // A PostgreSQL database in production is shared by real users: the fake SMTP server would
   // swallow their mail and the demo seed would write invented people into it.

@@ -17,6 +17,7 @@ const modules: BenchModule[] = [
   { name: 'server beyond one process (PostgreSQL + Redis)', load: () => import('./scale.bench.ts') },
   { name: 'server under a flood of over-limit requests', load: () => import('./flood.bench.ts') },
   { name: 'concurrent writes', load: () => import('./writes.bench.ts') },
+  { name: 'sign-ins and the event loop (password hashing)', load: () => import('./signin.bench.ts') },
   { name: 'widget', load: () => import('./widget.bench.ts') },
 ];
 

@@ -67,13 +67,26 @@ export { DatabaseBusyError, isDatabaseBusy };
 export type DatabaseConfig = Pick<
   Config,
   'DATABASE_URL' | 'SQLITE_FILE' | 'dataDir' | 'DATABASE_POOL_MAX' | 'DATABASE_SSL' | 'DATABASE_CA_FILE' | 'MIGRATE_ON_START'
->;
+> &
+  Partial<Pick<Config, 'DATABASE_LOCK_TIMEOUT_MS' | 'DATABASE_STATEMENT_TIMEOUT_MS'>>;
+
+/**
+ * How often a PostgreSQL backend checks that its client is still connected while a statement runs
+ * (PostgreSQL 14+ on Linux), ms. A process killed while its statement waits for a lock would
+ * otherwise leave that statement waiting, and it would commit once the lock came, after the
+ * process that meant to act on its result was gone (a notice recorded and never mailed).
+ */
+export const PG_CLIENT_CHECK_MS = 1000;
 
 export function isPostgres(sequelize: Sequelize): boolean {
   return sequelize.getDialect() === 'postgres';
 }
 
-/** Sequelize options for PostgreSQL: pool size and TLS from the configuration. */
+/**
+ * Sequelize options for PostgreSQL: pool size, TLS, and each connection's lock_timeout and
+ * statement_timeout (a lock or statement over them fails with 55P03 / 57014, which the error
+ * handler answers 503 `busy`) from the configuration.
+ */
 function postgresOptions(config: DatabaseConfig, poolMax: number): Options {
   let ssl: false | { rejectUnauthorized: boolean; ca?: string } = false;
   if (config.DATABASE_SSL === 'require') ssl = { rejectUnauthorized: false };
@@ -84,7 +97,12 @@ function postgresOptions(config: DatabaseConfig, poolMax: number): Options {
     dialect: 'postgres',
     logging: false,
     pool: { max: poolMax, min: 0, idle: 10_000, acquire: 30_000 },
-    dialectOptions: ssl ? { ssl } : {},
+    dialectOptions: {
+      ...(ssl ? { ssl } : {}),
+      lock_timeout: config.DATABASE_LOCK_TIMEOUT_MS ?? 5_000,
+      statement_timeout: config.DATABASE_STATEMENT_TIMEOUT_MS ?? 30_000,
+      options: `-c client_connection_check_interval=${PG_CLIENT_CHECK_MS}`,
+    },
   };
 }
 
@@ -269,6 +287,9 @@ export async function migrate(config: DatabaseConfig): Promise<{ applied: string
       open = false;
       applied.push(name);
     });
+    // Migrations wait for each other and may run long: no lock or statement limit on this connection.
+    await sequelize.query('SET lock_timeout = 0');
+    await sequelize.query('SET statement_timeout = 0');
     await sequelize.query('SELECT pg_advisory_lock(:id)', { replacements: { id: MIGRATION_LOCK_ID } });
     try {
       await umzug.up();

@@ -7,7 +7,8 @@
  *
  * A transaction that cannot start within WRITE_LOCK_WAIT_MS fails with DatabaseBusyError, which
  * the error handler answers as 503 `busy` with Retry-After (never 500). PostgreSQL does not use
- * this queue: its own row and index locks order concurrent writers.
+ * this queue: its own row and index locks order concurrent writers, and a lock not had within
+ * DATABASE_LOCK_TIMEOUT_MS (lock_timeout on every connection) is answered the same way.
  */
 
 /** How long a transaction may wait for its turn before the request answers 503 busy. */
@@ -71,7 +72,15 @@ export function isDatabaseBusy(err: unknown): boolean {
   if (err instanceof DatabaseBusyError) return true;
   const e = err as { name?: string; parent?: { code?: string }; original?: { code?: string } } | null;
   const code = e?.parent?.code ?? e?.original?.code;
-  // SQLite: SQLITE_BUSY / SQLITE_LOCKED. PostgreSQL: lock_not_available (55P03), deadlock (40P01),
-  // serialization failure (40001).
-  return e?.name === 'SequelizeTimeoutError' || code === 'SQLITE_BUSY' || code === 'SQLITE_LOCKED' || code === '55P03' || code === '40P01' || code === '40001';
+  // SQLite: SQLITE_BUSY / SQLITE_LOCKED. PostgreSQL: lock_not_available (55P03, lock_timeout),
+  // query_canceled (57014, statement_timeout), deadlock (40P01), serialization failure (40001).
+  return (
+    e?.name === 'SequelizeTimeoutError' ||
+    code === 'SQLITE_BUSY' ||
+    code === 'SQLITE_LOCKED' ||
+    code === '55P03' ||
+    code === '57014' ||
+    code === '40P01' ||
+    code === '40001'
+  );
 }

@@ -1,7 +1,9 @@
 /**
  * Accounts: sign-up, e-mail verification, sign-in checks, password reset, profile.
- * Passwords are bcrypt hashes (bcryptjs); e-mail tokens are random 256-bit strings of which only
- * the SHA-256 is stored, usable once and until they expire.
+ * Passwords are bcrypt hashes made by the native `bcrypt` package, whose async hash and compare
+ * run in libuv's thread pool, never on the event loop (hashes made before with bcryptjs, $2a$ or
+ * $2b$, verify the same); e-mail tokens are random 256-bit strings of which only the SHA-256 is
+ * stored, usable once and until they expire.
  *
  *   signUp(ctx, { email, name, password, organizationName?, invitationToken? }) -> { user (JSON), created, organization, verified }
  *       (a taken address answers the same, creates nothing and mails its owner)
@@ -15,7 +17,7 @@
  *   hashPassword / passwordMatches / newToken / hashToken
  */
 import crypto from 'node:crypto';
-import bcrypt from 'bcryptjs';
+import bcrypt from 'bcrypt';
 import { nanoid } from 'nanoid';
 import { Op, UniqueConstraintError, type Transaction } from 'sequelize';
 import type { AppContext } from '../context.ts';

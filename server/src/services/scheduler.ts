@@ -4,13 +4,16 @@
  *   registerJob(ctx, { name, periodOf(now), run(ctx, now) })   periodOf names the period a run covers
  *                                                              (a UTC day, a ten-minute slot ...)
  *   runDueJobs(ctx, now?, holder?) -> names of the jobs run      (tests call it with their own clock)
- *   startScheduler(ctx)                                          ticks every SCHEDULER_TICK_MS (not in tests)
+ *   startScheduler(ctx)                                          ticks every SCHEDULER_TICK_MS (not under NODE_ENV=test)
  *
  * Each job has one row in job_leases. A process runs a job only after one conditional UPDATE
  * took the lease: the row's `doneFor` is not this period and no other holder's lease is still
- * running. After the run it writes `doneFor`; a failed run frees the lease and records the error,
- * so the next tick (in any process) tries again; a process that dies mid-run loses its lease
- * after LEASE_MS. The UPDATE is atomic on SQLite and PostgreSQL alike.
+ * running. After the run it writes `doneFor` and frees the lease (`leaseUntil` null), leaving its
+ * id in `holder` (so the row names who ran the period); a failed run frees the lease and records
+ * the error, so the next tick (in any process) tries again; a process that dies mid-run keeps
+ * the lease until `leaseUntil` (LEASE_MS after the claim), then any other process takes it.
+ * The UPDATE is atomic on SQLite and PostgreSQL alike. Times are the app's clock (clock.ts), so
+ * a test moves the lease's expiry with the clock it controls.
  */
 import { nanoid } from 'nanoid';
 import { Op, UniqueConstraintError } from 'sequelize';
@@ -19,7 +22,6 @@ import { JobLease } from '../models/index.ts';
 import { now as clockNow } from './clock.ts';
 
 export const LEASE_MS = 10 * 60_000;
-export const SCHEDULER_TICK_MS = 60_000;
 
 export interface Job {
   name: string;
@@ -87,8 +89,10 @@ export async function runDueJobs(ctx: AppContext, now: Date = clockNow(ctx), hol
     if (!(await claim(job, period, holder, now))) continue;
     try {
       await job.run(ctx, now);
-      await JobLease.update({ doneFor: period, holder: null, leaseUntil: null, lastRunAt: now, lastError: null }, { where: { name: job.name, holder } });
+      const [n] = await JobLease.update({ doneFor: period, leaseUntil: null, lastRunAt: now, lastError: null }, { where: { name: job.name, holder } });
       ran.push(job.name);
+      if (n === 1) ctx.logger.info({ job: job.name, period, holder }, 'scheduled job ran');
+      else ctx.logger.warn({ job: job.name, period, holder }, 'scheduled job ran past its lease, which another process took meanwhile');
     } catch (err) {
       ctx.logger.error({ err, job: job.name }, 'scheduled job failed; it runs again on the next tick');
       await JobLease.update({ holder: null, leaseUntil: null, lastError: String((err as Error).message ?? err).slice(0, 500) }, { where: { name: job.name, holder } });
@@ -97,7 +101,10 @@ export async function runDueJobs(ctx: AppContext, now: Date = clockNow(ctx), hol
   return ran;
 }
 
-/** Ticks every SCHEDULER_TICK_MS until the app closes. Tests leave it off and call runDueJobs. */
+/**
+ * Ticks every SCHEDULER_TICK_MS (configuration; the first tick after at most 5 s) until the app
+ * closes. In-process tests (NODE_ENV=test) leave it off and call runDueJobs.
+ */
 export function startScheduler(ctx: AppContext): void {
   let running = false;
   const tick = async () => {
@@ -111,9 +118,10 @@ export function startScheduler(ctx: AppContext): void {
       running = false;
     }
   };
-  const timer = setInterval(() => void tick(), SCHEDULER_TICK_MS);
+  const every = ctx.config.SCHEDULER_TICK_MS;
+  const timer = setInterval(() => void tick(), every);
   timer.unref();
-  const first = setTimeout(() => void tick(), 5_000);
+  const first = setTimeout(() => void tick(), Math.min(5_000, every));
   first.unref();
   ctx.onClose(() => {
     clearInterval(timer);
