@@ -51,8 +51,37 @@ function nadirAssets(): Plugin {
   };
 }
 
+/**
+ * d3-array (which d3-geo takes Adder and merge from) reads properties at load time:
+ * `const bisectRight = ascendingBisect.right;`, `var slice = array.slice;` ... The bundler keeps a
+ * property read it cannot prove free of getters, and with it the bisect helpers the widget never
+ * uses. Each such top-level read becomes a call marked pure, which the bundler drops when nothing
+ * reads its result and which gives the same value when something does. Likewise d3-geo's
+ * `new Adder()` for the area and length measures the widget does not take (the constructor only
+ * makes an array).
+ */
+function pureLoadTimeReads(): Plugin {
+  const READ = /^(const|var) ([\w$]+) = ([\w$]+(?:\([\w$]*\))?(?:\.[\w$]+)+);$/gm;
+  return {
+    name: 'nadir-pure-load-time-reads',
+    transform: {
+      filter: { id: /[\\/]node_modules[\\/]d3-(array|geo)[\\/]/ },
+      handler(code, id) {
+        let n = 0;
+        const count = (s: string) => (n++, s);
+        const out = /d3-array/.test(id)
+          ? code.replace(READ, (_m, kind: string, name: string, read: string) => count(`${kind} ${name} = /* @__PURE__ */ (() => ${read})();`))
+          : code.replace(/\bnew Adder\(\)/g, () => count('/* @__PURE__ */ new Adder()'));
+        // the versions are pinned; a new one that reads differently should be looked at again
+        if (n === 0) this.error(`nothing to mark pure in ${id}: look at pureLoadTimeReads again`);
+        return { code: out, map: null };
+      },
+    },
+  };
+}
+
 export default defineConfig({
-  plugins: [vue({ features: { customElement: /\.ce\.vue$/ } }), nadirAssets()],
+  plugins: [vue({ features: { customElement: /\.ce\.vue$/ } }), nadirAssets(), pureLoadTimeReads()],
   // stack.md: library mode keeps process.env in the classic script unless it is defined
   define: {
     'process.env.NODE_ENV': JSON.stringify('production'),

@@ -3,8 +3,8 @@
  * countries when the point is on land, otherwise a coarse ocean name from longitude and
  * latitude boxes drawn for Nadirline (good enough for "over the South Atlantic", not a gazetteer).
  */
-import { geoContains } from 'd3-geo';
 import type { Feature, Geometry } from 'geojson';
+import { outlineHolds } from './contains.ts';
 import { english, type Translate, type WordKey } from './words.ts';
 
 export interface NamedArea {
@@ -17,7 +17,7 @@ export interface NamedArea {
 /**
  * A box around an area's outline points, one degree wider on every side for the bulge of its
  * edges (great-circle arcs, a small fraction of a degree between the 110m outline's points):
- * only a first sieve before geoContains, so it need only hold the whole area (places.spec.ts
+ * only a first sieve before outlineHolds, so it need only hold the whole area (places.spec.ts
  * checks it holds d3-geo's geoBounds of every shipped country). Cheaper in bytes than geoBounds.
  */
 function outlineBox(g: Geometry | null): NamedArea['bounds'] {
@@ -106,7 +106,7 @@ const WITH_THE = /^(United|Dem\. Rep\.|Central African|Dominican|Solomon|Falklan
 export function placeName(lat: number, lon: number, areas: readonly NamedArea[], t: Translate = english): string | null {
   if (areas.length === 0) return null;
   for (const a of areas) {
-    if (inBounds(a.bounds, lat, lon) && geoContains(a.feature, [lon, lat])) return t === english && WITH_THE.test(a.name) ? `the ${a.name}` : a.name;
+    if (inBounds(a.bounds, lat, lon) && outlineHolds(a.feature.geometry, lon, lat)) return t === english && WITH_THE.test(a.name) ? `the ${a.name}` : a.name;
   }
   return oceanName(lat, lon, t);
 }
