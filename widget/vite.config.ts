@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { defineConfig, type Plugin } from 'vite';
 import vue from '@vitejs/plugin-vue';
+import { trimD3 } from './build/trim-d3.ts';
 
 const require = createRequire(import.meta.url);
 
@@ -51,37 +52,25 @@ function nadirAssets(): Plugin {
   };
 }
 
-/**
- * d3-array (which d3-geo takes Adder and merge from) reads properties at load time:
- * `const bisectRight = ascendingBisect.right;`, `var slice = array.slice;` ... The bundler keeps a
- * property read it cannot prove free of getters, and with it the bisect helpers the widget never
- * uses. Each such top-level read becomes a call marked pure, which the bundler drops when nothing
- * reads its result and which gives the same value when something does. Likewise d3-geo's
- * `new Adder()` for the area and length measures the widget does not take (the constructor only
- * makes an array).
- */
-function pureLoadTimeReads(): Plugin {
-  const READ = /^(const|var) ([\w$]+) = ([\w$]+(?:\([\w$]*\))?(?:\.[\w$]+)+);$/gm;
+/** The trims of d3-array and d3-geo (build/trim-d3.ts); a trim that finds nothing to change fails the build. */
+function trimmedD3(): Plugin {
   return {
-    name: 'nadir-pure-load-time-reads',
+    name: 'nadir-trim-d3',
     transform: {
       filter: { id: /[\\/]node_modules[\\/]d3-(array|geo)[\\/]/ },
       handler(code, id) {
-        let n = 0;
-        const count = (s: string) => (n++, s);
-        const out = /d3-array/.test(id)
-          ? code.replace(READ, (_m, kind: string, name: string, read: string) => count(`${kind} ${name} = /* @__PURE__ */ (() => ${read})();`))
-          : code.replace(/\bnew Adder\(\)/g, () => count('/* @__PURE__ */ new Adder()'));
+        const t = trimD3(code, id);
+        if (!t) return null;
         // the versions are pinned; a new one that reads differently should be looked at again
-        if (n === 0) this.error(`nothing to mark pure in ${id}: look at pureLoadTimeReads again`);
-        return { code: out, map: null };
+        for (const [name, n] of Object.entries(t.changes)) if (n === 0) this.error(`trim-d3: "${name}" changed nothing in ${id}; look at widget/build/trim-d3.ts again`);
+        return { code: t.code, map: null };
       },
     },
   };
 }
 
 export default defineConfig({
-  plugins: [vue({ features: { customElement: /\.ce\.vue$/ } }), nadirAssets(), pureLoadTimeReads()],
+  plugins: [vue({ features: { customElement: /\.ce\.vue$/ } }), nadirAssets(), trimmedD3()],
   // stack.md: library mode keeps process.env in the classic script unless it is defined
   define: {
     'process.env.NODE_ENV': JSON.stringify('production'),
