@@ -7,6 +7,7 @@
  */
 import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
+import { createRequire } from 'node:module';
 import path from 'node:path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -218,6 +219,50 @@ describe('words in the reader’s language', () => {
       await w.ctx.close();
     });
   }
+
+  it('names the country under a picked satellite in German: “Über” and the German name', async () => {
+    const sat = server.credentials.satellites[0]!.id;
+    // the map's countries by English name, and the German names by atlas id (id, else the English name)
+    const atlas = JSON.parse(fs.readFileSync(createRequire(import.meta.url).resolve('world-atlas/countries-110m.json'), 'utf8')) as { objects: { countries: { geometries: { id?: string; properties: { name: string } }[] } } };
+    const keyOf = new Map(atlas.objects.countries.geometries.map((g) => [g.properties.name, String(g.id ?? g.properties.name)]));
+    const german = (JSON.parse(fs.readFileSync(path.join(repoRoot, 'widget', 'src', 'locales', 'de.json'), 'utf8')) as { countries: Record<string, string> }).countries;
+    const placeText = (page: Page) => page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.panel .place')?.textContent ?? '');
+    const pin = (page: Page, ms: number) => page.evaluate((iso) => document.querySelector('nadir-track')!.setAttribute('at', iso), new Date(ms).toISOString());
+    const pick = (page: Page) => page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.chip') as HTMLButtonElement).click());
+
+    // in English first, a moment pinned with `at` when the satellite is over a country (not the sea)
+    const t0 = Math.floor(Date.now() / 60_000) * 60_000;
+    const en = await widgetPage('over-en', `satellites="${sat}" locale="en" at="${new Date(t0).toISOString()}"`);
+    await pick(en.page);
+    let found: { at: number; name: string } | null = null;
+    for (let i = 0; i < 90 && !found; i++) {
+      const at = t0 + i * 7 * 60_000;
+      await pin(en.page, at);
+      await expect.poll(() => en.page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.shown-at')?.textContent ?? ''), { timeout: 10_000 }).toContain('Position at');
+      const text = await expect.poll(() => placeText(en.page), { timeout: 15_000 }).toMatch(/^Over /).then(() => placeText(en.page));
+      const name = text.replace(/^Over (the )?/, '');
+      // well inside: the same country a minute either side (the German page computes its own samples)
+      if (!keyOf.has(name)) continue;
+      await pin(en.page, at - 60_000);
+      const before = await expect.poll(() => placeText(en.page), { timeout: 10_000 }).toMatch(/^Over /).then(() => placeText(en.page));
+      await pin(en.page, at + 60_000);
+      const after = await expect.poll(() => placeText(en.page), { timeout: 10_000 }).toMatch(/^Over /).then(() => placeText(en.page));
+      if (before === text && after === text) found = { at, name };
+    }
+    await en.ctx.close();
+    expect(found, 'the satellite crosses a country within ten hours').not.toBeNull();
+    const expected = german[keyOf.get(found!.name)!]!;
+    expect(expected).toBeTruthy();
+
+    const de = await widgetPage('over-de', `satellites="${sat}" locale="de" at="${new Date(found!.at).toISOString()}"`, { locale: 'en-US' });
+    await pick(de.page);
+    await expect.poll(() => placeText(de.page), { timeout: 20_000 }).toBe(`Über ${expected}`);
+    // the live region says it in German too
+    await expect.poll(() => de.page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('[aria-live="polite"]')?.textContent ?? ''), { timeout: 15_000 }).toContain(`über ${expected} bei`);
+    await de.page.locator('nadir-track').screenshot({ path: path.join(ARTIFACTS, 'over-de.png') });
+    expect(de.pageErrors).toEqual([]);
+    await de.ctx.close();
+  });
 
   it('names a fixed observer place in the pass list instead of “you”', async () => {
     const w = await widgetPage('place', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="passes" observer-name="Ostwick Hall"`);
