@@ -64,29 +64,83 @@ async function widgetPage(name: string, attrs: string, opts: { width?: number; h
 }
 
 const allIds = () => server.credentials.satellites.map((s) => s.id).join(',');
+/** Until the pass list holds its rows (or says there are none), not while it is still working them out. */
+const passesSettled = (page: Page) =>
+  page.waitForFunction(() => {
+    const sr = document.querySelector('nadir-track')?.shadowRoot;
+    return !!sr?.querySelector('.passes .row') || Array.from(sr?.querySelectorAll('.passes .quiet') ?? []).some((q) => !/Working out/.test(q.textContent ?? ''));
+  }, undefined, { timeout: 20_000 });
 
 describe('map size beside the pass list', () => {
   it('keeps a 900 x 420 element with passes from shrinking its map to a thumbnail', async () => {
     const w = await widgetPage('passes-900', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="footprint,terminator,passes,graticule,labels"`, {
       style: 'display:block;width:900px;height:420px',
     });
-    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.passes .row, .passes .quiet'));
+    await passesSettled(w.page);
     const m = await w.page.evaluate(() => {
       const sr = document.querySelector('nadir-track')!.shadowRoot!;
       // the drawn Earth, not the svg box it is fitted into
       const svg = sr.querySelector('path.sea')!.getBoundingClientRect();
       const frame = sr.querySelector('.nadir')!;
-      const passes = sr.querySelector('.passes')!.getBoundingClientRect();
-      return { w: svg.width, h: svg.height, overflows: frame.scrollHeight > frame.clientHeight + 1, passesBottom: passes.bottom, frameBottom: frame.getBoundingClientRect().bottom };
+      const below = sr.querySelector('.below')!;
+      const time = sr.querySelector('.timectl')!.getBoundingClientRect();
+      const box = sr.querySelector('.mapbox')!.getBoundingClientRect();
+      return {
+        w: svg.width,
+        h: svg.height,
+        overflows: frame.scrollHeight > frame.clientHeight + 1,
+        // the pass column ends inside the frame and scrolls what does not fit
+        belowBottom: below.getBoundingClientRect().bottom,
+        belowScrolls: below.scrollHeight <= below.clientHeight + 1 || getComputedStyle(below).overflowY === 'auto',
+        belowLeft: below.getBoundingClientRect().left,
+        frameBottom: frame.getBoundingClientRect().bottom,
+        gap: time.top - box.bottom,
+        timeRight: time.right,
+      };
     });
     await w.page.screenshot({ path: path.join(ARTIFACTS, 'passes-900x420.png') });
     expect(m.w).toBeGreaterThanOrEqual(520);
     expect(m.h).toBeGreaterThanOrEqual(250);
     expect(m.overflows).toBe(false);
-    expect(m.passesBottom).toBeLessThanOrEqual(m.frameBottom + 1);
+    expect(m.belowBottom).toBeLessThanOrEqual(m.frameBottom + 1);
+    expect(m.belowScrolls).toBe(true);
+    // the time control directly under the map, in the map's column
+    expect(m.gap).toBeGreaterThanOrEqual(0);
+    expect(m.gap).toBeLessThan(16);
+    expect(m.timeRight).toBeLessThanOrEqual(m.belowLeft);
     expect(w.pageErrors).toEqual([]);
     await w.ctx.close();
   });
+
+  for (const width of [390, 720, 900, 1280]) {
+    it(`puts the time control directly under the map at ${width} px with passes, not under the pass list`, async () => {
+      const w = await widgetPage(`time-under-map-${width}`, `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="footprint,terminator,passes"`, { width, height: 1000 });
+      await passesSettled(w.page);
+      await w.page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.chip') as HTMLButtonElement).click());
+      await w.page.waitForFunction(() => !!document.querySelector('nadir-track')!.shadowRoot!.querySelector('.panel'));
+      const m = await w.page.evaluate(() => {
+        const sr = document.querySelector('nadir-track')!.shadowRoot!;
+        const r = (sel: string) => sr.querySelector(sel)!.getBoundingClientRect();
+        const [box, time, below, sea] = [r('.mapbox'), r('.timectl'), r('.below'), r('path.sea')];
+        return { side: sr.querySelector('.body')!.classList.contains('side') && below.left >= box.right, gap: time.top - box.bottom, seaGap: time.top - sea.bottom, timeBottom: time.bottom, belowTop: below.top, belowBottom: below.bottom, timeRight: time.right, belowLeft: below.left };
+      });
+      await w.page.locator('nadir-track').screenshot({ path: path.join(ARTIFACTS, `time-under-map-${width}.png`) });
+      expect(m.gap).toBeGreaterThanOrEqual(0);
+      expect(m.gap).toBeLessThan(16);
+      // under the drawn map itself, not under an empty stretch of its box
+      expect(m.seaGap).toBeLessThan(24);
+      if (m.side) {
+        expect(m.timeRight).toBeLessThanOrEqual(m.belowLeft);
+        expect(m.timeBottom).toBeLessThan(m.belowBottom);
+      } else {
+        expect(m.timeBottom).toBeLessThanOrEqual(m.belowTop);
+      }
+      // wide elements put the list beside the map; a phone stacks them
+      expect(m.side).toBe(width >= 900);
+      expect(w.pageErrors).toEqual([]);
+      await w.ctx.close();
+    });
+  }
 
   it('keeps the map the larger part of a 390 px wide, 620 px high element with passes, with nothing cut off', async () => {
     const w = await widgetPage('passes-390', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="footprint,terminator,passes"`, {
@@ -94,7 +148,7 @@ describe('map size beside the pass list', () => {
       height: 844,
       style: 'display:block;height:620px',
     });
-    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.passes .row, .passes .quiet'));
+    await passesSettled(w.page);
     const m = await w.page.evaluate(() => {
       const sr = document.querySelector('nadir-track')!.shadowRoot!;
       // the drawn Earth, not the svg box it is fitted into

@@ -3,7 +3,6 @@ import path from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
-import type { Topology } from 'topojson-specification';
 import { chooseLang, compassIn, compassPhrase, EN, LANGS, translator, type Msg, type WordTable } from './words.ts';
 
 const dir = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'locales');
@@ -14,7 +13,7 @@ const table = (lang: string) => {
 const countryNames = (lang: string) => (JSON.parse(fs.readFileSync(path.join(dir, `${lang}.json`), 'utf8')) as { countries?: Record<string, string> }).countries ?? {};
 /** The areas of world-atlas countries-110m, keyed as the locale files key them: the id, else the English name. */
 const atlas = (() => {
-  const topo = JSON.parse(fs.readFileSync(createRequire(import.meta.url).resolve('world-atlas/countries-110m.json'), 'utf8')) as Topology<{ countries: { type: 'GeometryCollection'; geometries: { id?: string; properties: { name: string } }[] } }>;
+  const topo = JSON.parse(fs.readFileSync(createRequire(import.meta.url).resolve('world-atlas/countries-110m.json'), 'utf8')) as { objects: { countries: { geometries: { id?: string; properties: { name: string } }[] } } };
   return topo.objects.countries.geometries.map((g) => ({ key: String(g.id ?? g.properties.name), name: g.properties.name }));
 })();
 const holes = (m: Msg) => [...new Set((typeof m === 'string' ? [m] : Object.values(m)).flatMap((s) => [...s.matchAll(/\{(\w+)\}/g)].map((x) => x[1])))].sort();
