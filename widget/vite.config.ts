@@ -3,6 +3,7 @@ import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
 import { defineConfig, type Plugin } from 'vite';
 import vue from '@vitejs/plugin-vue';
+import { trimD3 } from './build/trim-d3.ts';
 
 const require = createRequire(import.meta.url);
 
@@ -51,8 +52,25 @@ function nadirAssets(): Plugin {
   };
 }
 
+/** The trims of d3-array and d3-geo (build/trim-d3.ts); a trim that finds nothing to change fails the build. */
+function trimmedD3(): Plugin {
+  return {
+    name: 'nadir-trim-d3',
+    transform: {
+      filter: { id: /[\\/]node_modules[\\/]d3-(array|geo)[\\/]/ },
+      handler(code, id) {
+        const t = trimD3(code, id);
+        if (!t) return null;
+        // the versions are pinned; a new one that reads differently should be looked at again
+        for (const [name, n] of Object.entries(t.changes)) if (n === 0) this.error(`trim-d3: "${name}" changed nothing in ${id}; look at widget/build/trim-d3.ts again`);
+        return { code: t.code, map: null };
+      },
+    },
+  };
+}
+
 export default defineConfig({
-  plugins: [vue({ features: { customElement: /\.ce\.vue$/ } }), nadirAssets()],
+  plugins: [vue({ features: { customElement: /\.ce\.vue$/ } }), nadirAssets(), trimmedD3()],
   // stack.md: library mode keeps process.env in the classic script unless it is defined
   define: {
     'process.env.NODE_ENV': JSON.stringify('production'),

@@ -9,7 +9,7 @@ export default defineProject({
   },
   test: {
     name: 'widget',
-    include: ['src/**/*.spec.ts'],
+    include: ['src/**/*.spec.ts', 'build/**/*.spec.ts'],
     environment: 'happy-dom',
     css: true,
     setupFiles: ['../tests/setup/no-console-noise.ts'],

@@ -7,6 +7,7 @@
  */
 import { execFileSync } from 'node:child_process';
 import fs from 'node:fs';
+import { createRequire } from 'node:module';
 import path from 'node:path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
@@ -63,29 +64,83 @@ async function widgetPage(name: string, attrs: string, opts: { width?: number; h
 }
 
 const allIds = () => server.credentials.satellites.map((s) => s.id).join(',');
+/** Until the pass list holds its rows (or says there are none), not while it is still working them out. */
+const passesSettled = (page: Page) =>
+  page.waitForFunction(() => {
+    const sr = document.querySelector('nadir-track')?.shadowRoot;
+    return !!sr?.querySelector('.passes .row') || Array.from(sr?.querySelectorAll('.passes .quiet') ?? []).some((q) => !/Working out/.test(q.textContent ?? ''));
+  }, undefined, { timeout: 20_000 });
 
 describe('map size beside the pass list', () => {
   it('keeps a 900 x 420 element with passes from shrinking its map to a thumbnail', async () => {
     const w = await widgetPage('passes-900', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="footprint,terminator,passes,graticule,labels"`, {
       style: 'display:block;width:900px;height:420px',
     });
-    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.passes .row, .passes .quiet'));
+    await passesSettled(w.page);
     const m = await w.page.evaluate(() => {
       const sr = document.querySelector('nadir-track')!.shadowRoot!;
       // the drawn Earth, not the svg box it is fitted into
       const svg = sr.querySelector('path.sea')!.getBoundingClientRect();
       const frame = sr.querySelector('.nadir')!;
-      const passes = sr.querySelector('.passes')!.getBoundingClientRect();
-      return { w: svg.width, h: svg.height, overflows: frame.scrollHeight > frame.clientHeight + 1, passesBottom: passes.bottom, frameBottom: frame.getBoundingClientRect().bottom };
+      const below = sr.querySelector('.below')!;
+      const time = sr.querySelector('.timectl')!.getBoundingClientRect();
+      const box = sr.querySelector('.mapbox')!.getBoundingClientRect();
+      return {
+        w: svg.width,
+        h: svg.height,
+        overflows: frame.scrollHeight > frame.clientHeight + 1,
+        // the pass column ends inside the frame and scrolls what does not fit
+        belowBottom: below.getBoundingClientRect().bottom,
+        belowScrolls: below.scrollHeight <= below.clientHeight + 1 || getComputedStyle(below).overflowY === 'auto',
+        belowLeft: below.getBoundingClientRect().left,
+        frameBottom: frame.getBoundingClientRect().bottom,
+        gap: time.top - box.bottom,
+        timeRight: time.right,
+      };
     });
     await w.page.screenshot({ path: path.join(ARTIFACTS, 'passes-900x420.png') });
     expect(m.w).toBeGreaterThanOrEqual(520);
     expect(m.h).toBeGreaterThanOrEqual(250);
     expect(m.overflows).toBe(false);
-    expect(m.passesBottom).toBeLessThanOrEqual(m.frameBottom + 1);
+    expect(m.belowBottom).toBeLessThanOrEqual(m.frameBottom + 1);
+    expect(m.belowScrolls).toBe(true);
+    // the time control directly under the map, in the map's column
+    expect(m.gap).toBeGreaterThanOrEqual(0);
+    expect(m.gap).toBeLessThan(16);
+    expect(m.timeRight).toBeLessThanOrEqual(m.belowLeft);
     expect(w.pageErrors).toEqual([]);
     await w.ctx.close();
   });
+
+  for (const width of [390, 720, 900, 1280]) {
+    it(`puts the time control directly under the map at ${width} px with passes, not under the pass list`, async () => {
+      const w = await widgetPage(`time-under-map-${width}`, `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="footprint,terminator,passes"`, { width, height: 1000 });
+      await passesSettled(w.page);
+      await w.page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.chip') as HTMLButtonElement).click());
+      await w.page.waitForFunction(() => !!document.querySelector('nadir-track')!.shadowRoot!.querySelector('.panel'));
+      const m = await w.page.evaluate(() => {
+        const sr = document.querySelector('nadir-track')!.shadowRoot!;
+        const r = (sel: string) => sr.querySelector(sel)!.getBoundingClientRect();
+        const [box, time, below, sea] = [r('.mapbox'), r('.timectl'), r('.below'), r('path.sea')];
+        return { side: sr.querySelector('.body')!.classList.contains('side') && below.left >= box.right, gap: time.top - box.bottom, seaGap: time.top - sea.bottom, timeBottom: time.bottom, belowTop: below.top, belowBottom: below.bottom, timeRight: time.right, belowLeft: below.left };
+      });
+      await w.page.locator('nadir-track').screenshot({ path: path.join(ARTIFACTS, `time-under-map-${width}.png`) });
+      expect(m.gap).toBeGreaterThanOrEqual(0);
+      expect(m.gap).toBeLessThan(16);
+      // under the drawn map itself, not under an empty stretch of its box
+      expect(m.seaGap).toBeLessThan(24);
+      if (m.side) {
+        expect(m.timeRight).toBeLessThanOrEqual(m.belowLeft);
+        expect(m.timeBottom).toBeLessThan(m.belowBottom);
+      } else {
+        expect(m.timeBottom).toBeLessThanOrEqual(m.belowTop);
+      }
+      // wide elements put the list beside the map; a phone stacks them
+      expect(m.side).toBe(width >= 900);
+      expect(w.pageErrors).toEqual([]);
+      await w.ctx.close();
+    });
+  }
 
   it('keeps the map the larger part of a 390 px wide, 620 px high element with passes, with nothing cut off', async () => {
     const w = await widgetPage('passes-390', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="footprint,terminator,passes"`, {
@@ -93,7 +148,7 @@ describe('map size beside the pass list', () => {
       height: 844,
       style: 'display:block;height:620px',
     });
-    await w.page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.passes .row, .passes .quiet'));
+    await passesSettled(w.page);
     const m = await w.page.evaluate(() => {
       const sr = document.querySelector('nadir-track')!.shadowRoot!;
       // the drawn Earth, not the svg box it is fitted into
@@ -272,6 +327,50 @@ describe('words in the reader’s language', () => {
       await w.ctx.close();
     });
   }
+
+  it('names the country under a picked satellite in German: “Über” and the German name', async () => {
+    const sat = server.credentials.satellites[0]!.id;
+    // the map's countries by English name, and the German names by atlas id (id, else the English name)
+    const atlas = JSON.parse(fs.readFileSync(createRequire(import.meta.url).resolve('world-atlas/countries-110m.json'), 'utf8')) as { objects: { countries: { geometries: { id?: string; properties: { name: string } }[] } } };
+    const keyOf = new Map(atlas.objects.countries.geometries.map((g) => [g.properties.name, String(g.id ?? g.properties.name)]));
+    const german = (JSON.parse(fs.readFileSync(path.join(repoRoot, 'widget', 'src', 'locales', 'de.json'), 'utf8')) as { countries: Record<string, string> }).countries;
+    const placeText = (page: Page) => page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.panel .place')?.textContent ?? '');
+    const pin = (page: Page, ms: number) => page.evaluate((iso) => document.querySelector('nadir-track')!.setAttribute('at', iso), new Date(ms).toISOString());
+    const pick = (page: Page) => page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.chip') as HTMLButtonElement).click());
+
+    // in English first, a moment pinned with `at` when the satellite is over a country (not the sea)
+    const t0 = Math.floor(Date.now() / 60_000) * 60_000;
+    const en = await widgetPage('over-en', `satellites="${sat}" locale="en" at="${new Date(t0).toISOString()}"`);
+    await pick(en.page);
+    let found: { at: number; name: string } | null = null;
+    for (let i = 0; i < 90 && !found; i++) {
+      const at = t0 + i * 7 * 60_000;
+      await pin(en.page, at);
+      await expect.poll(() => en.page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.shown-at')?.textContent ?? ''), { timeout: 10_000 }).toContain('Position at');
+      const text = await expect.poll(() => placeText(en.page), { timeout: 15_000 }).toMatch(/^Over /).then(() => placeText(en.page));
+      const name = text.replace(/^Over (the )?/, '');
+      // well inside: the same country a minute either side (the German page computes its own samples)
+      if (!keyOf.has(name)) continue;
+      await pin(en.page, at - 60_000);
+      const before = await expect.poll(() => placeText(en.page), { timeout: 10_000 }).toMatch(/^Over /).then(() => placeText(en.page));
+      await pin(en.page, at + 60_000);
+      const after = await expect.poll(() => placeText(en.page), { timeout: 10_000 }).toMatch(/^Over /).then(() => placeText(en.page));
+      if (before === text && after === text) found = { at, name };
+    }
+    await en.ctx.close();
+    expect(found, 'the satellite crosses a country within ten hours').not.toBeNull();
+    const expected = german[keyOf.get(found!.name)!]!;
+    expect(expected).toBeTruthy();
+
+    const de = await widgetPage('over-de', `satellites="${sat}" locale="de" at="${new Date(found!.at).toISOString()}"`, { locale: 'en-US' });
+    await pick(de.page);
+    await expect.poll(() => placeText(de.page), { timeout: 20_000 }).toBe(`Über ${expected}`);
+    // the live region says it in German too
+    await expect.poll(() => de.page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('[aria-live="polite"]')?.textContent ?? ''), { timeout: 15_000 }).toContain(`über ${expected} bei`);
+    await de.page.locator('nadir-track').screenshot({ path: path.join(ARTIFACTS, 'over-de.png') });
+    expect(de.pageErrors).toEqual([]);
+    await de.ctx.close();
+  });
 
   it('names a fixed observer place in the pass list instead of “you”', async () => {
     const w = await widgetPage('place', `satellites="${server.credentials.satellites[0]!.id}" observer="51.38,-2.36" layers="passes" observer-name="Ostwick Hall"`);

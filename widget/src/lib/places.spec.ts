@@ -1,11 +1,14 @@
 import { readFileSync } from 'node:fs';
 import { createRequire } from 'node:module';
+import path from 'node:path';
+import { fileURLToPath } from 'node:url';
 import { describe, expect, it } from 'vitest';
 import type { Feature, FeatureCollection, Geometry, Polygon } from 'geojson';
 import { geoBounds } from 'd3-geo';
 import { feature } from 'topojson-client';
 import type { GeometryCollection, Topology } from 'topojson-specification';
 import { namedAreas, oceanName, placeName } from './places.ts';
+import { translator, type WordTable } from './words.ts';
 
 /** The countries the widget ships (world-atlas countries-110m), as it reads them. */
 function shippedCountries() {
@@ -68,6 +71,39 @@ describe('placeName with the countries the widget ships', () => {
     [58, -86, 'Hudson Bay'],
   ])('calls %f, %f %s', (lat, lon, name) => {
     expect(placeName(lat, lon, areas)).toBe(name);
+  });
+});
+
+describe('placeName in the reader’s language', () => {
+  const areas = shippedCountries();
+  const locale = (lang: string) => JSON.parse(readFileSync(path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'locales', `${lang}.json`), 'utf8')) as WordTable;
+  it.each([
+    ['de', 52.5, 13.4, 'Deutschland', 'Über Deutschland'],
+    ['de', 39.5, -98.4, 'den Vereinigten Staaten', 'Über den Vereinigten Staaten'],
+    ['de', 46.8, 8.2, 'der Schweiz', 'Über der Schweiz'],
+    ['de', 42, 51, 'dem Kaspischen Meer', 'Über dem Kaspischen Meer'],
+    ['fr', 39.5, -98.4, 'des États-Unis', 'Au-dessus des États-Unis'],
+    ['fr', 56, -100, 'du Canada', 'Au-dessus du Canada'],
+    ['fr', 46.5, 2.5, 'de la France', 'Au-dessus de la France'],
+    ['fr', 26.5, 52, 'du golfe Persique', 'Au-dessus du golfe Persique'],
+    ['es', -15.8, -47.9, 'Brasil', 'Sobre Brasil'],
+    ['es', 54, -2, 'el Reino Unido', 'Sobre el Reino Unido'],
+    ['es', 45.5, -3.5, 'el Atlántico Norte', 'Sobre el Atlántico Norte'],
+  ] as const)('%s: %f, %f is %s', (lang, lat, lon, name, over) => {
+    const t = translator(lang, locale(lang));
+    expect(placeName(lat, lon, areas, t)).toBe(name);
+    expect(t('over', { place: name })).toBe(over);
+  });
+  it('falls back to the map’s English name (without "the") when the language has no name for a country', () => {
+    const t = translator('de', { countries: {} });
+    expect(placeName(39.5, -98.4, areas, t)).toBe('United States of America');
+    expect(placeName(52.5, 13.4, areas, translator('de'))).toBe('Germany');
+  });
+  it('finds the areas the atlas gives no id by their English name', () => {
+    const kosovo = areas.find((a) => a.name === 'Kosovo')!;
+    expect(kosovo.key).toBe('Kosovo');
+    expect(areas.find((a) => a.name === 'Germany')!.key).toBe('276');
+    expect(placeName(42.6, 20.9, areas, translator('de', locale('de')))).toBe('dem Kosovo');
   });
 });
 

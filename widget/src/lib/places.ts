@@ -3,12 +3,14 @@
  * countries when the point is on land, otherwise a coarse ocean name from longitude and
  * latitude boxes drawn for Nadirline (good enough for "over the South Atlantic", not a gazetteer).
  */
-import { geoContains } from 'd3-geo';
 import type { Feature, Geometry } from 'geojson';
+import { outlineHolds } from './contains.ts';
 import { english, type Translate, type WordKey } from './words.ts';
 
 export interface NamedArea {
   name: string;
+  /** The atlas id (ISO 3166 numeric), else the English name: the key of the country names in the locale files. */
+  key: string;
   feature: Feature<Geometry, { name?: string }>;
   /** [[west, south], [east, north]]; west > east when the area spans the antimeridian. */
   bounds: [[number, number], [number, number]];
@@ -17,7 +19,7 @@ export interface NamedArea {
 /**
  * A box around an area's outline points, one degree wider on every side for the bulge of its
  * edges (great-circle arcs, a small fraction of a degree between the 110m outline's points):
- * only a first sieve before geoContains, so it need only hold the whole area (places.spec.ts
+ * only a first sieve before outlineHolds, so it need only hold the whole area (places.spec.ts
  * checks it holds d3-geo's geoBounds of every shipped country). Cheaper in bytes than geoBounds.
  */
 function outlineBox(g: Geometry | null): NamedArea['bounds'] {
@@ -52,7 +54,7 @@ function outlineBox(g: Geometry | null): NamedArea['bounds'] {
 export function namedAreas(features: readonly Feature<Geometry, { name?: string }>[]): NamedArea[] {
   return features
     .filter((f) => typeof f.properties?.name === 'string')
-    .map((f) => ({ name: f.properties.name!, feature: f, bounds: outlineBox(f.geometry) }));
+    .map((f) => ({ name: f.properties.name!, key: String(f.id ?? f.properties.name), feature: f, bounds: outlineBox(f.geometry) }));
 }
 
 function inBounds(b: NamedArea['bounds'], lat: number, lon: number): boolean {
@@ -99,14 +101,15 @@ export function oceanName(lat: number, lon: number, t: Translate = english): str
 const WITH_THE = /^(United|Dem\. Rep\.|Central African|Dominican|Solomon|Falkland|Bahamas|Philippines|Netherlands|Gambia|Czech|Fr\. S\.)/;
 
 /**
- * "Brazil", "the United States of America" or "the South Atlantic"; null while the country
+ * "Brazil", "the United States of America" or "the South Atlantic" (in German "den Vereinigten
+ * Staaten", from the locale's country names, else the map's English name); null while the country
  * outlines are not loaded yet, since without them any point, inland Siberia too, would be called
  * an ocean (callers then give coordinates alone).
  */
 export function placeName(lat: number, lon: number, areas: readonly NamedArea[], t: Translate = english): string | null {
   if (areas.length === 0) return null;
   for (const a of areas) {
-    if (inBounds(a.bounds, lat, lon) && geoContains(a.feature, [lon, lat])) return t === english && WITH_THE.test(a.name) ? `the ${a.name}` : a.name;
+    if (inBounds(a.bounds, lat, lon) && outlineHolds(a.feature.geometry, lon, lat)) return t.countries?.[a.key] ?? (t === english && WITH_THE.test(a.name) ? `the ${a.name}` : a.name);
   }
   return oceanName(lat, lon, t);
 }

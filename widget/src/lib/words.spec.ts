@@ -1,11 +1,21 @@
 import fs from 'node:fs';
 import path from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { createRequire } from 'node:module';
 import { describe, expect, it } from 'vitest';
 import { chooseLang, compassIn, compassPhrase, EN, LANGS, translator, type Msg, type WordTable } from './words.ts';
 
 const dir = path.join(path.dirname(fileURLToPath(import.meta.url)), '..', 'locales');
-const table = (lang: string) => JSON.parse(fs.readFileSync(path.join(dir, `${lang}.json`), 'utf8')) as Record<string, Msg>;
+const table = (lang: string) => {
+  const { countries: _names, ...words } = JSON.parse(fs.readFileSync(path.join(dir, `${lang}.json`), 'utf8')) as Record<string, Msg> & { countries?: Record<string, string> };
+  return words as Record<string, Msg>;
+};
+const countryNames = (lang: string) => (JSON.parse(fs.readFileSync(path.join(dir, `${lang}.json`), 'utf8')) as { countries?: Record<string, string> }).countries ?? {};
+/** The areas of world-atlas countries-110m, keyed as the locale files key them: the id, else the English name. */
+const atlas = (() => {
+  const topo = JSON.parse(fs.readFileSync(createRequire(import.meta.url).resolve('world-atlas/countries-110m.json'), 'utf8')) as { objects: { countries: { geometries: { id?: string; properties: { name: string } }[] } } };
+  return topo.objects.countries.geometries.map((g) => ({ key: String(g.id ?? g.properties.name), name: g.properties.name }));
+})();
 const holes = (m: Msg) => [...new Set((typeof m === 'string' ? [m] : Object.values(m)).flatMap((s) => [...s.matchAll(/\{(\w+)\}/g)].map((x) => x[1])))].sort();
 
 describe('locale tables', () => {
@@ -21,6 +31,20 @@ describe('locale tables', () => {
         // a copy of the English sentence is a missed translation (short shared words aside)
         if (typeof m === 'string' && m.length > 24) expect(m, `${lang} ${key}`).not.toBe(en);
       }
+    });
+
+    it(`${lang} names every country of the map (world-atlas countries-110m), and nothing else`, () => {
+      const names = countryNames(lang);
+      expect(atlas.length).toBe(177);
+      expect(Object.keys(names).sort()).toEqual(atlas.map((a) => a.key).sort());
+      for (const a of atlas) {
+        const n = names[a.key]!;
+        expect(n.trim(), `${lang} ${a.name}`).toBe(n);
+        expect(n.length, `${lang} ${a.name}`).toBeGreaterThan(2);
+        expect(n, `${lang} ${a.name}`).not.toMatch(/[{}]/);
+      }
+      // translated, not the map's English copied: most names differ from it
+      expect(atlas.filter((a) => names[a.key] !== a.name).length).toBeGreaterThan(90);
     });
   }
 });
@@ -46,5 +70,11 @@ describe('translator', () => {
     expect(compassIn(fr, 90)).toBe('est');
     expect(compassPhrase(fr, 90)).toBe('à l’est');
     expect(compassPhrase(translator('en'), 225)).toBe('in the south-west');
+  });
+
+  it('carries the language’s country names, and none for English', () => {
+    expect(translator('de', { countries: { '276': 'Deutschland' } }).countries).toEqual({ '276': 'Deutschland' });
+    expect(translator('de').countries).toBeUndefined();
+    expect(translator('en').countries).toBeUndefined();
   });
 });

@@ -3,7 +3,8 @@
  * the others are JSON files beside it (`widget/src/locales/*.json`, copied to `assets/` with a
  * content hash by the build), fetched once per page when the `locale` attribute or the browser
  * asks for them, so they cost the bundle nothing. Each locale file holds every key of `EN` with
- * the same {placeholders} (words.spec.ts checks it); a missing key reads in English.
+ * the same {placeholders}, and the name of every country of the map (words.spec.ts checks both);
+ * a missing key or name reads in English.
  *
  * A value is a string with {name} placeholders, or plural forms chosen by the `n` parameter
  * through Intl.PluralRules ({ one, other }, plus few/many where a language has them).
@@ -100,7 +101,7 @@ export const EN = {
   days: '{n} days',
   seconds: { one: '{n} second', other: '{n} seconds' },
   minutes: { one: '{n} minute', other: '{n} minutes' },
-  // seas and oceans (country names come from the map data, in English)
+  // seas and oceans (country names come from the map data in English, from WordTable `countries` in the other languages)
   caspian: 'the Caspian Sea',
   black: 'the Black Sea',
   red: 'the Red Sea',
@@ -169,9 +170,18 @@ export const EN = {
 } satisfies Record<string, Msg>;
 
 export type WordKey = keyof typeof EN;
-export type WordTable = { [K in WordKey]?: Msg };
+/**
+ * A language's words, and its names of the map's countries (`countries`, by the world-atlas id,
+ * the ISO 3166 numeric code, or by the atlas's English name for the three areas it gives no id),
+ * written as they read in the language's "over {place}" sentences.
+ */
+export type WordTable = { [K in WordKey]?: Msg } & { countries?: Record<string, string> };
 export type Params = Record<string, string | number>;
-export type Translate = (key: WordKey, params?: Params) => string;
+export interface Translate {
+  (key: WordKey, params?: Params): string;
+  /** The language's country names (WordTable `countries`); none for English, which reads the map's own. */
+  countries?: Record<string, string> | undefined;
+}
 
 /** Languages the widget speaks; the first is the one built in. */
 export const LANGS = ['en', 'de', 'fr', 'es'] as const;
@@ -198,7 +208,7 @@ function fill(text: string, params: Params | undefined): string {
 /** A translator for one language: its table first, English for anything it lacks. */
 export function translator(lang: Lang, table: WordTable | null = null): Translate {
   let plural: Intl.PluralRules | undefined;
-  return (key, params) => {
+  const t: Translate = (key, params) => {
     const msg: Msg = table?.[key] ?? EN[key];
     if (typeof msg === 'string') return fill(msg, params);
     try {
@@ -209,6 +219,8 @@ export function translator(lang: Lang, table: WordTable | null = null): Translat
     const form = plural.select(Number(params?.n ?? 0)) as keyof Plural;
     return fill(msg[form] ?? msg.other, params);
   };
+  t.countries = table?.countries;
+  return t;
 }
 
 export const english: Translate = translator('en');
