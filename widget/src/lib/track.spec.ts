@@ -19,6 +19,19 @@ describe('longitude helpers', () => {
 });
 
 describe('interpolate', () => {
+  it('does not bridge a hole between two windows with a straight line', () => {
+    // two windows of 60 s steps an hour apart: the hour between is not known yet
+    const w1: Sample[] = [0, 60, 120].map((k) => ({ t: k * 1000, lat: k / 60, lon: k / 60, altKm: 500, sunlit: true }));
+    const w2: Sample[] = [3720, 3780, 3840].map((k) => ({ t: k * 1000, lat: -k / 600, lon: 100, altKm: 500, sunlit: true }));
+    const both = mergeSamples([w1, w2]);
+    expect(interpolate(both, 600_000)).toMatchObject({ lat: 2, lon: 2, extrapolated: true });
+    expect(interpolate(both, 3_500_000)).toMatchObject({ lon: 100, extrapolated: true });
+    // inside a window, and across the seam of adjacent windows of different steps, it interpolates
+    expect(interpolate(both, 90_000)).toMatchObject({ lat: 1.5, extrapolated: false });
+    const w3: Sample[] = [240, 360, 480].map((k) => ({ t: k * 1000, lat: 0, lon: 0, altKm: 500, sunlit: true }));
+    expect(interpolate(mergeSamples([w1, w3]), 180_000)).toMatchObject({ extrapolated: false });
+  });
+
   const samples = [s(0, 0, 0, 400), s(60_000, 2, 4, 410, false), s(120_000, 4, 8, 420, false)];
 
   it('puts the sub-satellite point between the two samples around the time', () => {

@@ -92,7 +92,8 @@ function lastAtOrBefore(samples: readonly Sample[], t: number): number {
 /**
  * The sub-satellite point at time t, linearly interpolated between the two samples around it.
  * Longitude takes the short way round, so a pass over the antimeridian does not sweep the globe.
- * Outside the samples the nearest sample is returned with `extrapolated: true`; none at all gives null.
+ * Outside the samples, or in a hole between windows (a gap more than twice the step beside it), the
+ * nearest sample is returned with `extrapolated: true`; none at all gives null.
  */
 export function interpolate(samples: readonly Sample[], t: number): Interpolated | null {
   if (samples.length === 0) return null;
@@ -101,7 +102,12 @@ export function interpolate(samples: readonly Sample[], t: number): Interpolated
   const a = samples[i]!;
   const b = samples[i + 1];
   if (!b) return { ...a, t, extrapolated: t > a.t };
-  const f = b.t === a.t ? 0 : (t - a.t) / (b.t - a.t);
+  // a hole between two windows (the one between not held yet) is not bridged by a straight line:
+  // the nearest sample stands in, marked extrapolated, until the window comes
+  const gap = b.t - a.t;
+  const stepNear = Math.max(a.t - (samples[i - 1]?.t ?? a.t), (samples[i + 2]?.t ?? b.t) - b.t);
+  if (stepNear > 0 && gap > 2 * stepNear) return { ...(t - a.t <= b.t - t ? a : b), t, extrapolated: true };
+  const f = gap === 0 ? 0 : (t - a.t) / gap;
   return {
     t,
     lat: a.lat + (b.lat - a.lat) * f,
