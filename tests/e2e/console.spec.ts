@@ -368,6 +368,87 @@ describe('the console against the real server', () => {
     }
   });
 
+  it('deletes a revoked key through its Manage menu and the dialog at 1280 px, and will not delete one an embed reads with', async () => {
+    const { page, org } = await signInAs('admin');
+    const made = await page.evaluate(
+      async ({ o, origin, sat }) => {
+        const { csrfToken } = (await (await fetch('/api/session')).json()) as { csrfToken: string };
+        const send = async (method: string, url: string, body?: unknown) =>
+          (await fetch(url, { method, headers: { 'content-type': 'application/json', 'x-csrf-token': csrfToken }, body: JSON.stringify(body ?? {}) })).json() as Promise<Record<string, { id: string }> & { secret: string }>;
+        const gone = await send('POST', `/api/orgs/${o}/keys`, { kind: 'browser', name: 'E2E leaflet page', origins: [origin] });
+        // one use from this page, so the dialog has a last use and an origin to show
+        await fetch(`/v1/satellites?key=${gone.secret}`);
+        await send('POST', `/api/orgs/${o}/keys/${gone.key!.id}/revoke`);
+        const kept = await send('POST', `/api/orgs/${o}/keys`, { kind: 'browser', name: 'E2E kept for an embed', origins: [origin] });
+        await send('POST', `/api/orgs/${o}/embeds`, { name: 'E2E lobby wall', satelliteIds: [sat], apiKeyId: kept.key!.id, options: {} });
+        return { goneId: gone.key!.id, goneSecret: gone.secret };
+      },
+      { o: org, origin: server.url, sat: server.credentials.satellites[0]!.id },
+    );
+    await page.goto(`${server.url}/o/${org}/keys`);
+
+    // a key an embed reads with: the dialog names the embed and the button says why it waits
+    await page.locator('tr', { hasText: 'E2E kept for an embed' }).getByRole('button', { name: /Manage/ }).click();
+    await page.getByRole('menuitem', { name: 'Delete…' }).click();
+    const blocked = page.getByRole('dialog', { name: 'Delete “E2E kept for an embed”?' });
+    await blocked.getByText('An embed reads with this key.').waitFor();
+    await blocked.getByRole('link', { name: 'E2E lobby wall' }).waitFor();
+    await blocked.getByText(/Used by 1 embed; not called in the last 7 days/).waitFor();
+    await blocked.getByText('Last used: never.').waitFor();
+    expect(await blocked.getByRole('button', { name: 'Delete key' }).isDisabled()).toBe(true);
+    await blocked.getByText('Give that embed another key first.').waitFor();
+    await shot(page, 'key-delete-blocked-1280');
+    await blocked.getByRole('button', { name: 'Cancel' }).click();
+    await blocked.waitFor({ state: 'detached' });
+
+    // a key that still works and no embed reads with: its name must be typed
+    await page.locator('tr', { hasText: 'Demo flight-dynamics pipeline' }).getByRole('button', { name: /Manage/ }).click();
+    await page.getByRole('menuitem', { name: 'Delete…' }).click();
+    const working = page.getByRole('dialog', { name: 'Delete “Demo flight-dynamics pipeline”?' });
+    await working.getByText(/still works\. Deleting it stops it at once/).waitFor();
+    expect(await working.getByRole('button', { name: 'Delete key' }).isDisabled()).toBe(true);
+    await working.getByText('Type the key’s name to confirm.').waitFor();
+    await working.getByLabel(/Type .* to confirm/).fill('Demo flight-dynamics pipeline');
+    expect(await working.getByRole('button', { name: 'Delete key' }).isDisabled()).toBe(false);
+    await shot(page, 'key-delete-working-1280');
+    await working.getByRole('button', { name: 'Cancel' }).click();
+    await working.waitFor({ state: 'detached' });
+
+    // the revoked key, shown with the others that no longer answer
+    await page.getByRole('button', { name: /^Show \d+ retired, revoked or expired/ }).click();
+    const row = page.locator('tr', { hasText: 'E2E leaflet page' });
+    await row.getByText('Revoked').waitFor();
+    await row.getByRole('button', { name: /Manage/ }).click();
+    expect(await page.getByRole('menuitem', { name: 'Revoke…' }).count()).toBe(0);
+    await page.getByRole('menuitem', { name: 'Delete…' }).click();
+    const dialog = page.getByRole('dialog', { name: 'Delete “E2E leaflet page”?' });
+    await dialog.getByText(/was revoked on .* and no longer answers/).waitFor();
+    await dialog.getByText(/stay counted in this organization’s usage under its name/).waitFor();
+    await dialog.getByText(/Last used: (just now|\d+ min ago)/).waitFor();
+    await dialog.getByText(/Used by no embed; seen from this origin in the last 7 days/).waitFor();
+    await dialog.getByText('It was called from these origins (their requests are refused already):').waitFor();
+    await dialog.getByText(new RegExp(`${server.url.replace(/[.:/]/g, '\\$&')}: 1 request`)).waitFor();
+    for (const [width, scheme] of [[1280, 'light'], [1280, 'dark'], [390, 'dark'], [390, 'light']] as const) {
+      await page.setViewportSize({ width, height: width === 390 ? 844 : 900 });
+      await page.emulateMedia({ colorScheme: scheme });
+      await shot(page, `key-delete-dialog-${width}-${scheme}`);
+    }
+    await page.setViewportSize({ width: 1280, height: 900 });
+    await page.emulateMedia({ colorScheme: 'light' });
+    await dialog.getByRole('button', { name: 'Delete key' }).click();
+    await dialog.waitFor({ state: 'detached' });
+    await page.getByText('Key deleted. Its past requests stay in the usage reports.').waitFor();
+    expect(await page.locator('tr', { hasText: 'E2E leaflet page' }).count()).toBe(0);
+    await page.reload();
+    await page.locator('tr', { hasText: 'E2E kept for an embed' }).waitFor();
+    const toggle = page.getByRole('button', { name: /^Show \d+ retired, revoked or expired/ });
+    if (await toggle.count()) await toggle.click();
+    expect(await page.locator('tr', { hasText: 'E2E leaflet page' }).count()).toBe(0);
+    expect(await pageGet(page, `/v1/satellites?key=${made.goneSecret}`)).toEqual({ status: 401, code: 'invalid-key' });
+    await page.goto(`${server.url}/o/${org}/activity`);
+    await page.getByText(/deleted a key/).first().waitFor();
+  });
+
   it('refuses an invalid observer in the embed builder and says why Save cannot be pressed', async () => {
     const { page, org } = await signInAs('editor');
     await page.goto(`${server.url}/o/${org}/embeds/new`);

@@ -403,3 +403,52 @@ describe('hosted embed framed by a site its key does not list', () => {
     await ctx.close();
   });
 });
+
+describe('hosted embed framed by a page that sends no Referer', () => {
+  const framePage = (policy: 'meta' | 'attribute') =>
+    `<!doctype html>${policy === 'meta' ? '<meta name="referrer" content="no-referrer">' : ''}<h1>A story</h1>` +
+    `<iframe src="${server.url}/embed/${server.credentials.embedId}"${policy === 'attribute' ? ' referrerpolicy="no-referrer"' : ''} width="800" height="420" title="Our satellites"></iframe>`;
+
+  for (const policy of ['meta', 'attribute'] as const) {
+    it(`shows the Nadirline notice on a site the key does not list (no-referrer by ${policy})`, async () => {
+      const ctx = await browser.newContext({ viewport: { width: 1000, height: 700 } });
+      const page = await ctx.newPage();
+      const outside = 'http://quiet.elsewhere.test/story.html';
+      const embedRequests: Array<{ url: string; referer: string | undefined; status: number }> = [];
+      page.on('response', (r) => {
+        if (r.url().includes('/embed/')) embedRequests.push({ url: r.url(), referer: r.request().headers()['referer'], status: r.status() });
+      });
+      await page.route(outside, (r) => r.fulfill({ contentType: 'text/html', body: framePage(policy) }));
+      await page.goto(outside);
+      const frame = await (await page.waitForSelector('iframe')).contentFrame();
+      expect(frame).not.toBeNull();
+      await frame!.waitForSelector('text=This map is not allowed on this site', { timeout: 10_000 });
+      expect(await frame!.textContent('body')).toContain('http://quiet.elsewhere.test');
+      expect(await frame!.$('nadir-track')).toBeNull();
+      // the first request really carried no Referer, so the server could not have judged it alone
+      const first = embedRequests.find((e) => new URL(e.url).pathname === `/embed/${server.credentials.embedId}`);
+      expect(first?.referer).toBeUndefined();
+      expect(first?.status).toBe(200);
+      expect(embedRequests.some((e) => e.url.includes('framers=') && e.status === 403)).toBe(true);
+      if (policy === 'meta') await page.screenshot({ path: path.join(ARTIFACTS, 'embed-refused-no-referrer.png') });
+      await ctx.close();
+    });
+  }
+
+  it('still draws the map on a site the key lists, with no Referer', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 1000, height: 700 } });
+    const page = await ctx.newPage();
+    const pageErrors: string[] = [];
+    page.on('pageerror', (e) => pageErrors.push(e.message));
+    // the demo key lists both loopback names of the server's port; this page is on the other one
+    const listed = `${server.url.replace('127.0.0.1', 'localhost')}/e2e-quiet-story.html`;
+    expect(listed).not.toBe(`${server.url}/e2e-quiet-story.html`);
+    await page.route(listed, (r) => r.fulfill({ contentType: 'text/html', body: framePage('meta') }));
+    await page.goto(listed);
+    const frame = await (await page.waitForSelector('iframe')).contentFrame();
+    await frame!.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.mark'), undefined, { timeout: 20_000 });
+    expect(await frame!.textContent('body')).not.toContain('not allowed on this site');
+    expect(pageErrors).toEqual([]);
+    await ctx.close();
+  });
+});

@@ -237,6 +237,7 @@ export const TABLE: Row[] = [
   { route: 'PATCH /orgs/:org/keys/:id', allowed: MANAGERS, ok: 200, call: async (fx) => ({ method: 'patch', url: org(`/keys/${fx.serverKeyId}`), body: { name: 'Renamed pipeline' } }) },
   { route: 'POST /orgs/:org/keys/:id/rotate', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/rotate`), body: { name: 'Rotated by role test', quietMinutes: 60 } }) },
   { route: 'POST /orgs/:org/keys/:id/revoke', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'post', url: org(`/keys/${await freshKey()}/revoke`) }) },
+  { route: 'DELETE /orgs/:org/keys/:id', allowed: MANAGERS, ok: 204, call: async () => ({ method: 'delete', url: org(`/keys/${await freshKey()}`) }) },
 
   // ---- satellites and element sets
   { route: 'GET /orgs/:org/satellites', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/satellites') }) },

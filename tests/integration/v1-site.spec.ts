@@ -241,4 +241,50 @@ describe('examples and the hosted embed page', () => {
     expect(ok.text).toContain(`embed="${creds.embedId}"`);
     expect(ok.headers['content-security-policy']).toMatch(/frame-ancestors 'self' http:\/\/localhost:8080/);
   });
+
+  it('asks the frame who frames it when a site of another origin sends no Referer, and refuses an unlisted one it names', async () => {
+    const framed = (query = '') =>
+      request(t.app).get(`/embed/${creds.embedId}${query}`).set('Sec-Fetch-Dest', 'iframe').set('Sec-Fetch-Site', 'cross-site');
+    // no Referer: a framable check page, without the map and without the key's origins
+    const check = await framed().expect(200);
+    expect(check.headers['content-security-policy']).toMatch(/frame-ancestors \*/);
+    expect(check.headers['content-security-policy']).toMatch(/script-src 'self'/);
+    expect(check.headers['cache-control']).toBe('no-store');
+    expect(check.text).toContain('<script src="/embed/frame-check.js"></script>');
+    expect(check.text).not.toContain('<nadir-track');
+    expect(check.text).not.toContain('localhost:8080');
+    const script = await request(t.app).get('/embed/frame-check.js').expect(200);
+    expect(script.headers['content-type']).toMatch(/javascript/);
+    expect(script.text).toContain('ancestorOrigins');
+    expect(script.text).toContain("searchParams.set('framers'");
+
+    // the check names an unlisted framer: our notice, framable anywhere
+    const refused = await request(t.app)
+      .get(`/embed/${creds.embedId}`)
+      .query({ framers: 'https://elsewhere.example.com' })
+      .set('Sec-Fetch-Dest', 'iframe')
+      .set('Sec-Fetch-Site', 'same-origin')
+      .set('Referer', `http://localhost:8080/embed/${creds.embedId}`)
+      .expect(403);
+    expect(refused.headers['content-security-policy']).toMatch(/frame-ancestors \*/);
+    expect(refused.text).toContain('This map is not allowed on this site');
+    expect(refused.text).toContain('https://elsewhere.example.com');
+    expect(refused.text).not.toContain('<nadir-track');
+    // an opaque (sandboxed) framer, or an unlisted one anywhere up the chain
+    expect((await framed('?framers=null').expect(403)).text).toContain('the page showing it is not one of them');
+    expect((await framed(`?framers=${encodeURIComponent('http://localhost:8080 https://outer.example.com')}`).expect(403)).text).toContain('https://outer.example.com');
+
+    // a listed framer, or none the browser would say: the map, under the key's frame-ancestors (the browser still decides)
+    for (const framers of ['http://localhost:8080', '']) {
+      const ok = await framed(`?framers=${encodeURIComponent(framers)}`).expect(200);
+      expect(ok.text).toContain(`embed="${creds.embedId}"`);
+      expect(ok.headers['content-security-policy']).toMatch(/frame-ancestors 'self' http:\/\/localhost:8080/);
+      expect(ok.headers['content-security-policy']).not.toMatch(/frame-ancestors \*/);
+    }
+    // nothing that is not an origin gets into the page
+    const junk = await framed(`?framers=${encodeURIComponent('<b>hi</b> javascript:alert(1)')}`).expect(200);
+    expect(junk.text).not.toContain('<b>hi</b>');
+    // opened on its own (not framed), no check page
+    expect((await request(t.app).get(`/embed/${creds.embedId}`).set('Sec-Fetch-Dest', 'document').set('Sec-Fetch-Site', 'none').expect(200)).text).toContain('<nadir-track');
+  });
 });

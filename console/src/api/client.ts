@@ -365,6 +365,10 @@ export class ApiClient {
   revokeKey(org: string, id: string) {
     return this.post<{ key: ApiKey }>(`/orgs/${seg(org)}/keys/${seg(id)}/revoke`);
   }
+  /** 204; 409 `key-in-use` (a KeyInUseProblem naming the embeds) while embeds read with the key. */
+  deleteKey(org: string, id: string) {
+    return this.delete(`/orgs/${seg(org)}/keys/${seg(id)}`);
+  }
 
   // ---- embeds ----
   embeds(org: string) {

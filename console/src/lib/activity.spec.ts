@@ -53,6 +53,19 @@ describe('activity details', () => {
     ]);
   });
 
+  it('describes a deletion: the key, the state it was in and its last use', () => {
+    const d = activityDetails({ action: 'key.delete', detail: { name: 'Old site', kind: 'browser', lastFour: 'Qx7P', state: 'revoked', lastUsedAt: '2026-03-02T09:15:00.000Z' } }, names, 'en-GB');
+    expect(activityVerb('key.delete')).toBe('deleted a key');
+    expect(d).toEqual([
+      { label: 'Name', value: 'Old site' },
+      { label: 'Kind', value: 'Browser key' },
+      { label: 'Last four', value: 'Qx7P' },
+      { label: 'State when deleted', value: 'revoked' },
+      { label: 'Last used', value: formatLocalDateTime('2026-03-02T09:15:00.000Z', 'en-GB') },
+    ]);
+    expect(activityDetails({ action: 'key.delete', detail: { name: 'Unused', lastUsedAt: null } })).toContainEqual({ label: 'Last used', value: 'never' });
+  });
+
   it('shows only the embed options that changed, each before → after', () => {
     expect(activityDetails({ action: 'embed.update', detail: { name: 'Lobby map', changes: { theme: { from: 'light', to: 'dark' }, projection: { from: null, to: 'globe' } } } })).toEqual([
       { label: 'Name', value: 'Lobby map' },

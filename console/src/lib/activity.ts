@@ -24,6 +24,7 @@ const VERBS: Record<string, string> = {
   'key.update': 'changed a key',
   'key.rotate': 'replaced a key',
   'key.revoke': 'revoked a key',
+  'key.delete': 'deleted a key',
   'member.invite': 'invited a member',
   'member.invite-revoke': 'withdrew an invitation',
   'member.join': 'joined',
@@ -62,6 +63,8 @@ const LABELS: Record<string, string> = {
   quietMinutes: 'Old key retires after',
   retireBy: 'Old key retires by',
   embedsMoved: 'Embeds moved to the new key',
+  state: 'State when deleted',
+  lastUsedAt: 'Last used',
   projection: 'Map',
   orbitsBehind: 'Orbits behind',
   orbitsAhead: 'Orbits ahead',
@@ -144,6 +147,10 @@ function valueOf(key: string, v: unknown, names: ActivityNames, locale?: string)
       return typeof v === 'string' && v ? formatLocalDateTime(v, locale) : 'never';
     case 'retireBy':
       return typeof v === 'string' && v ? formatLocalDateTime(v, locale) : null;
+    case 'lastUsedAt':
+      return typeof v === 'string' && v ? formatLocalDateTime(v, locale) : 'never';
+    case 'state':
+      return typeof v === 'string' ? ({ active: 'active', retiring: 'retiring when quiet', retired: 'retired', expired: 'expired', revoked: 'revoked' }[v] ?? v) : null;
     case 'quietMinutes': {
       if (typeof v !== 'number') return null;
       if (v === 0) return 'retired at once';

@@ -45,7 +45,7 @@ describe('the keys page', () => {
     wrapper.unmount();
   });
 
-  it('offers a viewer no way to create, rotate or revoke keys', async () => {
+  it('offers a viewer no way to create, replace, revoke or delete keys', async () => {
     const { wrapper } = await open('viewer');
     const buttons = wrapper.findAll('button').map((b) => b.text());
     expect(buttons.some((t) => /create a key/i.test(t))).toBe(false);
@@ -153,6 +153,100 @@ describe('the keys page', () => {
     expect(calls.some((c) => c.method === 'POST')).toBe(false);
     expect(document.body.textContent).toContain('Add at least one origin');
     expect(origins.getAttribute('aria-invalid')).toBe('true');
+    wrapper.unmount();
+  });
+});
+
+describe('deleting a key', () => {
+  const revoked = key({ id: 'k4', name: 'Old leaflet page', lastFour: 'Rv0k', state: 'revoked', revokedAt: '2031-02-01T10:00:00Z', lastUsedAt: '2031-01-30T08:00:00Z' });
+  const inUse = key({ id: 'k5', name: 'Lobby key', lastFour: 'Lb5y', use: { embeds: [{ id: 'emb1', name: 'Lobby wall' }, { id: 'emb2', name: 'Visitor guide' }], origins: [], originsSince: '2030-12-26' } });
+  const unused = key({
+    id: 'k6',
+    name: 'Spare pipeline',
+    kind: 'server',
+    lastFour: 'Sp6e',
+    origins: [],
+    use: { embeds: [], origins: [{ origin: 'https://ops.kestrel.example', count: 12, lastDay: '2031-01-02' }], originsSince: '2030-12-26' },
+  });
+
+  async function page(keys = [revoked, inUse, unused]) {
+    const fetched = mockFetch([
+      { path: '/api/session', body: session('admin') },
+      { path: '/api/orgs/org1/keys', body: { keys } },
+      { method: 'DELETE', path: /\/api\/orgs\/org1\/keys\/k\d$/, status: 204 },
+    ]);
+    const mounted = await mountAt(KeysPage, '/o/org1/keys', { org: 'org1' });
+    return { ...fetched, ...mounted };
+  }
+  const button = (text: RegExp) => [...document.body.querySelectorAll<HTMLButtonElement>('button')].find((b) => text.test(b.textContent ?? ''));
+  async function openDelete(name: string) {
+    const manage = [...document.body.querySelectorAll<HTMLButtonElement>('button')].find((b) => /^Manage/.test(b.textContent ?? '') && (b.textContent ?? '').includes(name))!;
+    manage.click();
+    await flushPromises();
+    button(/^Delete…$/)!.click();
+    await flushPromises();
+    return document.body.querySelector<HTMLElement>('[role="dialog"]')!;
+  }
+
+  it('deletes a revoked key after saying what deletion does, and takes it off the list', async () => {
+    const { wrapper, calls } = await page();
+    button(/Show 1 retired, revoked or expired key/)!.click();
+    await flushPromises();
+    const dialog = await openDelete('Old leaflet page');
+    expect(dialog.textContent).toContain('Delete “Old leaflet page”?');
+    expect(dialog.textContent).toMatch(/was revoked on .*and no longer answers/);
+    expect(dialog.textContent).toMatch(/stay counted in this organization’s usage under its name/);
+    expect(dialog.textContent).toMatch(/Last used:/);
+    expect(dialog.textContent).toMatch(/Used by no embed; not called in the last 7 days/);
+    expect(dialog.querySelector('[data-confirm-name]')).toBeNull();
+    const confirm = button(/^Delete key$/)!;
+    expect(confirm.disabled).toBe(false);
+    confirm.click();
+    await flushPromises();
+    const del = calls.find((c) => c.method === 'DELETE');
+    expect(del?.url).toContain('/api/orgs/org1/keys/k4');
+    expect(del?.headers['x-csrf-token']).toBe('csrf-1');
+    expect(useKeysStore().keys.map((k) => k.id)).not.toContain('k4');
+    expect(wrapper.text()).not.toContain('Old leaflet page');
+    wrapper.unmount();
+  });
+
+  it('names the embeds that read with a key and will not delete it until they have another key', async () => {
+    const { wrapper, calls } = await page();
+    const dialog = await openDelete('Lobby key');
+    expect(dialog.textContent).toMatch(/2 embeds read with this key/);
+    expect(dialog.textContent).toContain('Lobby wall');
+    expect(dialog.textContent).toContain('Visitor guide');
+    expect(dialog.querySelector('a[href="/o/org1/embeds/emb1"]')).not.toBeNull();
+    const confirm = button(/^Delete key$/)!;
+    expect(confirm.disabled).toBe(true);
+    expect(dialog.textContent).toContain('Give those embeds another key first.');
+    confirm.click();
+    await flushPromises();
+    expect(calls.some((c) => c.method === 'DELETE')).toBe(false);
+    wrapper.unmount();
+  });
+
+  it('asks for the name of a key that still works, and says where it was called from', async () => {
+    const { wrapper, calls } = await page();
+    const dialog = await openDelete('Spare pipeline');
+    expect(dialog.textContent).toMatch(/still works\. Deleting it stops it at once/);
+    expect(dialog.textContent).toContain('https://ops.kestrel.example: 12 requests');
+    const confirm = button(/^Delete key$/)!;
+    expect(confirm.disabled).toBe(true);
+    expect(dialog.textContent).toContain('Type the key’s name to confirm.');
+    const input = dialog.querySelector<HTMLInputElement>('[data-confirm-name]')!;
+    input.value = 'Spare';
+    input.dispatchEvent(new Event('input'));
+    await flushPromises();
+    expect(confirm.disabled).toBe(true);
+    input.value = 'Spare pipeline';
+    input.dispatchEvent(new Event('input'));
+    await flushPromises();
+    expect(confirm.disabled).toBe(false);
+    confirm.click();
+    await flushPromises();
+    expect(calls.find((c) => c.method === 'DELETE')?.url).toContain('/keys/k6');
     wrapper.unmount();
   });
 });

@@ -68,10 +68,15 @@ export const useKeysStore = defineStore('keys', () => {
     return key;
   }
 
+  async function remove(org: string, id: string) {
+    await api.deleteKey(org, id);
+    keys.value = keys.value.filter((x) => x.id !== id);
+  }
+
   /** The person has copied (or chosen not to copy) the secret: forget it for good. */
   function dismissSecret() {
     revealed.value = null;
   }
 
-  return { orgId, keys, loaded, revealed, load, create, update, rotate, revoke, dismissSecret };
+  return { orgId, keys, loaded, revealed, load, create, update, rotate, revoke, remove, dismissSecret };
 });

@@ -40,6 +40,7 @@ export const PROBLEM_TYPES = {
   'request-timeout': { status: 408, title: 'Request body not received in time' },
   'conflict': { status: 409, title: 'Conflict' },
   'owner-protected': { status: 409, title: 'The owner cannot be removed or demoted' },
+  'key-in-use': { status: 409, title: 'Key still used by embeds' },
   'payload-too-large': { status: 413, title: 'Payload too large' },
   'unsupported-media-type': { status: 415, title: 'Unsupported media type' },
   'unprocessable-element-set': { status: 422, title: 'Element set could not be used' },

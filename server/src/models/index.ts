@@ -141,6 +141,8 @@ export class ApiKey extends Model<InferAttributes<ApiKey>, InferCreationAttribut
   declare retireQuietMinutes: CreationOptional<number | null>;
   declare lastUsedAt: Date | null;
   declare createdByUserId: string | null;
+  /** When the key was deleted: it no longer authenticates nor shows in the key list; its usage and activity keep its name. */
+  declare deletedAt: CreationOptional<Date | null>;
   declare createdAt: CreationOptional<Date>;
   declare updatedAt: CreationOptional<Date>;
 }
@@ -335,6 +337,7 @@ export function initModels(sequelize: Sequelize): void {
       retireQuietMinutes: { type: DataTypes.INTEGER, allowNull: true },
       lastUsedAt: { type: DataTypes.DATE, allowNull: true },
       createdByUserId: { type: DataTypes.STRING(40), allowNull: true },
+      deletedAt: { type: DataTypes.DATE, allowNull: true },
       ...timestamps,
     },
     { sequelize, tableName: 'api_keys' },

@@ -11,7 +11,13 @@
  *   /embed/:id         a page holding only <nadir-track embed="ID"> for a saved embed; framable by
  *                      the origins of the embed's key. Framed by a page of another origin (its
  *                      Referer) the key does not list, it answers our own short refusal page,
- *                      framable anywhere, instead of a frame the browser would blank.
+ *                      framable anywhere, instead of a frame the browser would blank. Framed by
+ *                      another origin that sends no Referer (Referrer-Policy: no-referrer), it
+ *                      first answers a framable check page whose script (/embed/frame-check.js)
+ *                      reads the framing origins (location.ancestorOrigins, else
+ *                      document.referrer) and reloads /embed/:id?framers=<origins>: an origin
+ *                      there that the key does not list gets the refusal page, anything else the
+ *                      map under the key's frame-ancestors, so the browser still enforces the lock.
  *   /examples/*        examples/: in demo mode, {{BROWSER_KEY}}, {{SATELLITE_IDS}}, {{EMBED_ID}} and
  *                      {{API_BASE}} in .html/.js files are replaced from the demo credentials.
  *   /docs/api          API reference rendered from the OpenAPI document; /docs/problems the problem codes.
@@ -388,13 +394,66 @@ export function widgetVersionReader(dist: string): () => WidgetVersions | null {
 
 /** Our own page for a hosted embed framed by a site its key does not list. */
 function refusedEmbedPage(origin: string): string {
+  const where = origin === 'null' ? 'the page showing it is not one of them' : `<code>${esc(origin)}</code> is not one of them`;
   return `<!doctype html>
 <html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
 <meta name="color-scheme" content="light dark"><title>Not allowed on this site · Nadirline</title>
 <style>${PAGE_CSS} body{background:transparent} main{padding:1.25rem;max-width:36rem} h1{font-size:1.15rem;margin:0 0 .5rem} p{margin:.25rem 0}</style></head>
 <body><main role="alert"><h1>This map is not allowed on this site</h1>
-<p>The Nadirline embed shown here may only appear on the sites its key lists, and <code>${esc(origin)}</code> is not one of them.</p>
+<p>The Nadirline embed shown here may only appear on the sites its key lists, and ${where}.</p>
 <p class="muted">The site owner can add this address to the key’s allowed origins in the Nadirline console.</p></main></body></html>`;
+}
+
+/**
+ * The page a framed embed answers when its framer sent no Referer: no map yet, only the check
+ * (an external script, as the policy allows no inline one), framable anywhere, never cached.
+ */
+const FRAME_CHECK_PAGE = `<!doctype html>
+<html lang="en"><head><meta charset="utf-8"><meta name="viewport" content="width=device-width, initial-scale=1">
+<meta name="color-scheme" content="light dark"><title>Nadirline map</title>
+<style>html,body{margin:0;background:transparent}</style>
+<script src="/embed/frame-check.js"></script></head>
+<body><noscript><p style="font:1rem system-ui,sans-serif;padding:1rem">This map needs JavaScript.</p></noscript></body></html>`;
+
+/**
+ * Runs in the check page: names the origins framing it (Chromium and Safari say them in
+ * location.ancestorOrigins whatever the framer's referrer policy; other browsers only through
+ * document.referrer) and reloads the embed with them in ?framers= (empty when unknown).
+ */
+const FRAME_CHECK_SCRIPT = `(function () {
+  var own = location.origin, seen = [];
+  var a = location.ancestorOrigins;
+  if (a && a.length) {
+    for (var i = 0; i < a.length; i++) if (a[i] !== own && seen.indexOf(a[i]) < 0) seen.push(a[i]);
+  } else if (document.referrer) {
+    try { var o = new URL(document.referrer).origin; if (o !== own) seen.push(o); } catch (e) {}
+  }
+  var u = new URL(location.href);
+  u.searchParams.set('framers', seen.join(' '));
+  location.replace(u.toString());
+})();
+`;
+
+/** Upper bound of framing origins read from ?framers= (nesting deeper than this is not checked by us, only by frame-ancestors). */
+const MAX_FRAMERS = 8;
+
+/** The origins the check page found (`?framers=`); null when the request does not carry the parameter. */
+function reportedFramers(req: Request): string[] | null {
+  const raw = req.query['framers'];
+  if (raw === undefined) return null;
+  const text = Array.isArray(raw) ? String(raw[0] ?? '') : String(raw);
+  return text
+    .split(' ')
+    .filter((o) => o === 'null' || /^https?:\/\/[^\s/]+$/.test(o))
+    .slice(0, MAX_FRAMERS);
+}
+
+/** Framed by a page of another origin that named none (no Referer): only the check page can learn who frames it. */
+function framedWithoutReferer(req: Request): boolean {
+  const dest = req.get('sec-fetch-dest');
+  if (dest !== 'iframe' && dest !== 'frame') return false;
+  const site = req.get('sec-fetch-site');
+  return (site === 'cross-site' || site === 'same-site') && !req.get('referer');
 }
 
 function missingBuild(res: Response, req: Request, what: string, command: string): void {
@@ -491,6 +550,11 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
   router.use('/widget', (req, res) => sendProblem(res, 'not-found', `No widget file ${req.path}.`, {}, req.originalUrl));
 
   // -- hosted embed page -----------------------------------------------------------------------
+  router.get('/embed/frame-check.js', (_req, res) => {
+    res.setHeader('Cache-Control', 'public, max-age=300');
+    res.setHeader('X-Content-Type-Options', 'nosniff');
+    res.type('text/javascript').send(FRAME_CHECK_SCRIPT);
+  });
   router.get('/embed/:id', async (req, res) => {
     const embeds = getEmbedService(ctx);
     const embed = await embeds.findEmbed(String(req.params.id));
@@ -499,16 +563,30 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
       res.status(404).type('html').send(page('Embed not found', '<h1>This embed does not exist</h1><p>It may have been deleted. Ask the site that showed it for a new link.</p>'));
       return;
     }
-    const key = embed.apiKeyId ? await getKeyService(ctx).findById(embed.apiKeyId) : null;
+    // The origins of the key the embed reads with (its current successor, when its key was replaced).
+    const key = embed.apiKeyId ? await getKeyService(ctx).currentSuccessor(embed.apiKeyId) : null;
     const ancestors = ["'self'", ...(key?.origins ?? [])].join(' ');
+    const own = new Set(config.selfOrigins);
+    const host = req.get('host');
+    if (host) own.add(`${req.protocol}://${host}`);
     // Framed by another site's page: a site the key does not list gets our words, not a blanked frame.
-    const framer = framingOrigin(req);
+    const reported = reportedFramers(req);
+    const framer = framingOrigin(req) ?? reported?.find((o) => !own.has(o) && !originAllowed(key?.origins ?? [], o)) ?? null;
     if (framer && !originAllowed(key?.origins ?? [], framer)) {
       res.setHeader('Content-Security-Policy', "default-src 'none'; style-src 'unsafe-inline'; base-uri 'none'; form-action 'none'; frame-ancestors *");
       res.setHeader('X-Content-Type-Options', 'nosniff');
       res.setHeader('Cache-Control', 'no-store');
-      res.setHeader('Vary', 'Referer, Sec-Fetch-Dest');
+      res.setHeader('Vary', 'Referer, Sec-Fetch-Dest, Sec-Fetch-Site');
       res.status(403).type('html').send(refusedEmbedPage(framer));
+      return;
+    }
+    // Framed by another site that sent no Referer: let the page find out who frames it first.
+    if (reported === null && framedWithoutReferer(req)) {
+      res.setHeader('Content-Security-Policy', "default-src 'none'; script-src 'self'; style-src 'unsafe-inline'; base-uri 'none'; form-action 'none'; frame-ancestors *");
+      res.setHeader('X-Content-Type-Options', 'nosniff');
+      res.setHeader('Cache-Control', 'no-store');
+      res.setHeader('Vary', 'Referer, Sec-Fetch-Dest, Sec-Fetch-Site');
+      res.type('html').send(FRAME_CHECK_PAGE);
       return;
     }
     const size = (v: unknown, d: string) => (typeof v === 'string' && /^[0-9.]+(px|rem|em|vh|vw|%)$/.test(v) ? v : d);

@@ -295,7 +295,7 @@ export async function seedDemo(
   }
 
   // Old demo keys that no longer match the credentials file are revoked (they were never shown).
-  for (const k of await ApiKey.findAll({ where: { organizationId: org.id, revokedAt: null } })) {
+  for (const k of await ApiKey.findAll({ where: { organizationId: org.id, revokedAt: null, deletedAt: null } })) {
     const text = k.kind === 'browser' ? browserKey : serverKey;
     if (text && k.hash !== crypto.createHash('sha256').update(text).digest('hex') && !k.replacedById && k.name.startsWith('Demo ')) {
       await keys.revokeKey(k.id);

@@ -5,7 +5,7 @@
  *   listActivity(ctx, organizationId, { before?, limit? })  (newest first, for GET /api/orgs/:org/activity)
  *
  * Actions are dotted verbs: org.create, org.rename, org.transfer, member.invite, member.invite-revoke,
- * member.join, member.role, member.remove, key.create, key.update, key.rotate, key.revoke,
+ * member.join, member.role, member.remove, key.create, key.update, key.rotate, key.revoke, key.delete,
  * satellite.create, satellite.update, satellite.delete, element-set.upload, embed.create,
  * embed.update, embed.delete, billing.plan. `detail` never holds secrets (no key text, no tokens).
  */

@@ -258,7 +258,7 @@ export class EmbedService {
       }
     }
     if (apiKeyId) {
-      const key = await ApiKey.findOne({ where: { id: apiKeyId, organizationId: orgId } });
+      const key = await ApiKey.findOne({ where: { id: apiKeyId, organizationId: orgId, deletedAt: null } });
       if (!key || key.kind !== 'browser') {
         throw new HttpError('validation-failed', 'An embed reads with one of this organization\u2019s browser keys; apiKeyId names none.', {
           errors: [{ where: 'apiKeyId', field: 'apiKeyId', message: 'must be a browser key of this organization' }],

@@ -20,6 +20,7 @@ const base: KeyRecord = {
   retireQuietMinutes: null,
   lastUsedAt: null,
   createdByUserId: null,
+  deletedAt: null,
   createdAt: new Date('2025-01-01T00:00:00Z'),
 };
 const now = new Date('2025-06-01T12:00:00Z');
@@ -136,6 +137,19 @@ describe('key states', () => {
     const revoked = { ...base, revokedAt: new Date('2025-05-01T00:00:00Z'), replacedById: 'key_2', graceUntil: new Date('2025-07-01T00:00:00Z') };
     expect(keyState(revoked, now)).toBe('revoked');
     expect(codeOf(() => assertKeyWorks(revoked, now))).toBe('key-revoked');
+  });
+
+  it('refuses a deleted key whatever else it is, saying it was deleted', () => {
+    const deleted = { ...base, revokedAt: new Date('2025-05-01T00:00:00Z'), deletedAt: new Date('2025-05-20T00:00:00Z') };
+    expect(codeOf(() => assertKeyWorks(deleted, now))).toBe('invalid-key');
+    expect(codeOf(() => assertKeyWorks({ ...base, deletedAt: new Date('2025-05-20T00:00:00Z') }, now))).toBe('invalid-key');
+    try {
+      assertKeyWorks(deleted, now);
+      expect.unreachable();
+    } catch (err) {
+      expect((err as HttpError).detail).toMatch(/…abcd was deleted on 2025-05-20/);
+    }
+    expect(() => assertKeyWorks(base, now)).not.toThrow();
   });
 
   it('serializes without the hash and with pending last use', () => {

@@ -11,6 +11,9 @@
  *       has used it for quietMinutes (default 24 h; 0 = at once), and at the latest at retireBy
  *       (default in 14 days). Embeds that used the old key are moved to the new one.
  *   revokeKey(id) -> Promise<ApiKey>                           (immediate)
+ *   deleteKey(id) -> Promise<{ key, stateBefore, lastUse }>    (409 key-in-use while an embed reads with it; the row stays,
+ *                                                              marked deletedAt, so usage and activity keep its name)
+ *   embedsReadingWith(id) -> Promise<Array<{ id, name }>>      (embeds on the key or on a key it replaced)
  *   updateKey(id, { name?, origins?, scopes?, rateLimitPerMin?, expiresAt? }) -> Promise<ApiKey>
  *   keyState(key, now?, lastUse?) -> 'active' | 'retiring' | 'retired' | 'expired' | 'revoked'
  *   retiresAt(key, lastUse?) -> Date | null                    (when a replaced key retires if no one calls it again)
@@ -40,7 +43,7 @@ import { HttpError } from '../http/problem.ts';
 import { ApiKey, Embed, KEY_KINDS, KEY_SCOPES, Organization, type KeyKind, type KeyScope } from '../models/index.ts';
 import { planOf } from './quota.ts';
 import { invalidationBus } from './shared.ts';
-import type { ApiKey as ApiKeyJson, KeyState as KeyStateOfContract } from '@nadirline/shared/contract';
+import type { ApiKey as ApiKeyJson, KeyInUseProblem, KeyState as KeyStateOfContract } from '@nadirline/shared/contract';
 
 export const KEY_PREFIX: Record<KeyKind, string> = { browser: 'nlb_', server: 'nls_' };
 /** Length of the random part of a key text (nanoid alphabet, ~190 bits). */
@@ -76,6 +79,8 @@ export interface KeyRecord {
   retireQuietMinutes: number | null;
   lastUsedAt: Date | null;
   createdByUserId: string | null;
+  /** Deleted keys authenticate nothing (invalid-key). */
+  deletedAt: Date | null;
   createdAt: Date;
 }
 
@@ -217,6 +222,7 @@ export function toRecord(k: ApiKey): KeyRecord {
     retireQuietMinutes: k.retireQuietMinutes ?? null,
     lastUsedAt: k.lastUsedAt ? new Date(k.lastUsedAt) : null,
     createdByUserId: k.createdByUserId,
+    deletedAt: k.deletedAt ? new Date(k.deletedAt) : null,
     createdAt: new Date(k.createdAt),
   };
 }
@@ -264,6 +270,9 @@ function quietText(minutes: number): string {
 /** Throws the problem a key in a non-working state answers with; returns when it works. */
 export function assertKeyWorks(key: KeyRecord, now: Date = new Date(), lastUse?: Date | null): void {
   const t = now.getTime();
+  if (key.deletedAt) {
+    throw new HttpError('invalid-key', `The key ending in …${key.lastFour} was deleted on ${key.deletedAt.toISOString()}; use a current key from the console.`);
+  }
   if (key.revokedAt) {
     throw new HttpError('key-revoked', `This key (…${key.lastFour}) was revoked on ${key.revokedAt.toISOString()}.`);
   }
@@ -493,6 +502,53 @@ export class KeyService {
     }
     this.invalidate(key);
     return key;
+  }
+
+  /**
+   * The embeds that read with a key: those on the key itself and those on a key it replaced
+   * (an embed follows its key's replacements), by name.
+   */
+  async embedsReadingWith(id: string): Promise<KeyInUseProblem['embeds']> {
+    const chain = new Set([id]);
+    let frontier = [id];
+    for (let hops = 0; frontier.length > 0 && hops < 20; hops++) {
+      const older = await ApiKey.findAll({ where: { replacedById: frontier }, attributes: ['id'] });
+      frontier = older.map((k) => k.id).filter((k) => !chain.has(k));
+      for (const k of frontier) chain.add(k);
+    }
+    const embeds = await Embed.findAll({ where: { apiKeyId: [...chain] }, attributes: ['id', 'name'], order: [['name', 'ASC']] });
+    return embeds.map((e) => ({ id: e.id, name: e.name }));
+  }
+
+  /**
+   * Delete a key: it stops authenticating at once and leaves the key list. Refused (409
+   * key-in-use, naming the embeds) while an embed reads with it, so no embed is left without a
+   * key. The row stays with `deletedAt` set, so usage reports, the activity log and uploaded
+   * element sets keep the key's name; the text can never be used again.
+   */
+  async deleteKey(id: string, now: Date = new Date()): Promise<{ key: ApiKey; stateBefore: KeyState; lastUse: Date | null }> {
+    const key = await ApiKey.findByPk(id);
+    if (!key || key.deletedAt) throw new HttpError('not-found', `Key ${id} does not exist.`);
+    const lastUse = this.lastUse(key);
+    const stateBefore = keyState(key, now, lastUse);
+    const inUse = (embeds: KeyInUseProblem['embeds']) =>
+      new HttpError(
+        'key-in-use',
+        `“${key.name}” is the key of ${embeds.length === 1 ? 'the embed' : `${embeds.length} embeds:`} ${embeds.map((e) => `“${e.name}” (${e.id})`).join(', ')}. Choose another browser key for ${embeds.length === 1 ? 'it' : 'them'} in the embed builder first, then delete this key; an embed without a key shows nothing.`,
+        { embeds } satisfies Pick<KeyInUseProblem, 'embeds'>,
+      );
+    const before = await this.embedsReadingWith(key.id);
+    if (before.length > 0) throw inUse(before);
+    await this.ctx.sequelize.transaction(async (transaction) => {
+      const [changed] = await ApiKey.update({ deletedAt: now }, { where: { id: key.id, deletedAt: null }, transaction });
+      if (changed !== 1) throw new HttpError('not-found', `Key ${id} does not exist.`);
+      // An embed given this key meanwhile keeps it: look again inside the transaction.
+      const during = await Embed.count({ where: { apiKeyId: key.id }, transaction });
+      if (during > 0) throw inUse(await this.embedsReadingWith(key.id));
+    });
+    await key.reload();
+    this.invalidate(key);
+    return { key, stateBefore, lastUse };
   }
 
   async updateKey(id: string, input: UpdateKeyInput): Promise<ApiKey> {

@@ -165,6 +165,17 @@ export interface KeyUse {
   originsSince: string;
 }
 
+/**
+ * DELETE /api/orgs/:org/keys/:id answers 204 (the key stops answering and leaves the list; its
+ * usage and activity keep its name), or this 409 problem while embeds still read with the key.
+ */
+export interface KeyInUseProblem {
+  code: 'key-in-use';
+  detail: string;
+  /** The embeds reading with the key (on it, or on a key it replaced), by name. */
+  embeds: { id: string; name: string }[];
+}
+
 /** POST /api/orgs/:org/keys/:id/rotate */
 export interface KeyRotateInput {
   /** The new key's name; it must differ from the old one's. */

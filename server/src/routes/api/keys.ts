@@ -23,7 +23,7 @@ export interface KeyUse {
 }
 
 async function keyOfOrg(organizationId: string, id: string): Promise<ApiKey> {
-  const key = await ApiKey.findOne({ where: { id, organizationId } });
+  const key = await ApiKey.findOne({ where: { id, organizationId, deletedAt: null } });
   if (!key) throw new HttpError('not-found', 'No such key in this organization.');
   return key;
 }
@@ -40,7 +40,7 @@ export function keyRoutes(ctx: AppContext): ApiRoutes {
     const [embeds, origins, predecessors] = await Promise.all([
       Embed.findAll({ where: { organizationId: orgId, apiKeyId: ids }, attributes: ['id', 'name', 'apiKeyId'], order: [['name', 'ASC']] }),
       usage.origins(orgId, ids, since),
-      ApiKey.findAll({ where: { organizationId: orgId, replacedById: ids }, attributes: ['id', 'replacedById'] }),
+      ApiKey.findAll({ where: { organizationId: orgId, replacedById: ids, deletedAt: null }, attributes: ['id', 'replacedById'] }),
     ]);
     const replaces = new Map(predecessors.map((p) => [p.replacedById, p.id]));
     return rows.map((k) => ({
@@ -57,7 +57,7 @@ export function keyRoutes(ctx: AppContext): ApiRoutes {
 
   r.get('/orgs/:org/keys', 'keys.read', async (_req, res) => {
     const orgId = orgAuth(res).organization.id;
-    const rows = await ApiKey.findAll({ where: { organizationId: orgId }, order: [['createdAt', 'DESC']] });
+    const rows = await ApiKey.findAll({ where: { organizationId: orgId, deletedAt: null }, order: [['createdAt', 'DESC']] });
     res.json({ keys: await present(orgId, rows) });
   });
 
@@ -125,6 +125,22 @@ export function keyRoutes(ctx: AppContext): ApiRoutes {
       await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'key.revoke', targetType: 'key', targetId: key.id, detail: { name: key.name, lastFour: key.lastFour } });
     }
     res.json({ key: await one(auth.organization.id, key) });
+  });
+
+  // Deleting: gone from the list and from /v1 at once; usage and activity keep its name (services/keys.ts deleteKey).
+  r.delete('/orgs/:org/keys/:id', 'keys.write', async (req, res) => {
+    const auth = orgAuth(res);
+    const old = await keyOfOrg(auth.organization.id, param(req, 'id'));
+    const { key, stateBefore, lastUse } = await keys.deleteKey(old.id);
+    await recordAudit(ctx, {
+      organizationId: auth.organization.id,
+      actorUserId: auth.user.id,
+      action: 'key.delete',
+      targetType: 'key',
+      targetId: key.id,
+      detail: { name: key.name, kind: key.kind, lastFour: key.lastFour, state: stateBefore, lastUsedAt: lastUse?.toISOString() ?? null },
+    });
+    res.status(204).end();
   });
 
   return r;

@@ -171,6 +171,7 @@ export function previewKey(orgId: string): KeyRecord {
       retireQuietMinutes: null,
       lastUsedAt: null,
       createdByUserId: null,
+      deletedAt: null,
       createdAt: new Date(0),
     };
     previewKeys.set(orgId, k);
