@@ -29,9 +29,9 @@ function localDecimal(x: number, locale: string | undefined): string {
   }
 }
 
-/** Short coordinates for the panel: 51.6° S, 20.3° W. */
-export function latLonShort(lat: number, lon: number): string {
-  return `${Math.abs(lat).toFixed(1)}° ${lat >= 0 ? 'N' : 'S'}, ${Math.abs(lon).toFixed(1)}° ${lon >= 0 ? 'E' : 'W'}`;
+/** Short coordinates for the panel: 51.6° S, 20.3° W (51,6° S, 20,3° W in German), in the words of `t`. */
+export function latLonShort(lat: number, lon: number, t: Translate = english, locale?: string): string {
+  return `${localDecimal(Math.abs(lat), locale)}° ${t(lat >= 0 ? 'abbrN' : 'abbrS')}, ${localDecimal(Math.abs(lon), locale)}° ${t(lon >= 0 ? 'abbrE' : 'abbrW')}`;
 }
 
 export interface ClockOptions {

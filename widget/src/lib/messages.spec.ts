@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { actionFor, backoffMs, noticeFor, WIDGET_CODES } from './messages.ts';
+import { actionFor, backoffMs, noticeFor, sayNotice, WIDGET_CODES } from './messages.ts';
+import { translator } from './words.ts';
 
 describe('noticeFor', () => {
   it('tells the site owner what to do about a key Nadirline does not accept, and stops', () => {
@@ -113,5 +114,17 @@ describe('backoffMs', () => {
   it('doubles from two seconds and stops growing at two minutes', () => {
     expect([1, 2, 3, 4].map(backoffMs)).toEqual([2000, 4000, 8000, 16000]);
     expect(backoffMs(30)).toBe(120_000);
+  });
+});
+
+describe('a saved embed that is gone', () => {
+  it('says the map is not found, stops the map, and says so again in the reader’s language', () => {
+    const n = noticeFor({ code: 'not-found', status: 404 }, { embed: true });
+    expect(n).toMatchObject({ heading: 'Map not found', fatal: true });
+    expect(n.retryMs).toBeUndefined();
+    expect(n.text).toMatch(/saved map no longer exists/);
+    const de = sayNotice(n, translator('de', { mapNotFoundHead: 'Karte nicht gefunden', notFoundHead: 'Satellit nicht gefunden' }));
+    expect(de.heading).toBe('Karte nicht gefunden');
+    expect(noticeFor({ code: 'not-found', status: 404 }, { satellite: 'Wren' }).heading).toBe('Satellite not found');
   });
 });

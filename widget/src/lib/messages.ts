@@ -34,6 +34,8 @@ export interface NoticeContext {
   attempt?: number | undefined;
   /** Time of the newest data still shown, already formatted for the reader. */
   dataTime?: string | undefined;
+  /** The problem concerns the saved embed itself (its id), not a satellite. */
+  embed?: boolean | undefined;
 }
 
 /** Exponential backoff: 2 s, 4 s, 8 s ... up to 2 minutes. */
@@ -106,6 +108,7 @@ export function noticeFor(p: Pick<ApiProblem, 'code' | 'status' | 'retryAfterS'>
       return { ...satNotice(t('busyHead'), t('busyText', { wait: secondsWords(retryMs, t) }), 'warning'), retryMs };
     }
     case 'not-found':
+      if (ctx.embed) return stop(t('mapNotFoundHead'), t('mapNotFoundText'));
       return satNotice(t('notFoundHead'), t('notFoundText', { sat }));
     case 'stale-element-set':
       return satNotice(t('staleHead'), ctx.ageDays === undefined ? t('staleTextNoAge', { sat }) : t('staleText', { sat, age }), 'warning');
@@ -143,59 +146,6 @@ export function noticeFor(p: Pick<ApiProblem, 'code' | 'status' | 'retryAfterS'>
   }
 }
 
-/**
- * Words of the time control, the sky plot and the calendar link (kept here with the other
- * widget words so they can be translated in one place).
- */
-export const TIME_WORDS = {
-  controlLabel: 'Time shown on the map',
-  now: 'Now',
-  backToNow: 'Back to now',
-  backToPinned: 'Back to the pinned time',
-  orbitBack: '− 1 orbit',
-  orbitAhead: '+ 1 orbit',
-  orbitBackLabel: 'One orbit back',
-  orbitAheadLabel: 'One orbit ahead',
-  /** "Shown: 14:05, 2 h 10 min ahead" */
-  shown: (time: string, offset: string) => `Shown: ${time}, ${offset}`,
-  /** "Map shows 14:05 (2 h 10 min ahead of now)" for screen readers. */
-  announce: (time: string, offset: string) => `Map shows ${time} (${offset}).`,
-  panelAt: (time: string) => `Position at ${time}`,
-} as const;
-
-export const SKY_WORDS = {
-  open: 'Sky path',
-  openLabel: (when: string) => `Show the path across your sky of the pass at ${when}`,
-  close: 'Close',
-  title: (name: string, when: string) => `${name} across your sky, ${when}`,
-  north: 'N',
-  east: 'E',
-  south: 'S',
-  west: 'W',
-  rise: 'rise',
-  set: 'set',
-  legendVisible: 'sunlit in a dark sky: visible to the eye',
-  legendSunlit: 'sunlit, but your sky is still light',
-  legendShadow: 'in the Earth’s shadow',
-  loading: 'Working out the path…',
-  failed: 'The path could not be loaded.',
-  /** Text equivalent, one sentence per stretch. */
-  riseText: (time: string, dir: string) => `Rises at ${time} in the ${dir}.`,
-  highestText: (time: string, elev: number, dir: string) => `Highest at ${time}, ${elev}° above the horizon in the ${dir}.`,
-  setText: (time: string, dir: string) => `Sets at ${time} in the ${dir}.`,
-  runText: (kind: 'visible' | 'sunlit' | 'shadow', from: string, to: string) =>
-    kind === 'visible'
-      ? `From ${from} to ${to} it is sunlit while your sky is dark: look for it.`
-      : kind === 'sunlit'
-        ? `From ${from} to ${to} it is sunlit, but your sky is too light to see it.`
-        : `From ${from} to ${to} it is in the Earth’s shadow.`,
-  orientation: 'North is at the top, east to the right; the centre is straight overhead, the circle the horizon.',
-} as const;
-
-export const CALENDAR_WORDS = {
-  add: 'Add to calendar',
-  addLabel: (name: string) => `Add the passes of ${name} over you to your calendar (iCalendar file)`,
-} as const;
 /** A notice said again in the reader's language (the same decision, other words). */
 export function sayNotice<N extends Notice>(n: N, t: Translate): N {
   if (!n.source || t === english) return n;

@@ -3,6 +3,7 @@
  * within a range some hours back and ahead, and that offset in plain words for the panel and for
  * screen readers.
  */
+import { english, type Translate } from './words.ts';
 
 /** How far the reader may move the map, hours either side of now (or of `at`). */
 export const TIME_RANGE_H = 12;
@@ -18,23 +19,25 @@ export function clampOffsetMs(offsetMs: number, rangeH = TIME_RANGE_H): number {
   return Math.max(-max, Math.min(max, v));
 }
 
-/** "2 h 10 min", "35 min", "1 h". */
-export function spanWords(ms: number): string {
+/** "2 h 10 min", "35 min", "1 h", in the words of `t`. */
+export function spanWords(ms: number, t: Translate = english): string {
   const total = Math.round(Math.abs(ms) / MIN);
   const h = Math.floor(total / 60);
   const m = total % 60;
-  if (h === 0) return `${m} min`;
-  return m === 0 ? `${h} h` : `${h} h ${m} min`;
+  if (h === 0) return t('spanM', { m });
+  return m === 0 ? t('spanH', { h }) : t('spanHM', { h, m });
 }
 
 /**
- * The offset as the panel says it: "now", "2 h 10 min ahead", "35 min back". With a pinned
- * time (`pinned`), relative to it: "the pinned time", "20 min after the pinned time".
+ * The offset as the panel says it, in the words of `t`: "now", "2 h 10 min ahead", "35 min
+ * back". With a pinned time (`pinned`), relative to it: "the pinned time", "20 min after the
+ * pinned time". (The table, not Intl.DurationFormat, which Node 20 lacks.)
  */
-export function offsetWords(offsetMs: number, pinned = false): string {
-  if (Math.abs(offsetMs) < MIN / 2) return pinned ? 'the pinned time' : 'now';
-  if (pinned) return `${spanWords(offsetMs)} ${offsetMs > 0 ? 'after' : 'before'} the pinned time`;
-  return `${spanWords(offsetMs)} ${offsetMs > 0 ? 'ahead' : 'back'}`;
+export function offsetWords(offsetMs: number, pinned = false, t: Translate = english): string {
+  if (Math.abs(offsetMs) < MIN / 2) return t(pinned ? 'offsetPinned' : 'offsetNow');
+  const span = spanWords(offsetMs, t);
+  if (pinned) return t(offsetMs > 0 ? 'offsetAfterPinned' : 'offsetBeforePinned', { span });
+  return t(offsetMs > 0 ? 'offsetAhead' : 'offsetBack', { span });
 }
 
 /** Parse the `at` attribute (ISO 8601 with a zone); undefined when absent or not a time. */

@@ -552,13 +552,8 @@ export class Tracker {
         return null;
       }
       // the embed itself could not be had
-      const n = noticeFor(p);
-      this.setFatal(
-        p.code === 'not-found'
-          ? { ...n, fatal: true, heading: 'Map not found', text: 'This saved map no longer exists. The site owner can choose another embed in the Nadirline console.' }
-          : { ...n, fatal: true, retryMs: undefined },
-        p,
-      );
+      const n = noticeFor(p, { embed: true });
+      this.setFatal({ ...n, fatal: true, retryMs: undefined }, p);
       return undefined;
     }
     return this.transientProblem(p);

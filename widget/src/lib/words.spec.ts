@@ -78,3 +78,34 @@ describe('translator', () => {
     expect(translator('en').countries).toBeUndefined();
   });
 });
+
+describe('reader-facing words live in the table', () => {
+  const src = path.join(path.dirname(fileURLToPath(import.meta.url)), '..');
+  const files = (d: string): string[] => fs.readdirSync(d, { withFileTypes: true }).flatMap((e) => (e.isDirectory() ? files(path.join(d, e.name)) : [path.join(d, e.name)]));
+  const vue = files(src).filter((f) => f.endsWith('.vue'));
+  const ts = files(src).filter((f) => f.endsWith('.ts') && !f.endsWith('.spec.ts') && !f.endsWith(`${path.sep}words.ts`));
+
+  it('no component template holds English text or a fixed label, title or role description', () => {
+    expect(vue.length).toBeGreaterThan(5);
+    const found: string[] = [];
+    for (const f of vue) {
+      const tpl = fs.readFileSync(f, 'utf8').match(/<template>([\s\S]*)<\/template>/)?.[1] ?? '';
+      // text between tags, outside {{ }}: words of two letters or more
+      const bare = tpl.replace(/<!--[\s\S]*?-->/g, '').replace(/\{\{[\s\S]*?\}\}/g, '').replace(/<\/?[A-Za-z][^>"]*(?:"[^"]*"[^>"]*)*>/g, '\n');
+      // units (km, km/s) are the same in every language
+      for (const line of bare.split('\n')) if (/[A-Za-z]{2,}/.test(line.replace(/\bkm(\/s)?\b/g, ''))) found.push(`${path.basename(f)}: ${line.trim()}`);
+      for (const m of tpl.matchAll(/\s(aria-label|aria-roledescription|aria-description|title|alt|placeholder)="([^"]*)"/g)) found.push(`${path.basename(f)}: ${m[1]}="${m[2]}"`);
+    }
+    expect(found).toEqual([]);
+  });
+
+  it('no script sets a notice heading or text, or a word table, outside words.ts', () => {
+    const found: string[] = [];
+    for (const f of ts) {
+      const code = fs.readFileSync(f, 'utf8');
+      for (const m of code.matchAll(/\b(heading|text):\s*['`"][A-Z]/g)) found.push(`${path.basename(f)}: ${m[0]}`);
+      for (const m of code.matchAll(/export const \w+_WORDS\b/g)) found.push(`${path.basename(f)}: ${m[0]}`);
+    }
+    expect(found).toEqual([]);
+  });
+});
