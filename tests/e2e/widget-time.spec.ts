@@ -29,8 +29,8 @@ afterAll(async () => {
   await server?.stop();
 });
 
-async function open(): Promise<{ page: Page; v1: string[]; errors: string[] }> {
-  const ctx = await browser.newContext({ viewport: { width: 1100, height: 1300 }, timezoneId: 'UTC', locale: 'en-GB' });
+async function open(locale = 'en-GB'): Promise<{ page: Page; v1: string[]; errors: string[] }> {
+  const ctx = await browser.newContext({ viewport: { width: 1100, height: 1300 }, timezoneId: 'UTC', locale });
   const page = await ctx.newPage();
   const v1: string[] = [];
   const errors: string[] = [];
@@ -143,6 +143,90 @@ describe('the sky plot and the calendar link', () => {
     // the list's first pass (times in UTC here) is among the calendar's events
     const firstRise = await page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelector('[part="passes"] .row .when strong')!.textContent!.trim());
     expect(starts.some((s) => `${s.slice(9, 11)}:${s.slice(11, 13)}` === firstRise)).toBe(true);
+    await page.context().close();
+  });
+});
+
+describe('in German', () => {
+  it('a German browser’s widget says the time control, the sky plot and the calendar link in German', async () => {
+    // no locale attribute on the page: the browser's language chooses
+    const { page, errors } = await open('de-DE');
+    await expect.poll(() => shownText(page), { timeout: 10_000 }).toMatch(/^Gezeigt: \d\d:\d\d, jetzt$/);
+    const controls = await inRoot(page, () => {
+      const r = document.querySelector('nadir-track')!.shadowRoot!;
+      return {
+        group: r.querySelector('.timectl')!.getAttribute('aria-label'),
+        steps: Array.from(r.querySelectorAll('.tstep')).map((b) => [b.textContent!.trim(), b.getAttribute('aria-label')]),
+        now: r.querySelector('.tnow')!.textContent!.trim(),
+        role: r.querySelector('svg[part="map"]')!.getAttribute('aria-roledescription'),
+        cal: r.querySelector('.cal a')!.textContent!.trim(),
+        calLabel: r.querySelector('.cal a')!.getAttribute('aria-label'),
+        skyBtn: r.querySelector('.skybtn')!.textContent!.trim(),
+        skyLabel: r.querySelector('.skybtn')!.getAttribute('aria-label'),
+      };
+    });
+    expect(controls).toEqual({
+      group: 'Auf der Karte gezeigte Zeit',
+      steps: [
+        ['− 1 Umlauf', 'Einen Umlauf zurück'],
+        ['+ 1 Umlauf', 'Einen Umlauf vor'],
+      ],
+      now: 'Zurück zu jetzt',
+      role: 'Karte',
+      cal: 'In den Kalender übernehmen',
+      calLabel: expect.stringMatching(/^Überflüge von .+ über Ashcombe Vale in Ihren Kalender übernehmen \(iCalendar-Datei\)$/),
+      skyBtn: 'Bahn am Himmel',
+      skyLabel: expect.stringMatching(/^Bahn des Überflugs um .*\d\d:\d\d über Ihren Himmel zeigen$/),
+    });
+
+    // back in time by keyboard: the status line, the slider's words and the panel line
+    await page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.tslider') as HTMLInputElement).focus());
+    await page.keyboard.press('PageDown'); // a tenth of the range: 2 h 24 min back
+    await expect.poll(() => shownText(page)).toMatch(/^Gezeigt: \d\d:\d\d, vor 2 Std\.( \d+ Min\.)?$/);
+    expect(await inRoot(page, () => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.tslider')!.getAttribute('aria-valuetext'))).toMatch(/^Die Karte zeigt \d\d:\d\d \(vor 2 Std\.( \d+ Min\.)?\)\.$/);
+    await page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.chip') as HTMLButtonElement).click());
+    await expect.poll(() => inRoot(page, () => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.shown-at')?.textContent ?? '')).toMatch(/^Position um \d\d:\d\d, vor 2 Std\./);
+    expect(await inRoot(page, () => document.querySelector('nadir-track')!.shadowRoot!.querySelector('.panel .over span:last-child')?.textContent ?? '')).toMatch(/^\d+,\d° [NS], \d+,\d° [OW]$/);
+
+    // the sky plot of the first pass
+    await page.evaluate(() => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.skybtn') as HTMLButtonElement).click());
+    await page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('.sky-svg .run'), undefined, { timeout: 15_000 });
+    const sky = await inRoot(page, () => {
+      const r = document.querySelector('nadir-track')!.shadowRoot!;
+      const all = (sel: string) => Array.from(r.querySelectorAll(sel)).map((e) => e.textContent!.trim());
+      return {
+        title: r.querySelector('.sky-head h4')!.textContent!.trim(),
+        region: r.querySelector('.sky')!.getAttribute('aria-label'),
+        close: r.querySelector('.sky-close')!.textContent!.trim(),
+        cardinals: all('.sky-svg .cardinal'),
+        marks: all('.sky-svg .mark-label'),
+        legend: all('.legend li'),
+        words: all('.sky-words li'),
+        orientation: r.querySelector('.orientation')!.textContent!.trim(),
+      };
+    });
+    expect(sky.title).toMatch(/^.+ an Ihrem Himmel, .*\d\d:\d\d$/);
+    expect(sky.region).toBe(sky.title);
+    expect(sky.close).toBe('Schließen');
+    expect(sky.cardinals).toEqual(['N', 'O', 'S', 'W']);
+    expect(sky.marks).toEqual(['Aufgang', 'Untergang']);
+    expect(sky.legend.length).toBeGreaterThan(0);
+    for (const l of sky.legend) expect(['von der Sonne beschienen vor dunklem Himmel: mit bloßem Auge sichtbar', 'von der Sonne beschienen, aber Ihr Himmel ist noch hell', 'im Erdschatten']).toContain(l);
+    expect(sky.words[0]).toMatch(/^Geht um \d\d:\d\d im (Norden|Nordosten|Osten|Südosten|Süden|Südwesten|Westen|Nordwesten) auf\.$/);
+    expect(sky.words.some((w) => /^Am höchsten um \d\d:\d\d, \d+° über dem Horizont im /.test(w))).toBe(true);
+    expect(sky.words.some((w) => /^Geht um \d\d:\d\d im .+ unter\.$/.test(w))).toBe(true);
+    expect(sky.words.some((w) => /^Von \d\d:\d\d bis \d\d:\d\d /.test(w))).toBe(true);
+    expect(sky.orientation).toMatch(/^Norden ist oben, Osten rechts/);
+
+    // nothing of the English time, sky or calendar words is left anywhere in the widget
+    const text = await inRoot(page, () => (document.querySelector('nadir-track')!.shadowRoot!.querySelector('.nadir') as HTMLElement).innerText);
+    expect(text).not.toMatch(/Shown:|Back to|\borbit\b|across your sky|Sky path|Add to calendar|Rises at|Highest at|Sets at|Position at|North is at|sunlit|\b(ahead|back|now)\b/);
+    await page.locator('nadir-track').screenshot({ path: path.join(ARTIFACTS, 'de-time-back-sky.png') });
+    await page.setViewportSize({ width: 390, height: 1600 });
+    await page.evaluate(() => document.querySelector('nadir-track')!.setAttribute('theme', 'dark'));
+    await page.waitForTimeout(300);
+    await page.locator('nadir-track').screenshot({ path: path.join(ARTIFACTS, 'de-time-back-sky-390-dark.png') });
+    expect(errors).toEqual([]);
     await page.context().close();
   });
 });
