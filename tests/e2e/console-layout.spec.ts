@@ -151,6 +151,10 @@ describe('layout faults found by looking', () => {
     const width = (await page.getByLabel('Width', { exact: true }).boundingBox())!;
     const height = (await page.getByLabel('Height', { exact: true }).boundingBox())!;
     expect(Math.abs(width.y - height.y)).toBeLessThanOrEqual(1);
+    await page.getByLabel('A fixed place').check();
+    const lat = (await page.getByLabel(/^Latitude \(/).boundingBox())!;
+    const lon = (await page.getByLabel(/^Longitude \(/).boundingBox())!;
+    expect(Math.abs(lat.y - lon.y)).toBeLessThanOrEqual(1);
     // the hidden legend first in the form adds no gap above the first field
     const gap = await page.evaluate(() => {
       const form = document.querySelector('form.settings')!.getBoundingClientRect();
