@@ -13,6 +13,7 @@ import { HttpError } from '../http/problem.ts';
 import { securityHeaders } from '../http/security.ts';
 import { settleAfterResponse } from '../services/after-response.ts';
 import { getMailService, type KeptMessage } from '../services/mail.ts';
+import { PAGE_CSS } from './page-style.ts';
 
 
 function page(messages: KeptMessage[]): string {
@@ -33,20 +34,21 @@ function page(messages: KeptMessage[]): string {
 <meta charset="utf-8">
 <meta name="viewport" content="width=device-width, initial-scale=1">
 <title>Development mailbox · Nadirline</title>
-<style>
-  body { font-family: "Work Sans", system-ui, sans-serif; margin: 2rem auto; max-width: 52rem; padding: 0 1rem; color: #22252a; background: #fbfaf6; }
-  article { border-top: 1px solid #d8d4c8; padding: 1rem 0; }
-  h2 { font-size: 1.1rem; margin: 0 0 .25rem; }
-  .meta { color: #5b5f66; font-size: .9rem; margin: 0 0 .5rem; }
-  pre { white-space: pre-wrap; background: #f1efe7; padding: .75rem; border-radius: 4px; font-size: .9rem; }
+<meta name="color-scheme" content="light dark">
+<style>${PAGE_CSS}
+  main { max-width: 52rem; }
+  article { border-top: 1px solid var(--rule); padding: 1rem 0; }
+  article h2 { font-size: 1.1rem; margin: 0 0 .25rem; padding: 0; border: 0; }
+  .meta { color: var(--muted); font-size: .9rem; margin: 0 0 .5rem; }
+  pre { white-space: pre-wrap; overflow-wrap: anywhere; }
   .links a { word-break: break-all; }
 </style>
 </head>
-<body>
+<body><main>
 <h1>Development mailbox</h1>
 <p>Every e-mail this Nadirline server sent since it started (${messages.length}). Nothing left this machine. Newest first. JSON: <a href="/dev/mailbox.json">/dev/mailbox.json</a>.</p>
 ${items || '<p>No messages yet.</p>'}
-</body>
+</main></body>
 </html>`;
 }
 
