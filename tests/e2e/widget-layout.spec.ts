@@ -244,6 +244,38 @@ describe('the picked satellite', () => {
   });
 });
 
+describe('coastlines first', () => {
+  it('draws no track over an empty ocean while the land outline is on its way', async () => {
+    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
+    const page = await ctx.newPage();
+    // the land and country outlines come 1.2 s after the tracks could have been drawn
+    await page.route(/\/assets\/(land|countries)-110m\./, async (r) => {
+      await new Promise((ok) => setTimeout(ok, 1200));
+      await r.continue();
+    });
+    const url = `${server.url}/e2e-layout-coast-first.html`;
+    await page.route(url, (r) =>
+      r.fulfill({
+        contentType: 'text/html',
+        body: `<!doctype html><body style="margin:0;padding:8px"><script>
+          window.__seen = [];
+          setInterval(() => {
+            const sr = document.querySelector('nadir-track')?.shadowRoot;
+            const track = (sr?.querySelector('path.past')?.getAttribute('d') ?? '').length > 20;
+            const land = (sr?.querySelector('path.land')?.getAttribute('d') ?? '').length > 20;
+            if (track || land) window.__seen.push({ track, land });
+          }, 10);
+        </script><script type="module" src="/widget/nadir-track.js"></script><nadir-track api-key="${server.credentials.browserKey}" satellites="${server.credentials.satellites[0]!.id}" style="display:block"></nadir-track>`,
+      }),
+    );
+    await page.goto(url);
+    await page.waitForFunction(() => (window as unknown as { __seen: { track: boolean; land: boolean }[] }).__seen.some((x) => x.track && x.land), undefined, { timeout: 15_000 });
+    const seen = await page.evaluate(() => (window as unknown as { __seen: { track: boolean; land: boolean }[] }).__seen);
+    expect(seen.filter((x) => x.track && !x.land)).toEqual([]);
+    await ctx.close();
+  });
+});
+
 describe('the picked satellite, picked early', () => {
   // the picked marker comes to the middle of the globe (within a tenth of its radius) and stays there
   const centred = (page: Page) =>
