@@ -26,6 +26,7 @@ import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { connectShared } from './services/shared.ts';
 import { getUsageRecorder } from './services/usage.ts';
+import { startWebhookWorker } from './services/webhooks.ts';
 
 /** Keys and one-time tokens (in queries, invitation links and their API paths) never reach the logs. */
 export function redactUrl(url: string): string {
@@ -86,6 +87,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   // across processes through job_leases. Tests drive runDueJobs with their own clock instead.
   registerNoticeJobs(context);
   if (!config.isTest) startScheduler(context);
+  // Webhooks out: due deliveries are claimed one at a time, so every process may send them.
+  if (config.WEBHOOK_WORKER ?? !config.isTest) startWebhookWorker(context);
 
   // Keys over their rate limit are refused first: no log line, no routing, no limiter work.
   // The server calls the gate before Express (handler below); in-process callers get it here.

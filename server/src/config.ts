@@ -84,6 +84,10 @@ const schema = z.object({
   /** Provider price ids of the paid plans. */
   PAYMENTS_PRICE_MISSION: z.string().default('price_nl_mission'),
   PAYMENTS_PRICE_CONSTELLATION: z.string().default('price_nl_constellation'),
+  /** Send webhook deliveries from this process (default: on, except under NODE_ENV=test where tests drive them). */
+  WEBHOOK_WORKER: bool.optional(),
+  /** How often the webhook worker looks for deliveries that are due, ms. */
+  WEBHOOK_TICK_MS: z.coerce.number().int().min(100).max(600_000).default(5000),
   /** Days a paid plan is kept after a failed payment before the organization falls back to Starter. */
   PAYMENTS_GRACE_DAYS: z.coerce.number().min(0).max(60).default(7),
 });
