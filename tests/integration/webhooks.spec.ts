@@ -5,7 +5,12 @@
  * sends them signed, retries with backoff on the clock the test controls, gives up after the last
  * attempt, and sends each delivery once however many workers compete for it.
  */
+import { spawn } from 'node:child_process';
 import crypto from 'node:crypto';
+import fs from 'node:fs';
+import net from 'node:net';
+import os from 'node:os';
+import path from 'node:path';
 import http from 'node:http';
 import type { AddressInfo } from 'node:net';
 import request from 'supertest';
@@ -15,7 +20,7 @@ import { getKeyService } from '@nadirline/server/services/keys.ts';
 import { runDueJobs } from '@nadirline/server/services/scheduler.ts';
 import { getSatelliteService } from '@nadirline/server/services/satellites.ts';
 import { sendStaleDigests } from '@nadirline/server/services/notices.ts';
-import { MAX_ATTEMPTS, RETRY_DELAYS_MS, runWebhookDeliveries } from '@nadirline/server/services/webhooks.ts';
+import { MAX_ATTEMPTS, RETRY_DELAYS_MS, VERIFY_SNIPPET_NODE, runWebhookDeliveries } from '@nadirline/server/services/webhooks.ts';
 import { leoTle } from '../support/app.ts';
 import { signUpAndVerify, type Person } from './console-api.harness.ts';
 import { TEST_CARD_OK, startBillingApp, type BillingApp } from './billing.harness.ts';
@@ -387,5 +392,49 @@ describe('each kind of event, from its real trigger', () => {
     await b.fake.idle();
     await runWebhookDeliveries(b.t.context);
     expect(rx.events()).toHaveLength(1);
+  });
+});
+
+describe('the verification snippet of the docs page', () => {
+  it('runs as a receiver: takes a signed delivery, refuses a forged one', async () => {
+    const created = await b.owner.browser.post(b.api('/webhooks'), { url: 'http://127.0.0.1:9/placeholder', events: ['plan.changed'] }).expect(201);
+    const dir = fs.mkdtempSync(path.join(os.tmpdir(), 'nadirline-snippet-'));
+    const file = path.join(dir, 'receiver.mjs');
+    fs.writeFileSync(file, VERIFY_SNIPPET_NODE);
+    const port = await new Promise<number>((resolve) => {
+      const probe = net.createServer().listen(0, '127.0.0.1', () => {
+        const p = (probe.address() as AddressInfo).port;
+        probe.close(() => resolve(p));
+      });
+    });
+    const child = spawn(process.execPath, [file], { env: { PATH: process.env.PATH ?? '', NADIRLINE_WEBHOOK_SECRET: created.body.secret, PORT: String(port) }, stdio: ['ignore', 'pipe', 'pipe'] });
+    let out = '';
+    child.stdout.on('data', (c: Buffer) => (out += c.toString()));
+    child.stderr.on('data', (c: Buffer) => (out += c.toString()));
+    try {
+      for (let i = 0; i < 100; i++) {
+        const up = await new Promise<boolean>((resolve) => net.connect(port, '127.0.0.1').on('connect', function (this: net.Socket) { this.destroy(); resolve(true); }).on('error', () => resolve(false)));
+        if (up) break;
+        await new Promise((r) => setTimeout(r, 50));
+      }
+      const id = created.body.endpoint.id as string;
+      await b.owner.browser.patch(b.api(`/webhooks/${id}`), { url: `http://127.0.0.1:${port}/in` }).expect(200);
+      await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(202);
+      expect(await runWebhookDeliveries(b.t.context)).toBe(1);
+      expect((await deliveries())[0]).toMatchObject({ state: 'delivered', lastStatusCode: 204 });
+      expect(out).toContain('webhook.test');
+      // Signed with another secret: refused.
+      const body = '{"id":"evt_forged","type":"plan.changed"}';
+      const ts = Math.floor(Date.now() / 1000);
+      const forged = await fetch(`http://127.0.0.1:${port}/in`, {
+        method: 'POST',
+        headers: { 'nadirline-webhook-id': 'evt_forged', 'nadirline-webhook-timestamp': String(ts), 'nadirline-webhook-signature': `v1=${crypto.createHmac('sha256', 'nlwh_not-the-secret').update(`evt_forged.${ts}.${body}`).digest('hex')}` },
+        body,
+      });
+      expect(forged.status).toBe(400);
+    } finally {
+      child.kill('SIGTERM');
+      fs.rmSync(dir, { recursive: true, force: true });
+    }
   });
 });

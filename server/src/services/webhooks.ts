@@ -592,3 +592,39 @@ export function startWebhookWorker(ctx: AppContext): void {
     await pass;
   });
 }
+
+/**
+ * How a receiver checks a delivery, in Node (the /docs/webhooks page shows it; the integration test
+ * runs it as a receiver). Only node: modules, no package.
+ */
+export const VERIFY_SNIPPET_NODE = `import crypto from 'node:crypto';
+import http from 'node:http';
+
+const SECRET = process.env.NADIRLINE_WEBHOOK_SECRET; // nlwh_..., shown once in the console
+const TOLERANCE_S = 300; // refuse signatures older than five minutes (replays)
+const seen = new Set(); // event ids handled already (keep them in your database)
+
+function verified(headers, body) {
+  const id = String(headers['nadirline-webhook-id'] ?? '');
+  const timestamp = String(headers['nadirline-webhook-timestamp'] ?? '');
+  const given = Buffer.from(String(headers['nadirline-webhook-signature'] ?? '').replace(/^v1=/, ''), 'hex');
+  const expected = crypto.createHmac('sha256', SECRET).update(\`\${id}.\${timestamp}.\${body}\`).digest();
+  const fresh = Math.abs(Date.now() / 1000 - Number(timestamp)) <= TOLERANCE_S;
+  return fresh && given.length === expected.length && crypto.timingSafeEqual(given, expected);
+}
+
+http.createServer((req, res) => {
+  const chunks = [];
+  req.on('data', (c) => chunks.push(c));
+  req.on('end', () => {
+    const body = Buffer.concat(chunks).toString('utf8'); // the raw body, before any JSON parsing
+    if (!verified(req.headers, body)) return void res.writeHead(400).end();
+    const event = JSON.parse(body);
+    if (!seen.has(event.id)) {
+      seen.add(event.id);
+      console.log(event.type, JSON.stringify(event.data));
+    }
+    res.writeHead(204).end(); // any 2xx within 10 s counts as delivered
+  });
+}).listen(Number(process.env.PORT ?? 3000), '127.0.0.1');
+`;
