@@ -122,7 +122,7 @@ async function freshEndpoint(): Promise<string> {
 /** A finished (failed) delivery of a test event, to send again: its URL under /api. */
 async function finishedDelivery(): Promise<string> {
   const endpoint = await freshEndpoint();
-  const id = (await ownerPost(`${endpoint}/test`, {}, 202)).body.delivery.id as string;
+  const id = (await ownerPost(`${endpoint}/test`, {}, 201)).body.delivery.id as string;
   await f.t.context.sequelize.models['WebhookDelivery']!.update({ status: 'failed', attempts: 6, nextAttemptAt: null }, { where: { id } });
   return `${endpoint.replace(/\/webhooks\/[^/]+$/, '')}/webhook-deliveries/${id}`;
 }
@@ -295,10 +295,10 @@ export const TABLE: Row[] = [
   { route: 'PATCH /orgs/:org/webhooks/:id', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'patch', url: await freshEndpoint(), body: { paused: true } }) },
   { route: 'DELETE /orgs/:org/webhooks/:id', allowed: MANAGERS, ok: 204, call: async () => ({ method: 'delete', url: await freshEndpoint() }) },
   { route: 'POST /orgs/:org/webhooks/:id/rotate-secret', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'post', url: `${await freshEndpoint()}/rotate-secret` }) },
-  { route: 'POST /orgs/:org/webhooks/:id/test', allowed: MANAGERS, ok: 202, call: async () => ({ method: 'post', url: `${await freshEndpoint()}/test` }) },
+  { route: 'POST /orgs/:org/webhooks/:id/test', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: `${await freshEndpoint()}/test` }) },
   { route: 'GET /orgs/:org/webhook-deliveries', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'get', url: org('/webhook-deliveries') }) },
   { route: 'GET /orgs/:org/webhook-deliveries/:id', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'get', url: await finishedDelivery() }) },
-  { route: 'POST /orgs/:org/webhook-deliveries/:id/redeliver', allowed: MANAGERS, ok: 202, call: async () => ({ method: 'post', url: `${await finishedDelivery()}/redeliver` }) },
+  { route: 'POST /orgs/:org/webhook-deliveries/:id/redeliver', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: `${await finishedDelivery()}/redeliver` }) },
   { route: 'GET /orgs/:org/billing', allowed: OWNER, ok: 200, call: async () => ({ method: 'get', url: org('/billing') }) },
   { route: 'POST /orgs/:org/billing/checkout', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await freshOrg()}/billing/checkout`, body: { plan: 'mission' } }) },
   { route: 'POST /orgs/:org/billing/portal', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/portal` }) },

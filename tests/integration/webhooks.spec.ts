@@ -190,7 +190,7 @@ describe('deliveries', () => {
   it('sends a test event signed with the secret, checked by an independent HMAC', async () => {
     const { id, secret } = await addEndpoint(['plan.changed']);
     b.setNow(T0);
-    const sent = await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(202);
+    const sent = await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(201);
     expect(sent.body.delivery).toMatchObject({ state: 'pending', attempts: 0, eventType: 'webhook.test' });
     expect(await deliverAt(T0)).toBe(1);
     expect(rx.got).toHaveLength(1);
@@ -215,7 +215,7 @@ describe('deliveries', () => {
     const { id, secret } = await addEndpoint(['plan.changed']);
     rx.answers = [500, 500, 200];
     b.setNow(T0);
-    await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(202);
+    await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(201);
 
     expect(await deliverAt(T0)).toBe(1);
     let [d] = await deliveries();
@@ -243,7 +243,7 @@ describe('deliveries', () => {
     const { id } = await addEndpoint(['plan.changed']);
     rx.answers = [503];
     b.setNow(T0);
-    await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(202);
+    await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(201);
     let at = T0;
     for (let n = 1; n <= MAX_ATTEMPTS; n++) {
       expect(await deliverAt(at)).toBe(1);
@@ -255,7 +255,7 @@ describe('deliveries', () => {
     expect(rx.got).toHaveLength(MAX_ATTEMPTS);
 
     rx.answers = [204];
-    const again = await b.owner.browser.post(b.api(`/webhook-deliveries/${d!.id}/redeliver`)).expect(202);
+    const again = await b.owner.browser.post(b.api(`/webhook-deliveries/${d!.id}/redeliver`)).expect(201);
     expect(again.body.delivery).toMatchObject({ state: 'pending', redeliveryOf: d!.id, eventId: d!.eventId });
     expect(await deliverAt(at + 30 * DAY)).toBe(1);
     [d] = await deliveries();
@@ -268,7 +268,7 @@ describe('deliveries', () => {
     rx.silent = true;
     const { id } = await addEndpoint(['plan.changed']);
     b.setNow(T0);
-    await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(202);
+    await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(201);
     expect(await deliverAt(T0)).toBe(1);
     const [d] = await deliveries();
     expect(d).toMatchObject({ state: 'retrying', lastStatusCode: null });
@@ -283,7 +283,7 @@ describe('deliveries', () => {
   it('holds deliveries while the endpoint is paused and sends them on resume', async () => {
     const { id } = await addEndpoint(['plan.changed']);
     b.setNow(T0);
-    await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(202);
+    await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(201);
     await b.owner.browser.patch(b.api(`/webhooks/${id}`), { paused: true }).expect(200);
     expect((await deliveries())[0]).toMatchObject({ state: 'paused' });
     expect(await deliverAt(T0)).toBe(0);
@@ -297,7 +297,7 @@ describe('deliveries', () => {
     const { id } = await addEndpoint(['plan.changed']);
     rx.delayMs = 150;
     b.setNow(T0);
-    for (let i = 0; i < 4; i++) await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(202);
+    for (let i = 0; i < 4; i++) await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(201);
     const made = await Promise.all([deliverAt(T0, 'worker-a'), runWebhookDeliveries(b.t.context, { now: new Date(T0), holder: 'worker-b' })]);
     expect(made[0] + made[1]).toBe(4);
     expect(rx.got).toHaveLength(4);
@@ -419,7 +419,7 @@ describe('the verification snippet of the docs page', () => {
       }
       const id = created.body.endpoint.id as string;
       await b.owner.browser.patch(b.api(`/webhooks/${id}`), { url: `http://127.0.0.1:${port}/in` }).expect(200);
-      await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(202);
+      await b.owner.browser.post(b.api(`/webhooks/${id}/test`)).expect(201);
       expect(await runWebhookDeliveries(b.t.context)).toBe(1);
       expect((await deliveries())[0]).toMatchObject({ state: 'delivered', lastStatusCode: 204 });
       expect(out).toContain('webhook.test');

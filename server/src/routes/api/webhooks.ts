@@ -91,7 +91,7 @@ export function webhookRoutes(ctx: AppContext): ApiRoutes {
     const auth = orgAuth(res);
     const endpoint = await endpointOf(auth.organization.id, param(req, 'id'));
     const delivery = await sendTestEvent(ctx, endpoint, auth.user.name);
-    res.status(202).json({ delivery: (await listDeliveries(auth.organization.id, { ids: [delivery.id] }))[0] });
+    res.status(201).json({ delivery: (await listDeliveries(auth.organization.id, { ids: [delivery.id] }))[0] });
   });
 
   r.get('/orgs/:org/webhook-deliveries', 'webhooks.read', async (req, res) => {
@@ -110,7 +110,7 @@ export function webhookRoutes(ctx: AppContext): ApiRoutes {
   r.post('/orgs/:org/webhook-deliveries/:id/redeliver', 'webhooks.write', async (req, res) => {
     const auth = orgAuth(res);
     const delivery = await redeliver(ctx, auth.organization.id, param(req, 'id'));
-    res.status(202).json({ delivery: (await listDeliveries(auth.organization.id, { ids: [delivery.id] }))[0] });
+    res.status(201).json({ delivery: (await listDeliveries(auth.organization.id, { ids: [delivery.id] }))[0] });
   });
 
   return r;
