@@ -67,7 +67,7 @@ export function webhookRoutes(ctx: AppContext): ApiRoutes {
     const before = serializeEndpoint(endpoint);
     await updateEndpoint(ctx, endpoint, body);
     const after = serializeEndpoint(endpoint);
-    await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'webhook.update', targetType: 'webhook', targetId: endpoint.id, detail: { url: after.url, ...(before.status !== after.status ? { status: after.status } : {}), ...(before.url !== after.url ? { from: before.url } : {}) } });
+    await recordAudit(ctx, { organizationId: auth.organization.id, actorUserId: auth.user.id, action: 'webhook.update', targetType: 'webhook', targetId: endpoint.id, detail: { url: after.url, ...(before.status !== after.status ? { status: after.status } : {}), ...(before.url !== after.url ? { previousUrl: before.url } : {}), ...(JSON.stringify(before.events) !== JSON.stringify(after.events) ? { events: after.events } : {}) } });
     res.json({ endpoint: after });
   });
 
