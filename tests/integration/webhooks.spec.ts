@@ -398,7 +398,7 @@ describe('each kind of event, from its real trigger', () => {
 describe('the verification snippet of the docs page', () => {
   it('is served at /docs/webhooks with the scheme, and linked from the API reference', async () => {
     const page = await request(b.t.app).get('/docs/webhooks').expect(200);
-    expect(page.text).toContain('HMAC-SHA256(secret, id + &quot;.&quot; + timestamp + &quot;.&quot; + body)');
+    expect(page.text).toContain('HMAC-SHA256(secret, id + "." + timestamp + "." + body)');
     expect(page.text).toContain('crypto.timingSafeEqual');
     expect(page.text).toContain('1 min, 5 min, 30 min, 2 h, 6 h');
     expect((await request(b.t.app).get('/docs/api').expect(200)).text).toContain('href="/docs/webhooks"');
