@@ -27,6 +27,7 @@ import { getQuotaService } from './services/quota.ts';
 import { getSatelliteService } from './services/satellites.ts';
 import { connectShared } from './services/shared.ts';
 import { getUsageRecorder } from './services/usage.ts';
+import { startWebhookWorker } from './services/webhooks.ts';
 
 /** Keys and one-time tokens (in queries, invitation links and their API paths) never reach the logs. */
 export function redactUrl(url: string): string {
@@ -88,6 +89,8 @@ export async function createApp(config: Config): Promise<NadirlineApp> {
   installTestClock(context);
   registerNoticeJobs(context);
   if (!config.isTest) startScheduler(context);
+  // Webhooks out: due deliveries are claimed one at a time, so every process may send them.
+  if (config.WEBHOOK_WORKER ?? !config.isTest) startWebhookWorker(context);
 
   // Keys over their rate limit are refused first: no log line, no routing, no limiter work.
   // The server calls the gate before Express (handler below); in-process callers get it here.

@@ -99,6 +99,10 @@ const schema = z.object({
    * processes share one clock a test moves. Missing or unreadable file: the system clock.
    */
   TEST_CLOCK_FILE: z.string().optional(),
+  /** Send webhook deliveries from this process (default: on, except under NODE_ENV=test where tests drive them). */
+  WEBHOOK_WORKER: bool.optional(),
+  /** How often the webhook worker looks for deliveries that are due, ms. */
+  WEBHOOK_TICK_MS: z.coerce.number().int().min(100).max(600_000).default(5000),
   /** Days a paid plan is kept after a failed payment before the organization falls back to Starter. */
   PAYMENTS_GRACE_DAYS: z.coerce.number().min(0).max(60).default(7),
 });

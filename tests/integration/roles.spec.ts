@@ -109,6 +109,24 @@ async function freshEmbed(): Promise<string> {
   return (await ownerPost(`/api/orgs/${f.orgId}/embeds`, { name: 'Fresh embed', satelliteIds: [f.satelliteId], apiKeyId: f.browserKeyId, options: {} })).body.embed.id as string;
 }
 
+/**
+ * A webhook endpoint in a fresh organization (an organization holds at most ten): its URL under
+ * /api. A loopback receiver is accepted under NODE_ENV=test.
+ */
+async function freshEndpoint(): Promise<string> {
+  const orgId = await freshOrg();
+  const id = (await ownerPost(`/api/orgs/${orgId}/webhooks`, { url: 'http://127.0.0.1:9/nadirline-hooks', events: ['plan.changed'] })).body.endpoint.id as string;
+  return `/api/orgs/${orgId}/webhooks/${id}`;
+}
+
+/** A finished (failed) delivery of a test event, to send again: its URL under /api. */
+async function finishedDelivery(): Promise<string> {
+  const endpoint = await freshEndpoint();
+  const id = (await ownerPost(`${endpoint}/test`, {}, 201)).body.delivery.id as string;
+  await f.t.context.sequelize.models['WebhookDelivery']!.update({ status: 'failed', attempts: 6, nextAttemptAt: null }, { where: { id } });
+  return `${endpoint.replace(/\/webhooks\/[^/]+$/, '')}/webhook-deliveries/${id}`;
+}
+
 /** A fresh organization (four roles) with a paid Mission subscription at the fake provider. */
 async function paidOrg(opts: { cancelAtPeriodEnd?: boolean } = {}): Promise<string> {
   const id = await freshOrg();
@@ -272,6 +290,16 @@ export const TABLE: Row[] = [
   { route: 'GET /orgs/:org/activity', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/activity') }) },
   { route: 'POST /orgs/:org/preview-token', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'post', url: org('/preview-token') }) },
   { route: 'GET /orgs/:org/notices', allowed: EVERYONE, ok: 200, call: async () => ({ method: 'get', url: org('/notices') }) },
+  // ---- webhooks out
+  { route: 'GET /orgs/:org/webhooks', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'get', url: org('/webhooks') }) },
+  { route: 'POST /orgs/:org/webhooks', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: `/api/orgs/${await freshOrg()}/webhooks`, body: { url: 'https://hooks.example.org/nadirline', events: ['element-set.accepted'] } }) },
+  { route: 'PATCH /orgs/:org/webhooks/:id', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'patch', url: await freshEndpoint(), body: { paused: true } }) },
+  { route: 'DELETE /orgs/:org/webhooks/:id', allowed: MANAGERS, ok: 204, call: async () => ({ method: 'delete', url: await freshEndpoint() }) },
+  { route: 'POST /orgs/:org/webhooks/:id/rotate-secret', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'post', url: `${await freshEndpoint()}/rotate-secret` }) },
+  { route: 'POST /orgs/:org/webhooks/:id/test', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: `${await freshEndpoint()}/test` }) },
+  { route: 'GET /orgs/:org/webhook-deliveries', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'get', url: org('/webhook-deliveries') }) },
+  { route: 'GET /orgs/:org/webhook-deliveries/:id', allowed: MANAGERS, ok: 200, call: async () => ({ method: 'get', url: await finishedDelivery() }) },
+  { route: 'POST /orgs/:org/webhook-deliveries/:id/redeliver', allowed: MANAGERS, ok: 201, call: async () => ({ method: 'post', url: `${await finishedDelivery()}/redeliver` }) },
   { route: 'GET /orgs/:org/billing', allowed: OWNER, ok: 200, call: async () => ({ method: 'get', url: org('/billing') }) },
   { route: 'POST /orgs/:org/billing/checkout', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await freshOrg()}/billing/checkout`, body: { plan: 'mission' } }) },
   { route: 'POST /orgs/:org/billing/portal', allowed: OWNER, ok: 200, call: async () => ({ method: 'post', url: `/api/orgs/${await paidOrg()}/billing/portal` }) },

@@ -37,6 +37,12 @@ import type {
   Subscription,
   UploadReport,
   UsageReport,
+  WebhookDelivery,
+  WebhookEndpoint,
+  WebhookEndpointInput,
+  WebhookEndpointList,
+  WebhookEndpointUpdate,
+  WebhookEndpointWithSecret,
   User,
   KeyRotateInput,
 } from './types.ts';
@@ -422,6 +428,35 @@ export class ApiClient {
   }
   setNoticePreferences(changes: Partial<Record<NoticeKind, boolean>>) {
     return this.patch<{ preferences: NoticePreference[] }>('/me/notices', changes);
+  }
+
+  // ---- webhooks out (owners and admins) ----
+  webhooks(org: string) {
+    return this.get<WebhookEndpointList>(`/orgs/${seg(org)}/webhooks`);
+  }
+  createWebhook(org: string, input: WebhookEndpointInput) {
+    return this.post<WebhookEndpointWithSecret>(`/orgs/${seg(org)}/webhooks`, input);
+  }
+  updateWebhook(org: string, id: string, input: WebhookEndpointUpdate) {
+    return this.patch<{ endpoint: WebhookEndpoint }>(`/orgs/${seg(org)}/webhooks/${seg(id)}`, input);
+  }
+  deleteWebhook(org: string, id: string) {
+    return this.delete(`/orgs/${seg(org)}/webhooks/${seg(id)}`);
+  }
+  rotateWebhookSecret(org: string, id: string) {
+    return this.post<WebhookEndpointWithSecret>(`/orgs/${seg(org)}/webhooks/${seg(id)}/rotate-secret`);
+  }
+  sendTestWebhook(org: string, id: string) {
+    return this.post<{ delivery: WebhookDelivery }>(`/orgs/${seg(org)}/webhooks/${seg(id)}/test`);
+  }
+  webhookDeliveries(org: string, limit = 50) {
+    return this.get<{ deliveries: WebhookDelivery[] }>(`/orgs/${seg(org)}/webhook-deliveries`, { limit });
+  }
+  webhookDelivery(org: string, id: string) {
+    return this.get<{ delivery: WebhookDelivery }>(`/orgs/${seg(org)}/webhook-deliveries/${seg(id)}`);
+  }
+  redeliverWebhook(org: string, id: string) {
+    return this.post<{ delivery: WebhookDelivery }>(`/orgs/${seg(org)}/webhook-deliveries/${seg(id)}/redeliver`);
   }
 }
 

@@ -41,6 +41,10 @@ const VERBS: Record<string, string> = {
   'org.rename': 'renamed the organization',
   'org.transfer': 'transferred ownership',
   'billing.plan': 'changed the plan',
+  'webhook.create': 'added a webhook endpoint',
+  'webhook.update': 'changed a webhook endpoint',
+  'webhook.delete': 'deleted a webhook endpoint',
+  'webhook.rotate-secret': 'made a new webhook signing secret',
 };
 
 export function activityVerb(action: string): string {
@@ -92,6 +96,10 @@ const LABELS: Record<string, string> = {
   provider: 'Payment',
   options: 'Display options',
   description: 'Description',
+  url: 'URL',
+  previousUrl: 'Old URL',
+  events: 'Events',
+  status: 'State',
 };
 
 /** What `from` and `to` are, per action. */

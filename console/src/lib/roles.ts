@@ -10,6 +10,7 @@ export type Action =
   | 'edit-embeds'
   | 'manage-keys' // create, edit, rotate, revoke keys
   | 'manage-members' // invite, remove, change roles (not the owner's)
+  | 'manage-webhooks' // webhook endpoints and their deliveries
   | 'billing' // plan and billing
   | 'manage-org'; // rename, delete, transfer the organization
 
@@ -19,6 +20,7 @@ const MATRIX: Record<Action, readonly Role[]> = {
   'edit-embeds': ['owner', 'admin', 'editor'],
   'manage-keys': ['owner', 'admin'],
   'manage-members': ['owner', 'admin'],
+  'manage-webhooks': ['owner', 'admin'],
   billing: ['owner'],
   'manage-org': ['owner'],
 };

@@ -27,6 +27,7 @@ export interface RouteNamedMap {
   members: RouteRecordInfo<'members', '/o/:org/members', OrgParams, OrgParams>;
   activity: RouteRecordInfo<'activity', '/o/:org/activity', OrgParams, OrgParams>;
   plan: RouteRecordInfo<'plan', '/o/:org/plan', OrgParams, OrgParams>;
+  webhooks: RouteRecordInfo<'webhooks', '/o/:org/webhooks', OrgParams, OrgParams>;
   'not-found': RouteRecordInfo<'not-found', '/:path(.*)*', { path?: string | string[] }, { path: string | string[] }>;
 }
 
@@ -93,5 +94,6 @@ export const routes: RouteRecordRaw[] = [
   { path: '/o/:org/members', name: 'members', component: () => import('../pages/MembersPage.vue'), props: true, meta: { title: 'Members' } },
   { path: '/o/:org/activity', name: 'activity', component: () => import('../pages/ActivityPage.vue'), props: true, meta: { title: 'Activity' } },
   { path: '/o/:org/plan', name: 'plan', component: () => import('../pages/PlanPage.vue'), props: true, meta: { title: 'Plan' } },
+  { path: '/o/:org/webhooks', name: 'webhooks', component: () => import('../pages/WebhooksPage.vue'), props: true, meta: { title: 'Webhooks' } },
   { path: '/:path(.*)*', name: 'not-found', component: () => import('../pages/NotFoundPage.vue'), meta: { public: true, title: 'Not found' } },
 ];

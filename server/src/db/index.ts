@@ -37,6 +37,7 @@ import * as m0009 from './migrations/0009-key-retire-when-quiet.ts';
 import * as m0010 from './migrations/0010-usage-hourly-and-origins.ts';
 import * as m0011 from './migrations/0011-payments.ts';
 import * as m0012 from './migrations/0012-notices.ts';
+import * as m0013 from './migrations/0013-webhooks.ts';
 import * as m0014 from './migrations/0014-key-deleted.ts';
 import { DatabaseBusyError, isDatabaseBusy, WriteLock } from './write-lock.ts';
 
@@ -52,6 +53,7 @@ const MIGRATIONS = [
   { name: '0010-usage-hourly-and-origins', ...m0010 },
   { name: '0011-payments', ...m0011 },
   { name: '0012-notices', ...m0012 },
+  { name: '0013-webhooks', ...m0013 },
   { name: '0014-key-deleted', ...m0014 },
 ];
 

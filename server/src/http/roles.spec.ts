@@ -7,6 +7,7 @@ const BRIEF: Array<{ row: string; actions: Action[]; roles: string[] }> = [
   { row: 'register satellites, upload element sets, edit embeds', actions: ['satellites.write', 'element-sets.write', 'element-sets.confirm', 'embeds.write'], roles: ['owner', 'admin', 'editor'] },
   { row: 'create / rotate / revoke keys', actions: ['keys.write'], roles: ['owner', 'admin'] },
   { row: 'invite, remove members, change roles', actions: ['members.manage'], roles: ['owner', 'admin'] },
+  { row: 'see and manage webhook endpoints and their deliveries', actions: ['webhooks.read', 'webhooks.write'], roles: ['owner', 'admin'] },
   { row: 'plan and billing, delete or transfer the organization', actions: ['billing.read', 'billing.manage', 'org.delete', 'org.transfer', 'org.rename', 'org.settings'], roles: ['owner'] },
 ];
 

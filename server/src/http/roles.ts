@@ -58,6 +58,9 @@ export const ACCESS = {
   'embeds.write': EDITORS,
   'keys.write': MANAGERS,
   'members.manage': MANAGERS,
+  // Webhooks out to the organization's own systems (services/webhooks.ts): see and change, admin+.
+  'webhooks.read': MANAGERS,
+  'webhooks.write': MANAGERS,
   'org.rename': OWNER,
   // Organization settings besides the name (confirmSuspiciousSets), like the name: the owner's.
   'org.settings': OWNER,

@@ -13,9 +13,11 @@ import {
 } from 'sequelize';
 import { initBillingModels } from './billing.ts';
 import { initNoticeModels } from './notices.ts';
+import { initWebhookModels } from './webhooks.ts';
 
 export { Invoice, PaymentEvent } from './billing.ts';
 export { JobLease, Notice, NoticePreference } from './notices.ts';
+export { WebhookAttempt, WebhookDelivery, WebhookEndpoint, WebhookEvent } from './webhooks.ts';
 
 export const ROLES = ['owner', 'admin', 'editor', 'viewer'] as const;
 export type Role = (typeof ROLES)[number];
@@ -422,6 +424,7 @@ export function initModels(sequelize: Sequelize): void {
 
   initBillingModels(sequelize);
   initNoticeModels(sequelize);
+  initWebhookModels(sequelize);
 
   Membership.belongsTo(User, { foreignKey: 'userId', as: 'user' });
   Membership.belongsTo(Organization, { foreignKey: 'organizationId', as: 'organization' });

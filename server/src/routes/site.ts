@@ -20,7 +20,8 @@
  *                      map under the key's frame-ancestors, so the browser still enforces the lock.
  *   /examples/*        examples/: in demo mode, {{BROWSER_KEY}}, {{SATELLITE_IDS}}, {{EMBED_ID}} and
  *                      {{API_BASE}} in .html/.js files are replaced from the demo credentials.
- *   /docs/api          API reference rendered from the OpenAPI document; /docs/problems the problem codes.
+ *   /docs/api          API reference rendered from the OpenAPI document; /docs/problems the problem codes;
+ *                      /docs/webhooks webhooks out (events, signature, retries).
  *   /fonts/*.woff2     Work Sans (from @fontsource/work-sans) for the server's own pages.
  *   /                  console/dist, a single-page app: other GETs that accept HTML and are not
  *                      under /v1, /api, /dev get index.html (history fallback).
@@ -39,6 +40,7 @@ import { securityHeaders } from '../http/security.ts';
 import { getEmbedService } from '../services/embeds.ts';
 import { getKeyService, originAllowed } from '../services/keys.ts';
 import { buildOpenApi, PROBLEM_DOCS } from '../services/openapi.ts';
+import { ATTEMPT_TIMEOUT_MS, MAX_ATTEMPTS, RETRY_DELAYS_MS, VERIFY_SNIPPET_NODE, WEBHOOK_EVENT_TYPES } from '../services/webhooks.ts';
 import { PAGE_CSS } from './page-style.ts';
 
 /** The Nadirline mark: a ring (the orbit) with the point beneath it (the nadir). */
@@ -257,7 +259,7 @@ ${responses}
   const caps = doc['x-caps'] as Json;
   return page(
     'API reference',
-    `<nav class="top"><a href="/">Console</a><a href="/docs/problems">Problem codes</a><a href="/v1/openapi.json">openapi.json</a></nav>
+    `<nav class="top"><a href="/">Console</a><a href="/docs/problems">Problem codes</a><a href="/docs/webhooks">Webhooks</a><a href="/v1/openapi.json">openapi.json</a></nav>
 <h1>${esc(String(info.title))}</h1>
 <p class="muted">Version ${esc(String(info.version))} · base URL <code>${esc(baseUrl)}/v1</code></p>
 <p>${prose(String(info.description))}</p>
@@ -280,6 +282,8 @@ EMBED=$(node -p "require('./data/demo-credentials.json').embedId")</code></pre>
 <tr><td>rate</td><td>per key, requests per minute as set on the key; 429 with <code>Retry-After</code> and the <code>RateLimit</code> / <code>RateLimit-Policy</code> headers</td></tr>
 <tr><td>quota</td><td>requests per calendar month (UTC) per organization, by plan; 429 <code>quota-exceeded</code> when spent</td></tr></table>
 <p class="note">Positions come from mean element sets and SGP4: good to kilometres near epoch and worse as sets age. Not for collision avoidance, navigation, safety-of-life or operational decisions. Never point optics at or near the Sun.</p>
+<h2>Webhooks</h2>
+<p>Besides answering calls, Nadirline can call your systems: signed <code>POST</code>s when element sets are stored or turn stale, when the monthly quota reaches 80 % or 100 %, and when the plan changes. The signature scheme, the events and the retry schedule are on <a href="/docs/webhooks">the webhooks page</a>.</p>
 <h2>Routes</h2>
 <ul class="routes">${index.join('')}</ul>
 ${sections.join('\n')}`,
@@ -294,6 +298,43 @@ export function renderProblems(): string {
 <h1>Problem codes</h1>
 <p>Every error is <code>application/problem+json</code> (RFC 9457): <code>type</code> (this page and the code as fragment, <code>${esc(PROBLEM_TYPE_BASE)}&lt;code&gt;</code>), <code>title</code>, <code>status</code>, <code>detail</code> (a sentence for people), and <code>code</code> (stable, for programs). Validation problems add <code>errors: [{ where, message, field?, line?, column? }]</code>. <code>instance</code> is the request\u2019s path, without its query string.</p>
 ${stackTable(['code', 'status', 'title', 'meaning and what to do'], rows)}`,
+  );
+}
+
+/** Webhooks out: what is sent, how it is signed, how to check it, and the retry schedule. */
+export function renderWebhooks(): string {
+  const wait = (ms: number) => (ms >= 3_600_000 ? `${ms / 3_600_000} h` : `${ms / 60_000} min`);
+  const examples: Record<string, object> = {
+    'element-set.accepted': { satellite: { id: 'sat_…', name: 'Wren-2', catalogNumber: '90777' }, elementSets: [{ id: 'es_…', epoch: '2030-05-20T04:12:00.000Z', source: 'tle', continuity: 'continues', awaitingConfirmation: false }], currentElementSetId: 'es_…', uploadedBy: { keyId: 'key_…' } },
+    'element-set.stale': { day: '2030-05-20', satellites: [{ id: 'sat_…', name: 'Kestrel-1', catalogNumber: '90001', elementSetId: 'es_…', epoch: '2030-05-17T01:12:00.000Z', ageDays: 3.2, staleness: 'aging' }] },
+    'quota.threshold': { threshold: 80, used: 81000, limit: 100000, plan: 'starter', month: '2030-05', resetsAt: '2030-06-01T00:00:00.000Z' },
+    'plan.changed': { from: 'starter', to: 'mission', reason: 'checkout', monthlyRequests: 1000000 },
+  };
+  const rows = WEBHOOK_EVENT_TYPES.map((t) => ({ id: t.type, cells: [`<code>${esc(t.type)}</code>`, esc(t.label), `<pre><code>${esc(JSON.stringify(examples[t.type], null, 2))}</code></pre>`] }));
+  const sample = '{"id":"evt_3oQm1xV9bq2Zk4TfYp7c","type":"plan.changed","createdAt":"2030-05-20T06:00:00.000Z","organizationId":"org_…","data":{"from":"starter","to":"mission","reason":"checkout","monthlyRequests":1000000}}';
+  return page(
+    'Webhooks',
+    `<nav class="top"><a href="/">Console</a><a href="/docs/api">API reference</a><a href="/docs/problems">Problem codes</a></nav>
+<h1>Webhooks</h1>
+<p>Nadirline tells your own systems what happened in your organization: it sends an HTTPS <code>POST</code> with a JSON body to each endpoint that chose the kind of event. Owners and admins add endpoints on the console’s <strong>Webhooks</strong> page (or through <code>/api/orgs/{org}/webhooks</code>, see <code>docs/console-api.md</code>), pick the events, pause and resume them, and see every delivery with its attempts.</p>
+<h2>Events</h2>
+<p>Every body has the same five fields; <code>data</code> depends on <code>type</code>:</p>
+<pre><code>${esc(sample)}</code></pre>
+${stackTable(['type', 'sent when', 'data'], rows)}
+<p>The console’s <em>Send a test event</em> sends <code>webhook.test</code> to one endpoint, whatever events it chose.</p>
+<h2>Signature</h2>
+<p>Each endpoint has its own signing secret (<code>nlwh_…</code>), shown once when the endpoint is added and when a new one is made; Nadirline keeps it encrypted and never shows it again. Each attempt carries:</p>
+<table><tr><th>header</th><th>value</th></tr>
+<tr><td><code>Nadirline-Webhook-Id</code></td><td>the event id, the same as <code>id</code> in the body, on every attempt and every “send again”: use it to handle an event once</td></tr>
+<tr><td><code>Nadirline-Webhook-Timestamp</code></td><td>Unix time in seconds when this attempt was signed</td></tr>
+<tr><td><code>Nadirline-Webhook-Signature</code></td><td><code>v1=</code> and the lowercase hex of <code>HMAC-SHA256(secret, id + "." + timestamp + "." + body)</code>, where <code>body</code> is the raw request body, byte for byte</td></tr>
+<tr><td><code>Nadirline-Webhook-Delivery</code></td><td>the delivery id (one per event and endpoint; a “send again” is a new delivery)</td></tr></table>
+<p>Check the signature on the raw body before parsing it, compare in constant time, and refuse a timestamp more than a few minutes away from your clock (a replayed capture). In Node, with no package:</p>
+<pre><code>${esc(VERIFY_SNIPPET_NODE)}</code></pre>
+<h2>Delivery and retries</h2>
+<p>Any <code>2xx</code> answer within ${ATTEMPT_TIMEOUT_MS / 1000} s counts as delivered. Anything else (another status, a redirect, no answer, a refused connection) is tried again after ${RETRY_DELAYS_MS.map(wait).join(', ')}; after ${MAX_ATTEMPTS} attempts the delivery is marked failed, and the console offers to send it again. Events of one endpoint may arrive out of order and, rarely, twice: order by <code>createdAt</code> and skip ids you have handled. A paused endpoint gets nothing; what happened meanwhile is held and sent when it is resumed.</p>
+<h2>Addresses</h2>
+<p>Endpoints are <code>https://</code> URLs on public addresses. Private, loopback and link-local addresses are refused, when the endpoint is added and again when each attempt connects. While a Nadirline server runs in development or tests, a receiver on the same machine (<code>http://127.0.0.1:…</code>, <code>http://localhost:…</code>) is accepted for trying things out.</p>`,
   );
 }
 
@@ -652,6 +693,11 @@ export async function createSiteRouter(ctx: AppContext): Promise<Router> {
   router.get('/docs/problems', consoleHeaders, (_req, res) => {
     res.setHeader('Cache-Control', 'public, max-age=300');
     res.type('html').send(problems);
+  });
+  const webhooks = renderWebhooks();
+  router.get('/docs/webhooks', consoleHeaders, (_req, res) => {
+    res.setHeader('Cache-Control', 'public, max-age=300');
+    res.type('html').send(webhooks);
   });
 
   // -- console SPA -----------------------------------------------------------------------------

@@ -7,7 +7,8 @@
  * Actions are dotted verbs: org.create, org.rename, org.transfer, member.invite, member.invite-revoke,
  * member.join, member.role, member.remove, key.create, key.update, key.rotate, key.revoke, key.delete,
  * satellite.create, satellite.update, satellite.delete, element-set.upload, embed.create,
- * embed.update, embed.delete, billing.plan. `detail` never holds secrets (no key text, no tokens).
+ * embed.update, embed.delete, billing.plan, webhook.create, webhook.update, webhook.delete, webhook.rotate-secret.
+ * `detail` never holds secrets (no key text, no tokens, no webhook signing secrets).
  */
 import type { Transaction } from 'sequelize';
 import { Op } from 'sequelize';

@@ -36,6 +36,7 @@ import { Invoice, Membership, Organization, PaymentEvent, Subscription, User, ty
 import { recordAudit } from './audit.ts';
 import { getPayments, type Payments } from './payments.ts';
 import { PLAN_CATALOG, getQuotaService, planOf } from './quota.ts';
+import { emitEvent } from './webhooks.ts';
 import type { Billing } from '@nadirline/shared/contract';
 
 /** Plan prices (services/quota.ts PLAN_CATALOG priceMonthly) are in euros. */
@@ -264,6 +265,7 @@ async function changePlanDirectly(ctx: AppContext, auth: OrgAuth, plan: Plan): P
     const sub = await Subscription.findOne({ where: { organizationId: org.id }, transaction });
     if (sub) await sub.update({ plan, status: 'none', currentPeriodEnd: null, cancelAtPeriodEnd: false, graceUntil: null }, { transaction });
     await recordAudit(ctx, { organizationId: org.id, actorUserId: auth.user.id, action: 'billing.plan', targetType: 'organization', targetId: org.id, detail: { from, to: plan, reason: 'direct' } }, { transaction });
+    if (from !== plan) await emitPlanChanged(ctx, org.id, from, plan, 'direct', transaction);
   });
   if (from !== plan) await announcePlanChange(ctx, { organizationId: org.id, from, to: plan, reason: 'direct' });
 }
@@ -378,7 +380,14 @@ async function setPlanIn(ctx: AppContext, org: Organization, to: Plan, reason: s
   if (from === to) return null;
   await org.update({ plan: to }, { transaction });
   await recordAudit(ctx, { organizationId: org.id, actorUserId, action: 'billing.plan', targetType: 'organization', targetId: org.id, detail: { from, to, reason } }, { transaction });
+  await emitPlanChanged(ctx, org.id, from, to, reason, transaction);
   return { organizationId: org.id, from, to, reason };
+}
+
+/** Webhooks out: `plan.changed`, written in the transaction that changes the plan. */
+async function emitPlanChanged(ctx: AppContext, organizationId: string, from: Plan, to: Plan, reason: string, transaction: Transaction): Promise<void> {
+  const plan = planOf(to);
+  await emitEvent(ctx, { organizationId, type: 'plan.changed', data: { from, to, reason, monthlyRequests: plan.monthlyRequests } }, { transaction });
 }
 
 async function applySubscription(ctx: AppContext, orgId: string, s: Stripe.Subscription, eventAt: Date, reason: string, actorUserId: string | null): Promise<void> {

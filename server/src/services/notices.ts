@@ -23,6 +23,7 @@ import { onPaymentFailed, onPlanChanged, sweepGrace } from './billing.ts';
 import { getMailService } from './mail.ts';
 import { monthKey, monthStart, nextMonthStart, planOf } from './quota.ts';
 import { registerJob, tenMinuteSlot, utcDayOf } from './scheduler.ts';
+import { emitEvent } from './webhooks.ts';
 
 export const NOTICE_KINDS = [
   { kind: 'quota', label: 'The organization used 80 % or all of its monthly quota', roles: ['owner', 'admin'] },
@@ -178,6 +179,13 @@ export async function checkQuotaThresholds(ctx: AppContext, now: Date): Promise<
         detail: { threshold: pct, used, limit: plan.monthlyRequests, plan: plan.id, month },
       });
       if (told) sent += 1;
+      // Webhooks out: once per threshold, plan and month (the dedupe key), like the notice.
+      await emitEvent(ctx, {
+        organizationId: org.id,
+        type: 'quota.threshold',
+        dedupeKey: `quota.threshold:${org.id}:${month}:${plan.id}:${pct}`,
+        data: { threshold: pct, used, limit: plan.monthlyRequests, plan: plan.id, month, resetsAt: nextMonthStart(now).toISOString() },
+      });
     }
   }
   return sent;
@@ -188,7 +196,7 @@ const RANK: Record<Staleness, number> = { fresh: 0, aging: 1, stale: 2 };
 export async function sendStaleDigests(ctx: AppContext, now: Date): Promise<number> {
   const day = utcDayOf(now);
   const sats = await Satellite.findAll({ where: { currentElementSetId: { [Op.ne]: null } }, include: [{ model: ElementSetRecord, as: 'currentElementSet', attributes: ['id', 'epoch'] }], order: [['name', 'ASC']] });
-  const byOrg = new Map<string, Array<{ id: string; name: string; catalogNumber: string | null; ageDays: number; staleness: Staleness }>>();
+  const byOrg = new Map<string, Array<{ id: string; name: string; catalogNumber: string | null; ageDays: number; staleness: Staleness; elementSetId: string; epoch: string }>>();
   for (const sat of sats) {
     const es = (sat as Satellite & { currentElementSet?: ElementSetRecord }).currentElementSet;
     if (!es) continue;
@@ -197,7 +205,7 @@ export async function sendStaleDigests(ctx: AppContext, now: Date): Promise<numb
     const yesterday = stalenessOf(ageDays - 1);
     if (RANK[today] <= RANK[yesterday]) continue;
     const list = byOrg.get(sat.organizationId) ?? [];
-    list.push({ id: sat.id, name: sat.name, catalogNumber: sat.catalogNumber, ageDays, staleness: today });
+    list.push({ id: sat.id, name: sat.name, catalogNumber: sat.catalogNumber, ageDays, staleness: today, elementSetId: es.id, epoch: new Date(es.epoch).toISOString() });
     byOrg.set(sat.organizationId, list);
   }
   let sent = 0;
@@ -219,6 +227,16 @@ export async function sendStaleDigests(ctx: AppContext, now: Date): Promise<numb
       detail: { day, satellites: list.map((s) => ({ id: s.id, name: s.name, ageDays: Math.round(s.ageDays * 10) / 10, staleness: s.staleness })) },
     });
     if (told) sent += 1;
+    // Webhooks out: the same list, once per organization and day.
+    await emitEvent(ctx, {
+      organizationId: orgId,
+      type: 'element-set.stale',
+      dedupeKey: `element-set.stale:${orgId}:${day}`,
+      data: {
+        day,
+        satellites: list.map((s) => ({ id: s.id, name: s.name, catalogNumber: s.catalogNumber, elementSetId: s.elementSetId, epoch: s.epoch, ageDays: Math.round(s.ageDays * 10) / 10, staleness: s.staleness })),
+      },
+    });
   }
   return sent;
 }

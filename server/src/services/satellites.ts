@@ -51,6 +51,7 @@ import { ApiKey, ElementSetRecord, Organization, Satellite, User } from '../mode
 import { OrbitCache, parsedOf, type CachedSatellite, type CurrentSet } from './orbit-cache.ts';
 import { invalidationBus } from './shared.ts';
 import type { Continuity, V1ElementSetSummary, V1Satellite } from '@nadirline/shared/contract';
+import { emitEvent } from './webhooks.ts';
 
 export const MAX_ELEMENT_TEXT_CHARS = 2_000_000;
 export const MAX_SETS_PER_UPLOAD = 500;
@@ -345,6 +346,21 @@ export class SatelliteService {
       await record.update({ awaitingConfirmation: false, confirmedAt: new Date(), confirmedByUserId: userId }, { transaction });
       const latest = await ElementSetRecord.findOne({ where: { satelliteId: record.satelliteId, awaitingConfirmation: false }, order: [['epoch', 'DESC']], attributes: ['id'], transaction });
       await Satellite.update({ currentElementSetId: latest?.id ?? null }, { where: { id: record.satelliteId }, transaction });
+      const sat = await Satellite.findByPk(record.satelliteId, { attributes: ['id', 'name', 'catalogNumber'], transaction });
+      await emitEvent(
+        this.ctx,
+        {
+          organizationId: orgId,
+          type: 'element-set.accepted',
+          data: {
+            satellite: { id: record.satelliteId, name: sat?.name ?? null, catalogNumber: sat?.catalogNumber ?? null },
+            elementSets: [{ id: record.id, epoch: new Date(record.epoch).toISOString(), source: record.source, continuity: record.continuityClass ?? null, awaitingConfirmation: false, confirmedBy: { userId } }],
+            currentElementSetId: latest?.id ?? null,
+            uploadedBy: record.uploadedByKeyId ? { keyId: record.uploadedByKeyId } : record.uploadedByUserId ? { userId: record.uploadedByUserId } : null,
+          },
+        },
+        { transaction },
+      );
     });
     this.cache.invalidate(record.satelliteId);
     return record;
@@ -508,6 +524,27 @@ export class SatelliteService {
       if (created.length > 0) {
         const latest = await ElementSetRecord.findOne({ where: { satelliteId: satellite.id, awaitingConfirmation: false }, order: [['epoch', 'DESC']], attributes: ['id'], transaction });
         await satellite.update({ currentElementSetId: latest?.id ?? null, catalogNumber: catalog }, { transaction });
+        // Webhooks out (the outbox): written with the sets, so the event exists exactly when they do.
+        await emitEvent(
+          this.ctx,
+          {
+            organizationId: satellite.organizationId,
+            type: 'element-set.accepted',
+            data: {
+              satellite: { id: satellite.id, name: satellite.name, catalogNumber: catalog ?? null },
+              elementSets: created.map((r) => ({
+                id: r.id,
+                epoch: new Date(r.epoch).toISOString(),
+                source: r.source,
+                continuity: r.continuityClass ?? null,
+                awaitingConfirmation: Boolean(r.awaitingConfirmation),
+              })),
+              currentElementSetId: latest?.id ?? null,
+              uploadedBy: actor.keyId ? { keyId: actor.keyId } : actor.userId ? { userId: actor.userId } : null,
+            },
+          },
+          { transaction },
+        );
       }
     });
     this.changed(satellite.id);

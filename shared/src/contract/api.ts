@@ -346,6 +346,83 @@ export interface NoticePreference {
   email: boolean;
 }
 
+/** What an organization's own systems can be told by webhook (docs/console-api.md "Webhooks"). */
+export type WebhookEventType = 'element-set.accepted' | 'element-set.stale' | 'quota.threshold' | 'plan.changed';
+
+/** An endpoint as /api answers it; the signing secret is never in it (only its last four characters). */
+export interface WebhookEndpoint {
+  id: string;
+  url: string;
+  description: string;
+  events: WebhookEventType[];
+  status: 'active' | 'paused';
+  secretLastFour: string;
+  secretRotatedAt: string | null;
+  createdAt: string;
+  updatedAt: string;
+}
+
+/** GET /api/orgs/:org/webhooks */
+export interface WebhookEndpointList {
+  endpoints: WebhookEndpoint[];
+  /** The event kinds an endpoint can choose, with a sentence each. */
+  eventTypes: Array<{ type: WebhookEventType; label: string }>;
+  /** Most endpoints one organization may register. */
+  maxEndpoints: number;
+}
+
+/** POST /api/orgs/:org/webhooks */
+export interface WebhookEndpointInput {
+  url: string;
+  events: WebhookEventType[];
+  description?: string;
+}
+
+/** PATCH /api/orgs/:org/webhooks/:id (any subset). */
+export interface WebhookEndpointUpdate {
+  url?: string;
+  events?: WebhookEventType[];
+  description?: string;
+  paused?: boolean;
+}
+
+/** POST /api/orgs/:org/webhooks and POST .../webhooks/:id/rotate-secret: the secret, shown this once. */
+export interface WebhookEndpointWithSecret {
+  endpoint: WebhookEndpoint;
+  secret: string;
+}
+
+/** pending: not tried yet; retrying: tried, tried again at nextAttemptAt; paused: its endpoint is paused. */
+export type WebhookDeliveryState = 'pending' | 'retrying' | 'delivered' | 'failed' | 'paused';
+
+export interface WebhookAttempt {
+  number: number;
+  startedAt: string;
+  /** The endpoint's HTTP status, or null when no answer came (refused, timed out, ...). */
+  statusCode: number | null;
+  error: string | null;
+  durationMs: number;
+}
+
+/** GET /api/orgs/:org/webhook-deliveries (newest first); GET .../:id adds `attemptList`. */
+export interface WebhookDelivery {
+  id: string;
+  eventId: string;
+  eventType: WebhookEventType | 'webhook.test';
+  endpointId: string;
+  endpointUrl: string;
+  state: WebhookDeliveryState;
+  attempts: number;
+  maxAttempts: number;
+  nextAttemptAt: string | null;
+  lastStatusCode: number | null;
+  lastError: string | null;
+  deliveredAt: string | null;
+  redeliveryOf: string | null;
+  createdAt: string;
+  attemptList?: WebhookAttempt[];
+}
+
 /** One field-level problem (problem+json `errors[]`). */
 export interface FieldProblem {
   where: string;

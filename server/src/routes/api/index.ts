@@ -21,6 +21,7 @@ import { previewRoutes } from './preview.ts';
 import type { ApiRoute } from './routes.ts';
 import { satelliteRoutes } from './satellites.ts';
 import { usageRoutes } from './usage.ts';
+import { webhookRoutes } from './webhooks.ts';
 
 declare module '../../context.ts' {
   interface AppServices {
@@ -31,7 +32,7 @@ declare module '../../context.ts' {
 
 /** Every /api route with its action, in mounting order. */
 export function buildApiRoutes(ctx: AppContext): ApiRoute[] {
-  return [accountRoutes, orgRoutes, keyRoutes, satelliteRoutes, embedRoutes, usageRoutes, billingRoutes, noticeRoutes, previewRoutes].flatMap((routes) => routes(ctx).list);
+  return [accountRoutes, orgRoutes, keyRoutes, satelliteRoutes, embedRoutes, usageRoutes, billingRoutes, noticeRoutes, webhookRoutes, previewRoutes].flatMap((routes) => routes(ctx).list);
 }
 
 export async function createApiRouter(ctx: AppContext): Promise<Router> {
