@@ -151,7 +151,7 @@ export async function seedDemo(
   const keys = getKeyService(ctx);
   const sats = getSatelliteService(ctx);
   const host = ctx.config.PUBLIC_URL ? ctx.config.publicUrl : `http://localhost:${opts.port}`;
-  const signInUrl = `${host}/signin`;
+  const signInUrl = `${host}/sign-in`;
 
   let org = await Organization.findByPk(DEMO_ORG_ID);
   const created = !org;
