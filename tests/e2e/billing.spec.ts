@@ -9,7 +9,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchChromium } from '../support/chromium.ts';
+import { launchChromium, signInThroughForm } from '../support/chromium.ts';
 import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
 
 const ARTIFACTS = path.join(repoRoot, 'tests', 'artifacts', 'billing');
@@ -37,11 +37,7 @@ async function signInAs(role: 'owner' | 'viewer'): Promise<Page> {
   const page = await ctx.newPage();
   page.setDefaultTimeout(15_000);
   const u = server.credentials.users.find((x) => x.role === role)!;
-  await page.goto(`${server.url}/sign-in`);
-  await page.getByLabel('E-mail').fill(u.email);
-  await page.getByLabel('Password').fill(u.password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(/\/o\/[^/]+\/satellites$/);
+  await signInThroughForm(page, server.url, u);
   return page;
 }
 

@@ -10,7 +10,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchChromium } from '../support/chromium.ts';
+import { launchChromium, signInThroughForm } from '../support/chromium.ts';
 import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
 
 const ARTIFACTS = path.join(repoRoot, 'tests', 'artifacts', 'console-layout');
@@ -41,11 +41,7 @@ async function newPage(width: number, scheme: Scheme = 'light'): Promise<Page> {
 
 async function signIn(page: Page, role: 'owner' | 'viewer' = 'owner') {
   const u = server.credentials.users.find((x) => x.role === role)!;
-  await page.goto(`${server.url}/sign-in`);
-  await page.getByLabel('E-mail').fill(u.email);
-  await page.getByLabel('Password').fill(u.password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(/\/satellites$/);
+  await signInThroughForm(page, server.url, u);
 }
 
 async function settle(page: Page) {

@@ -7,7 +7,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchChromium } from '../support/chromium.ts';
+import { launchChromium, signInThroughForm } from '../support/chromium.ts';
 import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
 
 const ARTIFACTS = path.join(repoRoot, 'tests', 'artifacts', 'console-screens');
@@ -34,11 +34,7 @@ describe('touched console screens at phone and desktop widths, light and dark', 
         const ctx = await browser.newContext({ viewport: { width, height: 900 }, colorScheme: scheme, locale: 'en-GB', timezoneId: 'UTC' });
         const page = await ctx.newPage();
         page.setDefaultTimeout(15_000);
-        await page.goto(`${server.url}/sign-in`);
-        await page.getByLabel('E-mail').fill(owner.email);
-        await page.getByLabel('Password').fill(owner.password);
-        await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-        await page.waitForURL(/\/satellites$/);
+        await signInThroughForm(page, server.url, owner);
         for (const screen of screens) {
           await page.goto(`${server.url}${screen === 'profile' ? '/profile' : `/o/${org}/${screen}`}`);
           await page.locator('h1').first().waitFor();

@@ -8,7 +8,7 @@ import fs from 'node:fs';
 import path from 'node:path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchChromium } from '../support/chromium.ts';
+import { launchChromium, signInThroughForm } from '../support/chromium.ts';
 import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
 
 const ARTIFACTS = path.join(repoRoot, 'tests', 'artifacts', 'console');
@@ -45,11 +45,7 @@ async function newPage(): Promise<Page> {
 }
 
 async function signIn(page: Page, email: string, password: string) {
-  await page.goto(`${server.url}/sign-in`);
-  await page.getByLabel('E-mail').fill(email);
-  await page.getByLabel('Password').fill(password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(/\/o\/[^/]+\/satellites$/);
+  await signInThroughForm(page, server.url, { email, password });
 }
 
 async function signInAs(role: Role): Promise<{ page: Page; org: string }> {

@@ -12,7 +12,7 @@ import type { AddressInfo } from 'node:net';
 import path from 'node:path';
 import type { Browser, BrowserContext, Page } from 'playwright-core';
 import { afterAll, beforeAll, describe, expect, it } from 'vitest';
-import { launchChromium } from '../support/chromium.ts';
+import { launchChromium, signInThroughForm } from '../support/chromium.ts';
 import { repoRoot, startServer, type StartedServer } from '../support/server.ts';
 
 const ARTIFACTS = path.join(repoRoot, 'tests', 'artifacts', 'webhooks');
@@ -55,11 +55,7 @@ async function signIn(width: number, colorScheme: 'light' | 'dark'): Promise<Pag
   const page = await ctx.newPage();
   page.setDefaultTimeout(15_000);
   const u = server.credentials.users.find((x) => x.role === 'owner')!;
-  await page.goto(`${server.url}/sign-in`);
-  await page.getByLabel('E-mail').fill(u.email);
-  await page.getByLabel('Password').fill(u.password);
-  await page.getByRole('button', { name: 'Sign in', exact: true }).click();
-  await page.waitForURL(/\/o\/[^/]+\/satellites$/);
+  await signInThroughForm(page, server.url, u);
   return page;
 }
 

@@ -41,7 +41,22 @@ interface Opened {
 }
 
 /** A page of this server holding one <nadir-track> with these attributes and host style. */
-async function widgetPage(name: string, attrs: string, opts: { width?: number; height?: number; scheme?: 'light' | 'dark'; locale?: string; zone?: string; style?: string } = {}): Promise<Opened> {
+interface PageOptions {
+  width?: number;
+  height?: number;
+  scheme?: 'light' | 'dark';
+  locale?: string;
+  zone?: string;
+  style?: string;
+  /** Routes to set before the page loads (answers held back, for instance). */
+  prepare?: (page: Page) => Promise<unknown>;
+  /** A classic script run before the widget's. */
+  headScript?: string;
+  /** Whether to wait for the first drawn track (default true). */
+  waitForTrack?: boolean;
+}
+
+async function widgetPage(name: string, attrs: string, opts: PageOptions = {}): Promise<Opened> {
   const ctx = await browser.newContext({
     viewport: { width: opts.width ?? 1280, height: opts.height ?? 900 },
     colorScheme: opts.scheme ?? 'light',
@@ -51,15 +66,17 @@ async function widgetPage(name: string, attrs: string, opts: { width?: number; h
   const page = await ctx.newPage();
   const pageErrors: string[] = [];
   page.on('pageerror', (e) => pageErrors.push(e.message));
+  await opts.prepare?.(page);
   const url = `${server.url}/e2e-layout-${name}.html`;
+  const head = opts.headScript ? `<script>${opts.headScript}</script>` : '';
   await page.route(url, (r) =>
     r.fulfill({
       contentType: 'text/html',
-      body: `<!doctype html><meta name="viewport" content="width=device-width"><body style="margin:0;padding:8px"><script type="module" src="/widget/nadir-track.js"></script><nadir-track api-key="${server.credentials.browserKey}" ${attrs} style="${opts.style ?? 'display:block'}"></nadir-track>`,
+      body: `<!doctype html><meta name="viewport" content="width=device-width"><body style="margin:0;padding:8px">${head}<script type="module" src="/widget/nadir-track.js"></script><nadir-track api-key="${server.credentials.browserKey}" ${attrs} style="${opts.style ?? 'display:block'}"></nadir-track>`,
     }),
   );
   await page.goto(url);
-  await page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('path.past')?.getAttribute('d'), undefined, { timeout: 20_000 });
+  if (opts.waitForTrack !== false) await page.waitForFunction(() => !!document.querySelector('nadir-track')?.shadowRoot?.querySelector('path.past')?.getAttribute('d'), undefined, { timeout: 20_000 });
   return { ctx, page, pageErrors };
 }
 
@@ -246,29 +263,23 @@ describe('the picked satellite', () => {
 
 describe('coastlines first', () => {
   it('draws no track over an empty ocean while the land outline is on its way', async () => {
-    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-    const page = await ctx.newPage();
-    // the land and country outlines come 1.2 s after the tracks could have been drawn
-    await page.route(/\/assets\/(land|countries)-110m\./, async (r) => {
-      await new Promise((ok) => setTimeout(ok, 1200));
-      await r.continue();
-    });
-    const url = `${server.url}/e2e-layout-coast-first.html`;
-    await page.route(url, (r) =>
-      r.fulfill({
-        contentType: 'text/html',
-        body: `<!doctype html><body style="margin:0;padding:8px"><script>
+    const { ctx, page } = await widgetPage('coast-first', `satellites="${server.credentials.satellites[0]!.id}"`, {
+      waitForTrack: false,
+      // the land and country outlines come 1.2 s after the tracks could have been drawn
+      prepare: (pg) =>
+        pg.route(/\/assets\/(land|countries)-110m\./, async (r) => {
+          await new Promise((ok) => setTimeout(ok, 1200));
+          await r.continue();
+        }),
+      headScript: `
           window.__seen = [];
           setInterval(() => {
             const sr = document.querySelector('nadir-track')?.shadowRoot;
             const track = (sr?.querySelector('path.past')?.getAttribute('d') ?? '').length > 20;
             const land = (sr?.querySelector('path.land')?.getAttribute('d') ?? '').length > 20;
             if (track || land) window.__seen.push({ track, land });
-          }, 10);
-        </script><script type="module" src="/widget/nadir-track.js"></script><nadir-track api-key="${server.credentials.browserKey}" satellites="${server.credentials.satellites[0]!.id}" style="display:block"></nadir-track>`,
-      }),
-    );
-    await page.goto(url);
+          }, 10);`,
+    });
     await page.waitForFunction(() => (window as unknown as { __seen: { track: boolean; land: boolean }[] }).__seen.some((x) => x.track && x.land), undefined, { timeout: 15_000 });
     const seen = await page.evaluate(() => (window as unknown as { __seen: { track: boolean; land: boolean }[] }).__seen);
     expect(seen.filter((x) => x.track && !x.land)).toEqual([]);
@@ -293,23 +304,17 @@ describe('the picked satellite, picked early', () => {
     );
 
   it('turns the globe to a satellite picked before its track arrived', async () => {
-    const ctx = await browser.newContext({ viewport: { width: 1280, height: 900 } });
-    const page = await ctx.newPage();
     let release!: () => void;
     const held = new Promise<void>((r) => (release = r));
-    // the track windows wait until the pick is made
-    await page.route(/\/v1\/(tracks|satellites\/[^/]+\/track)\b/, async (r) => {
-      await held;
-      await r.continue();
+    const { ctx, page } = await widgetPage('early-pick', `satellites="${allIds()}" projection="globe"`, {
+      waitForTrack: false,
+      // the track windows wait until the pick is made
+      prepare: (pg) =>
+        pg.route(/\/v1\/(tracks|satellites\/[^/]+\/track)\b/, async (r) => {
+          await held;
+          await r.continue();
+        }),
     });
-    const url = `${server.url}/e2e-layout-early-pick.html`;
-    await page.route(url, (r) =>
-      r.fulfill({
-        contentType: 'text/html',
-        body: `<!doctype html><body style="margin:0;padding:8px"><script type="module" src="/widget/nadir-track.js"></script><nadir-track api-key="${server.credentials.browserKey}" satellites="${allIds()}" projection="globe" style="display:block"></nadir-track>`,
-      }),
-    );
-    await page.goto(url);
     await page.waitForFunction(() => document.querySelector('nadir-track')?.shadowRoot?.querySelectorAll('button.chip').length === 4, undefined, { timeout: 15_000 });
     await page.evaluate(() => document.querySelector('nadir-track')!.shadowRoot!.querySelectorAll<HTMLElement>('button.chip')[2]!.click());
     release();
