@@ -261,6 +261,26 @@ describe('the picked satellite', () => {
   });
 });
 
+describe('an element given more height than its map needs', () => {
+  for (const projection of ['equal-earth', 'globe'] as const) {
+    it(`keeps the time control directly under the ${projection} map in a 390 x 844 element`, async () => {
+      const w = await widgetPage(`tall-${projection}`, `satellites="${allIds()}" projection="${projection}"`, { width: 420, style: 'display:block;width:390px;height:844px' });
+      const m = await w.page.evaluate(() => {
+        const sr = document.querySelector('nadir-track')!.shadowRoot!;
+        const map = sr.querySelector('svg.map')!.getBoundingClientRect();
+        const ctl = sr.querySelector('.timectl')!.getBoundingClientRect();
+        return { mapBottom: map.bottom, ctlTop: ctl.top, mapHeight: map.height, mapWidth: map.width };
+      });
+      await w.page.screenshot({ path: path.join(ARTIFACTS, `tall-${projection}.png`) });
+      // the map is drawn at its width (not shrunk), and the control follows it, not the element's foot
+      expect(m.mapWidth).toBeGreaterThan(340);
+      expect(m.ctlTop - m.mapBottom).toBeLessThan(24);
+      expect(m.ctlTop - m.mapBottom).toBeGreaterThan(-1);
+      await w.ctx.close();
+    });
+  }
+});
+
 describe('coastlines first', () => {
   it('draws no track over an empty ocean while the land outline is on its way', async () => {
     const { ctx, page } = await widgetPage('coast-first', `satellites="${server.credentials.satellites[0]!.id}"`, {
